@@ -22,7 +22,7 @@ export function assertSorted(sorted: readonly number[], name = "sorted values"):
  * x(⌊r⌋) and x(⌊r⌋ + 1); null when r < 1 or r > n. Does not validate the array.
  * Complexity O(1).
  */
-export function valueAtRank(sorted: readonly number[], r: number): number | null {
+export function valueAtRank(sorted: ArrayLike<number>, r: number): number | null {
   const len = sorted.length;
   if (!(r >= 1) || r > len) return null;
   const k = Math.floor(r);
