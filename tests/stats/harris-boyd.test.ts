@@ -26,7 +26,7 @@ describe("harrisBoyd", () => {
 
   it("computes z, z* and the SD ratio from two samples", () => {
     const r = harrisBoyd(a, b);
-    // R: abs(mean(a)-mean(b))/sqrt(var(a)/11+var(b)/10) = 2.241792886073; sd(a)/sd(b) = 2.692552371161;
+    // R (scripts/fixtures/lahti-verification-checks.R): abs(mean(a)-mean(b))/sqrt(var(a)/11+var(b)/10) = 2.241792886073; sd(a)/sd(b) = 2.692552371161;
     // 3*sqrt(21/240) = 0.887411967465. 1e-9: closed forms in double precision.
     expect(r.z).toBeCloseTo(2.241792886073, 9);
     expect(r.sdRatio).toBeCloseTo(2.692552371161, 9);
