@@ -1,0 +1,102 @@
+/**
+ * Cautions attached to every score. Each is a stable code (for the LIS and for tests) and a
+ * plain sentence for the clinician. A statistic never stands in for a diagnosis: the general
+ * caution travels with every score, and the specific ones say what limits this particular number.
+ */
+
+export type CautionCode =
+  | "general"
+  | "tail-extrapolated"
+  | "outside-reference-data"
+  | "unit-converted"
+  | "value-censored"
+  | "review-overdue"
+  | "partition-chosen"
+  | "partition-default";
+
+export interface Caution {
+  code: CautionCode;
+  text: string;
+}
+
+export const GENERAL_CAUTION: Caution = {
+  code: "general",
+  text:
+    "This z-score and percentile place the value among healthy reference individuals; they are " +
+    "not a diagnosis. About 5% of healthy people fall outside a reference interval by design. " +
+    "Interpret the result with the clinical picture, under the direction of the laboratory's " +
+    "licensed director and local policy.",
+};
+
+/** A value further into the tail of a gaussian model than the reference data reached. */
+export function tailExtrapolatedCaution(z: number, n: number | undefined): Caution {
+  const reach =
+    n === undefined
+      ? "more than 3 standard deviations from the centre"
+      : `beyond the most extreme value expected among the ${n} reference results`;
+  return {
+    code: "tail-extrapolated",
+    text:
+      `This value lies ${reach} (z = ${z.toFixed(2)}). The z-score and percentile extend the ` +
+      "fitted distribution past the data it was built from and are less certain this far out.",
+  };
+}
+
+/** A value outside the range of an empirical model's reference data: the percentile is a bound. */
+export function outsideReferenceDataCaution(side: "below" | "above", boundPercentile: number, n: number): Caution {
+  const where = side === "below" ? "below the lowest" : "above the highest";
+  return {
+    code: "outside-reference-data",
+    text:
+      `This value is ${where} of the ${n} reference results, so its percentile can only be given ` +
+      `as a bound (${side} ${boundPercentile.toFixed(2)}), and the z-score likewise; the true ` +
+      "position is further out.",
+  };
+}
+
+export function unitConvertedCaution(from: string | undefined, to: string): Caution {
+  return {
+    code: "unit-converted",
+    text:
+      `The value was converted ${from ? `from ${from} ` : ""}to ${to} before scoring. If the ` +
+      "result looks unexpected, check that the unit sent matches the unit measured.",
+  };
+}
+
+export function valueCensoredCaution(censored: "<" | ">", c: number, unit: string): Caution {
+  const direction = censored === "<" ? "below" : "above";
+  const further = censored === "<" ? "lower" : "higher";
+  return {
+    code: "value-censored",
+    text:
+      `The result was reported as "${censored}${c} ${unit}", ${direction} the measuring range. It ` +
+      `was scored at ${c}, so the true z-score and percentile are ${further} than shown.`,
+  };
+}
+
+export const REVIEW_OVERDUE_CAUTION: Caution = {
+  code: "review-overdue",
+  text:
+    "This reference interval is past its scheduled review date: the laboratory has not yet " +
+    "re-confirmed that it still fits the current method and population.",
+};
+
+export type PartitionChoice = "sex" | "age" | "age-and-sex" | "default";
+
+export function partitionCaution(choice: PartitionChoice): Caution {
+  if (choice === "default") {
+    return {
+      code: "partition-default",
+      text:
+        "No age or sex was given, so the combined or default interval was used; an age- or " +
+        "sex-specific interval, where the laboratory has one, may differ.",
+    };
+  }
+  const by = choice === "age-and-sex" ? "age and sex" : choice;
+  return {
+    code: "partition-chosen",
+    text:
+      `The interval was chosen by the ${by} given with the request; if the ${by} is wrong, so is ` +
+      "the interval used.",
+  };
+}

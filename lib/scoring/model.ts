@@ -1,0 +1,78 @@
+/**
+ * The scoring model stored with each partition of an interval version, and the partition shape
+ * that scoring needs. Validated with zod wherever a model enters from outside (database JSON,
+ * API, command-line model file).
+ */
+import { z } from "zod";
+
+const finite = z.number().refine(Number.isFinite, "must be a finite number");
+
+/** Gaussian on a transformed scale: z = (g(x) − mean)/sd, g the identity, ln or Box-Cox(λ). */
+export const gaussianModelSchema = z
+  .object({
+    kind: z.literal("gaussian"),
+    transform: z.enum(["none", "ln", "box-cox"]),
+    lambda: finite.optional(),
+    mean: finite,
+    sd: finite.refine((v) => v > 0, "sd must be positive"),
+  })
+  .refine((m) => m.transform !== "box-cox" || m.lambda !== undefined, {
+    message: "a box-cox model needs lambda",
+    path: ["lambda"],
+  });
+
+/** Empirical: the sorted reference values themselves (percentile by the inverse type-6 quantile). */
+export const empiricalModelSchema = z.object({
+  kind: z.literal("empirical"),
+  values: z
+    .array(finite)
+    .min(2, "an empirical model needs at least 2 reference values")
+    .refine((v) => v.every((x, i) => i === 0 || v[i - 1] <= x), "values must be sorted ascending"),
+});
+
+export const scoringModelSchema = z.discriminatedUnion("kind", [gaussianModelSchema, empiricalModelSchema]);
+
+/**
+ * One partition of an interval version as scoring sees it: inclusive limits (either may be null
+ * for a one-sided interval), the UCUM unit, display decimals, optional critical limits
+ * configured by the laboratory, the scoring model and the number of reference values behind it.
+ */
+export const scoringPartitionSchema = z
+  .object({
+    low: finite.nullable(),
+    high: finite.nullable(),
+    unit: z.string().min(1),
+    decimals: z.number().int().min(0).max(10).default(1),
+    criticalLow: finite.optional(),
+    criticalHigh: finite.optional(),
+    model: scoringModelSchema,
+    n: z.number().int().positive().optional(),
+  })
+  .refine((p) => p.low !== null || p.high !== null, { message: "a partition needs a low or a high limit" })
+  .refine((p) => p.low === null || p.high === null || p.low <= p.high, {
+    message: "low must not exceed high",
+    path: ["low"],
+  })
+  .refine((p) => p.criticalLow === undefined || p.low === null || p.criticalLow <= p.low, {
+    message: "criticalLow must not exceed low",
+    path: ["criticalLow"],
+  })
+  .refine((p) => p.criticalHigh === undefined || p.high === null || p.criticalHigh >= p.high, {
+    message: "criticalHigh must not be below high",
+    path: ["criticalHigh"],
+  });
+
+export type GaussianModel = z.infer<typeof gaussianModelSchema>;
+export type EmpiricalModel = z.infer<typeof empiricalModelSchema>;
+export type ScoringModel = z.infer<typeof scoringModelSchema>;
+export type ScoringPartition = z.infer<typeof scoringPartitionSchema>;
+/** A partition before defaults are applied (decimals optional). */
+export type ScoringPartitionInput = z.input<typeof scoringPartitionSchema>;
+
+/** Limits used for flagging; null means that side is open. */
+export interface Limits {
+  low: number | null;
+  high: number | null;
+  criticalLow?: number;
+  criticalHigh?: number;
+}
