@@ -1,0 +1,87 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { z } from "zod";
+import { AuditFilters } from "@/components/audit/audit-filters";
+import { AuditTable } from "@/components/audit/audit-table";
+import { PageHeader, Panel } from "@/components/ui/panel";
+import { db } from "@/db/client";
+import { listAuditEvents, listAuditVocabulary } from "@/db/queries/audit";
+import { formatDateTime } from "@/lib/format";
+import { requirePageCaller } from "@/lib/auth/session";
+
+export const metadata: Metadata = { title: "Audit trail" };
+
+const PAGE_SIZE = 50;
+
+const day = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/)
+  .optional()
+  .catch(undefined);
+const text = z.string().trim().max(200).optional().catch(undefined);
+
+const filterSchema = z.object({
+  actor: text,
+  action: text,
+  entityType: text,
+  text,
+  from: day,
+  to: day,
+  page: z.coerce.number().int().min(1).max(100_000).catch(1),
+});
+
+export default async function AuditPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
+  await requirePageCaller("audit:read");
+  const raw = Object.fromEntries(Object.entries(await searchParams).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v || undefined]));
+  const f = filterSchema.parse(raw);
+  const filter = {
+    actor: f.actor,
+    action: f.action,
+    entityType: f.entityType,
+    text: f.text,
+    from: f.from ? new Date(`${f.from}T00:00:00`) : undefined,
+    // "to" is the last day shown, inclusive.
+    to: f.to ? new Date(new Date(`${f.to}T00:00:00`).getTime() + 86_400_000) : undefined,
+  };
+  const database = db();
+  const [{ rows, total }, vocabulary] = await Promise.all([
+    listAuditEvents(database, { filter, limit: PAGE_SIZE, offset: (f.page - 1) * PAGE_SIZE }),
+    listAuditVocabulary(database),
+  ]);
+  const pages = Math.max(1, Math.ceil(total / PAGE_SIZE));
+  const pageHref = (page: number) => {
+    const params = new URLSearchParams(Object.entries({ ...raw, page: String(page) }).filter(([, v]) => v) as [string, string][]);
+    return `/audit?${params.toString()}`;
+  };
+
+  return (
+    <>
+      <PageHeader
+        title="Audit trail"
+        lead="Every sign-in, change and signature, in the order it happened. The database refuses to alter or erase these records."
+      />
+      <Panel className="mb-5">
+        <AuditFilters values={f} actions={vocabulary.actions} entityTypes={vocabulary.entityTypes} />
+      </Panel>
+      <Panel title={`${total} event${total === 1 ? "" : "s"}`}>
+        <AuditTable
+          rows={rows.map((e) => ({
+            id: e.id,
+            at: formatDateTime(e.at),
+            actor: e.actorLabel,
+            action: e.action,
+            entity: e.entityId ? `${e.entityType} ${e.entityId.slice(0, 8)}` : e.entityType,
+            summary: e.summary,
+          }))}
+        />
+        <nav aria-label="Pages" className="mt-3 flex items-center gap-3 text-sm">
+          {f.page > 1 ? <Link href={pageHref(f.page - 1)}>← Newer</Link> : null}
+          <span className="text-ink-500">
+            Page {Math.min(f.page, pages)} of {pages}
+          </span>
+          {f.page < pages ? <Link href={pageHref(f.page + 1)}>Older →</Link> : null}
+        </nav>
+      </Panel>
+    </>
+  );
+}

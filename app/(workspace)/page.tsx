@@ -1,0 +1,66 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { AuditEventList } from "@/components/audit/audit-event-list";
+import { PageHeader, Panel } from "@/components/ui/panel";
+import { db } from "@/db/client";
+import { listAuditEvents } from "@/db/queries/audit";
+import { requirePageCaller } from "@/lib/auth/session";
+import { can, PERMISSION_DESCRIPTIONS, PERMISSIONS, ROLE_LABELS, type Permission } from "@/lib/auth/roles";
+
+export const metadata: Metadata = { title: "Overview" };
+
+export default async function OverviewPage() {
+  const caller = await requirePageCaller();
+  const permissions = (Object.keys(PERMISSIONS) as Permission[]).filter((p) => can(caller.role, p));
+  const recent = can(caller.role, "audit:read")
+    ? (await listAuditEvents(db(), { filter: {}, limit: 8, offset: 0 })).rows
+    : null;
+
+  return (
+    <>
+      <PageHeader
+        title={`Welcome, ${caller.name}`}
+        lead={`Signed in as ${ROLE_LABELS[caller.role].toLowerCase()}. Bellwether keeps the laboratory's reference intervals: how they were established, who signed them off, and how a patient value sits against them.`}
+      />
+      <div className="grid gap-5 lg:grid-cols-2">
+        <Panel title="What your role can do">
+          <ul className="space-y-2 text-sm" data-testid="role-abilities">
+            {permissions.map((p) => (
+              <li key={p} className="flex gap-2">
+                <span aria-hidden className="mt-1.5 h-1.5 w-1.5 shrink-0 rounded-full bg-bronze-500" />
+                {PERMISSION_DESCRIPTIONS[p]}
+              </li>
+            ))}
+          </ul>
+        </Panel>
+        <Panel title="How to read Bellwether's numbers">
+          <div className="space-y-2 text-sm text-ink-700">
+            <p>
+              A reference interval is the central 95% of results in healthy reference individuals. About one healthy
+              person in twenty falls outside it by design, so a result outside the interval is a prompt to look, not a
+              finding.
+            </p>
+            <p>
+              z-scores and percentiles place a value among healthy reference individuals. They are statistics, not
+              diagnoses, and they are read with the clinical picture under the laboratory director&apos;s licensed
+              direction and local policy.
+            </p>
+          </div>
+        </Panel>
+        {recent ? (
+          <Panel
+            title="Recent activity"
+            className="lg:col-span-2"
+            actions={
+              <Link href="/audit" className="text-sm">
+                Full audit trail
+              </Link>
+            }
+          >
+            <AuditEventList events={recent} />
+          </Panel>
+        ) : null}
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,8 @@
+import NextAuth from "next-auth";
+import { authOptions } from "@/lib/auth/options";
+
+function handler(req: Request, ctx: { params: Promise<{ nextauth: string[] }> }) {
+  return NextAuth(authOptions())(req, ctx);
+}
+
+export { handler as GET, handler as POST };

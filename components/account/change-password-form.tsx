@@ -1,0 +1,28 @@
+"use client";
+
+import { useActionState, useEffect, useRef } from "react";
+import { changeOwnPasswordAction } from "@/app/(workspace)/account/actions";
+import { Button } from "@/components/ui/button";
+import { TextField } from "@/components/ui/field";
+import { StatusMessage } from "@/components/ui/status-message";
+import { IDLE_STATE } from "@/lib/auth/action-state";
+
+export function ChangePasswordForm() {
+  const [state, action, pending] = useActionState(changeOwnPasswordAction, IDLE_STATE);
+  const form = useRef<HTMLFormElement>(null);
+  useEffect(() => {
+    if (state.status === "ok") form.current?.reset();
+  }, [state]);
+  const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
+  return (
+    <form ref={form} action={action} className="space-y-3">
+      <TextField label="Current password" name="current" type="password" autoComplete="current-password" error={errors.current} />
+      <TextField label="New password" name="next" type="password" autoComplete="new-password" error={errors.next} hint="At least 12 characters." />
+      <TextField label="New password again" name="confirm" type="password" autoComplete="new-password" error={errors.confirm} />
+      <StatusMessage state={state} />
+      <Button type="submit" disabled={pending}>
+        {pending ? "Saving…" : "Change password"}
+      </Button>
+    </form>
+  );
+}

@@ -1,0 +1,3 @@
+import { ROLE_LABELS, ROLES } from "@/lib/auth/roles";
+
+export const ROLE_OPTIONS = ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r] }));

@@ -1,0 +1,158 @@
+import "server-only";
+import { and, asc, eq, ne, sql } from "drizzle-orm";
+import { AppError } from "@/lib/api/errors";
+import { hashPassword } from "@/lib/auth/password";
+import type { Database, Executor } from "../client";
+import { users, type Role, type User } from "../schema";
+import { recordAuditEvent, type Actor } from "./audit";
+
+export type PublicUser = Omit<User, "passwordHash">;
+
+const publicColumns = {
+  id: users.id,
+  email: users.email,
+  name: users.name,
+  role: users.role,
+  active: users.active,
+  createdAt: users.createdAt,
+  updatedAt: users.updatedAt,
+  deactivatedAt: users.deactivatedAt,
+  lastSignInAt: users.lastSignInAt,
+};
+
+export function normaliseEmail(email: string): string {
+  return email.trim().toLowerCase();
+}
+
+export async function findUserByEmail(executor: Executor, { email }: { email: string }): Promise<User | undefined> {
+  const [row] = await executor.select().from(users).where(eq(users.email, normaliseEmail(email))).limit(1);
+  return row;
+}
+
+export async function findUserById(executor: Executor, { id }: { id: string }): Promise<PublicUser | undefined> {
+  const [row] = await executor.select(publicColumns).from(users).where(eq(users.id, id)).limit(1);
+  return row;
+}
+
+export async function listUsers(executor: Executor): Promise<PublicUser[]> {
+  return executor.select(publicColumns).from(users).orderBy(asc(users.name));
+}
+
+export async function countUsers(executor: Executor): Promise<number> {
+  const [{ n }] = await executor.select({ n: sql<number>`count(*)::int` }).from(users);
+  return n;
+}
+
+export async function recordSignIn(executor: Executor, { id }: { id: string }): Promise<void> {
+  await executor.update(users).set({ lastSignInAt: new Date() }).where(eq(users.id, id));
+}
+
+export interface CreateUserInput {
+  email: string;
+  name: string;
+  role: Role;
+  password: string;
+}
+
+export async function createUser(
+  database: Database,
+  { input, actor }: { input: CreateUserInput; actor: Actor },
+): Promise<PublicUser> {
+  const email = normaliseEmail(input.email);
+  const passwordHash = await hashPassword(input.password);
+  return database.transaction(async (tx) => {
+    const existing = await tx.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
+    if (existing.length > 0) throw new AppError("conflict", `A user with the e-mail ${email} already exists.`);
+    const [created] = await tx
+      .insert(users)
+      .values({ email, name: input.name.trim(), role: input.role, passwordHash })
+      .returning(publicColumns);
+    await recordAuditEvent(tx, {
+      actor,
+      action: "user.created",
+      entityType: "user",
+      entityId: created.id,
+      summary: `Created ${created.name} <${created.email}> as ${created.role}`,
+      details: { email: created.email, role: created.role },
+    });
+    return created;
+  });
+}
+
+/** Refuses a change that would leave the laboratory without an active administrator. */
+async function assertAnotherActiveAdmin(tx: Executor, userId: string): Promise<void> {
+  const [{ n }] = await tx
+    .select({ n: sql<number>`count(*)::int` })
+    .from(users)
+    .where(and(eq(users.role, "admin"), eq(users.active, true), ne(users.id, userId)));
+  if (n === 0) {
+    throw new AppError("conflict", "This is the last active administrator; make another user an administrator first.");
+  }
+}
+
+async function lockUser(tx: Executor, id: string): Promise<User> {
+  const [row] = await tx.select().from(users).where(eq(users.id, id)).for("update");
+  if (!row) throw new AppError("not_found", "No such user.");
+  return row;
+}
+
+export async function changeUserRole(
+  database: Database,
+  { id, role, actor }: { id: string; role: Role; actor: Actor },
+): Promise<void> {
+  await database.transaction(async (tx) => {
+    const user = await lockUser(tx, id);
+    if (user.role === role) return;
+    if (user.role === "admin" && user.active) await assertAnotherActiveAdmin(tx, id);
+    await tx.update(users).set({ role, updatedAt: new Date() }).where(eq(users.id, id));
+    await recordAuditEvent(tx, {
+      actor,
+      action: "user.role_changed",
+      entityType: "user",
+      entityId: id,
+      summary: `Changed the role of ${user.email} from ${user.role} to ${role}`,
+      details: { from: user.role, to: role },
+    });
+  });
+}
+
+export async function setUserActive(
+  database: Database,
+  { id, active, actor }: { id: string; active: boolean; actor: Actor },
+): Promise<void> {
+  await database.transaction(async (tx) => {
+    const user = await lockUser(tx, id);
+    if (user.active === active) return;
+    if (!active && actor.id === id) throw new AppError("conflict", "You cannot deactivate your own account.");
+    if (!active && user.role === "admin") await assertAnotherActiveAdmin(tx, id);
+    await tx
+      .update(users)
+      .set({ active, deactivatedAt: active ? null : new Date(), updatedAt: new Date() })
+      .where(eq(users.id, id));
+    await recordAuditEvent(tx, {
+      actor,
+      action: active ? "user.reactivated" : "user.deactivated",
+      entityType: "user",
+      entityId: id,
+      summary: `${active ? "Reactivated" : "Deactivated"} ${user.email}`,
+    });
+  });
+}
+
+export async function changePassword(
+  database: Database,
+  { id, password, actor }: { id: string; password: string; actor: Actor },
+): Promise<void> {
+  const passwordHash = await hashPassword(password);
+  await database.transaction(async (tx) => {
+    const user = await lockUser(tx, id);
+    await tx.update(users).set({ passwordHash, updatedAt: new Date() }).where(eq(users.id, id));
+    await recordAuditEvent(tx, {
+      actor,
+      action: "user.password_changed",
+      entityType: "user",
+      entityId: id,
+      summary: actor.id === id ? `${user.email} changed their password` : `Set a new password for ${user.email}`,
+    });
+  });
+}

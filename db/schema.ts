@@ -1,0 +1,95 @@
+import { relations, sql } from "drizzle-orm";
+import {
+  bigserial,
+  boolean,
+  check,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  text,
+  timestamp,
+  uniqueIndex,
+  uuid,
+} from "drizzle-orm/pg-core";
+
+export const ROLES = ["admin", "director", "scientist", "clinician"] as const;
+export const roleEnum = pgEnum("user_role", ROLES);
+
+/** The one laboratory this installation serves. */
+export const laboratory = pgTable(
+  "laboratory",
+  {
+    id: integer("id").primaryKey().default(1),
+    name: text("name").notNull(),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [check("laboratory_single_row", sql`${t.id} = 1`)],
+);
+
+export const users = pgTable(
+  "users",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    email: text("email").notNull(),
+    name: text("name").notNull(),
+    role: roleEnum("role").notNull(),
+    passwordHash: text("password_hash").notNull(),
+    active: boolean("active").notNull().default(true),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    deactivatedAt: timestamp("deactivated_at", { withTimezone: true }),
+    lastSignInAt: timestamp("last_sign_in_at", { withTimezone: true }),
+  },
+  (t) => [
+    uniqueIndex("users_email_unique").on(sql`lower(${t.email})`),
+    check("users_email_lowercase", sql`${t.email} = lower(${t.email})`),
+  ],
+);
+
+/** Failed sign-ins per e-mail address, for slowing down password guessing. */
+export const signInFailures = pgTable("sign_in_failures", {
+  email: text("email").primaryKey(),
+  failures: integer("failures").notNull().default(0),
+  firstFailureAt: timestamp("first_failure_at", { withTimezone: true }).notNull().defaultNow(),
+  lockedUntil: timestamp("locked_until", { withTimezone: true }),
+});
+
+/**
+ * Append-only record of who did what. A trigger in the migrations rejects UPDATE, DELETE and
+ * TRUNCATE, so not even the application can rewrite history.
+ */
+export const auditEvents = pgTable(
+  "audit_events",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
+    actorId: uuid("actor_id").references(() => users.id, { onDelete: "restrict" }),
+    actorLabel: text("actor_label").notNull(),
+    action: text("action").notNull(),
+    entityType: text("entity_type").notNull(),
+    entityId: text("entity_id"),
+    summary: text("summary").notNull(),
+    details: jsonb("details").$type<Record<string, unknown>>().notNull().default({}),
+  },
+  (t) => [
+    index("audit_events_at_idx").on(t.at),
+    index("audit_events_actor_idx").on(t.actorId, t.at),
+    index("audit_events_action_idx").on(t.action, t.at),
+    index("audit_events_entity_idx").on(t.entityType, t.entityId),
+  ],
+);
+
+export const usersRelations = relations(users, ({ many }) => ({
+  auditEvents: many(auditEvents),
+}));
+
+export const auditEventsRelations = relations(auditEvents, ({ one }) => ({
+  actor: one(users, { fields: [auditEvents.actorId], references: [users.id] }),
+}));
+
+export type Role = (typeof ROLES)[number];
+export type User = typeof users.$inferSelect;
+export type NewUser = typeof users.$inferInsert;
+export type AuditEvent = typeof auditEvents.$inferSelect;

@@ -1,0 +1,57 @@
+import { ZodError } from "zod";
+import { AppError } from "./errors";
+
+/** RFC 9457 problem details: the only error shape Bellwether's API answers with. */
+export interface Problem {
+  type: string;
+  title: string;
+  status: number;
+  detail: string;
+  instance?: string;
+  errors?: { path: string; message: string }[];
+  [extension: string]: unknown;
+}
+
+export function zodIssues(err: ZodError): { path: string; message: string }[] {
+  return err.issues.map((i) => ({ path: i.path.map(String).join(".") || "(root)", message: i.message }));
+}
+
+/** Turns any thrown value into a problem; unknown errors are logged and answered generically. */
+export function toProblem(err: unknown, instance?: string): Problem {
+  if (err instanceof AppError) {
+    return {
+      type: `urn:bellwether:problem:${err.code}`,
+      title: err.title,
+      status: err.status,
+      detail: err.message,
+      instance,
+      ...(err.details ?? {}),
+    };
+  }
+  if (err instanceof ZodError) {
+    const errors = zodIssues(err);
+    return {
+      type: "urn:bellwether:problem:invalid",
+      title: "Invalid input",
+      status: 422,
+      detail: errors.map((e) => `${e.path}: ${e.message}`).join("; "),
+      instance,
+      errors,
+    };
+  }
+  console.error("Unhandled error", err);
+  return {
+    type: "urn:bellwether:problem:internal",
+    title: "Internal error",
+    status: 500,
+    detail: "Something went wrong on our side; the request changed nothing. Try again or tell your administrator.",
+    instance,
+  };
+}
+
+export function problemResponse(problem: Problem, headers?: HeadersInit): Response {
+  return new Response(JSON.stringify(problem), {
+    status: problem.status,
+    headers: { "content-type": "application/problem+json", "cache-control": "no-store", ...headers },
+  });
+}

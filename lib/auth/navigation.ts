@@ -1,0 +1,19 @@
+import { can, type Permission, type Role } from "./roles";
+
+export interface NavItem {
+  href: string;
+  label: string;
+  permission?: Permission;
+}
+
+/** The app's sections; each is shown only to the roles that may use it. */
+export const NAV_ITEMS: readonly NavItem[] = [
+  { href: "/", label: "Overview" },
+  { href: "/admin/users", label: "Users", permission: "users:manage" },
+  { href: "/audit", label: "Audit trail", permission: "audit:read" },
+  { href: "/account", label: "Account" },
+];
+
+export function navigationFor(role: Role): NavItem[] {
+  return NAV_ITEMS.filter((item) => !item.permission || can(role, item.permission));
+}

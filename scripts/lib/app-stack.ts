@@ -1,0 +1,154 @@
+/**
+ * The pieces `npm start` and `npm test` share: the database (private cluster or DATABASE_URL),
+ * migrations, the demo seed, the production build (rebuilt only when sources change) and the
+ * served app.
+ */
+import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import crypto from "node:crypto";
+import fs from "node:fs";
+import path from "node:path";
+import { drizzle } from "drizzle-orm/node-postgres";
+import { Pool } from "pg";
+import { ensureCluster, ensureDatabase, startServer, stopServer, type LocalServer } from "../../db/local-server";
+import { migrateDatabase } from "../../db/migrate";
+import * as schema from "../../db/schema";
+import { seedDemo } from "../../db/seed";
+
+export const ROOT = path.resolve(__dirname, "..", "..");
+
+export interface DatabaseHandle {
+  url: string;
+  server: LocalServer | null;
+}
+
+/** Starts (creating on first use) the private cluster, or uses DATABASE_URL when it is set. */
+export async function prepareDatabase(opts: {
+  dataRoot: string;
+  pgPort: number;
+  database: string;
+  external?: string;
+  fresh?: boolean;
+}): Promise<DatabaseHandle> {
+  if (opts.external) return { url: opts.external, server: null };
+  const server = ensureCluster(path.join(opts.dataRoot, "postgres"), opts.pgPort);
+  startServer(server);
+  try {
+    const url = await ensureDatabase(server, opts.database, opts.fresh);
+    return { url, server };
+  } catch (err) {
+    stopServer(server);
+    throw err;
+  }
+}
+
+export async function migrateAndSeed(url: string): Promise<{ seeded: boolean }> {
+  await migrateDatabase(url);
+  const pool = new Pool({ connectionString: url, max: 2 });
+  try {
+    const seeded = await seedDemo(drizzle(pool, { schema }));
+    return { seeded };
+  } finally {
+    await pool.end();
+  }
+}
+
+/** The session-signing secret: from the environment, or made once and kept in the data folder. */
+export function ensureSecret(dataRoot: string): string {
+  if (process.env.NEXTAUTH_SECRET) return process.env.NEXTAUTH_SECRET;
+  const file = path.join(dataRoot, "nextauth-secret");
+  if (!fs.existsSync(file)) {
+    fs.mkdirSync(dataRoot, { recursive: true });
+    fs.writeFileSync(file, crypto.randomBytes(32).toString("base64url"), { mode: 0o600 });
+  }
+  return fs.readFileSync(file, "utf8").trim();
+}
+
+const BUILD_INPUTS = [
+  "app",
+  "components",
+  "lib",
+  "db",
+  "public",
+  "types",
+  "proxy.ts",
+  "next.config.mjs",
+  "tailwind.config.ts",
+  "postcss.config.mjs",
+  "tsconfig.json",
+  "package-lock.json",
+];
+
+function fingerprint(): string {
+  const hash = crypto.createHash("sha256");
+  const visit = (rel: string) => {
+    const abs = path.join(ROOT, rel);
+    if (!fs.existsSync(abs)) return;
+    const stat = fs.statSync(abs);
+    if (stat.isDirectory()) {
+      for (const name of fs.readdirSync(abs).sort()) visit(path.join(rel, name));
+    } else if (stat.isFile()) {
+      hash.update(rel).update("\0").update(fs.readFileSync(abs)).update("\0");
+    }
+  };
+  BUILD_INPUTS.forEach(visit);
+  return hash.digest("hex");
+}
+
+/** Runs `next build` unless the last build was made from the same sources. */
+export function buildIfNeeded(): void {
+  const stampFile = path.join(ROOT, ".next", "bellwether-sources");
+  const current = fingerprint();
+  const built = fs.existsSync(path.join(ROOT, ".next", "BUILD_ID")) && fs.existsSync(stampFile)
+    ? fs.readFileSync(stampFile, "utf8")
+    : "";
+  if (built === current) return;
+  console.log("bellwether: building the app (next build)…");
+  const result = spawnSync(path.join(ROOT, "node_modules", ".bin", "next"), ["build"], {
+    cwd: ROOT,
+    stdio: ["ignore", "pipe", "pipe"],
+    encoding: "utf8",
+    env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
+  });
+  if (result.status !== 0) {
+    process.stderr.write(result.stdout + result.stderr);
+    throw new Error("next build failed");
+  }
+  fs.writeFileSync(stampFile, current);
+}
+
+/** Serves the built app on 127.0.0.1 and resolves once it answers its health check. */
+export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; quiet?: boolean }): Promise<ChildProcess> {
+  const child = spawn(
+    path.join(ROOT, "node_modules", ".bin", "next"),
+    ["start", "-H", "127.0.0.1", "-p", String(opts.port)],
+    { cwd: ROOT, env: opts.env, stdio: opts.quiet ? ["ignore", "pipe", "pipe"] : "inherit" },
+  );
+  let log = "";
+  child.stdout?.on("data", (d) => (log += d));
+  child.stderr?.on("data", (d) => (log += d));
+  const deadline = Date.now() + 60_000;
+  while (Date.now() < deadline) {
+    if (child.exitCode !== null) throw new Error(`the app exited during start-up:\n${log}`);
+    try {
+      const res = await fetch(`http://127.0.0.1:${opts.port}/api/health`);
+      if (res.ok) return child;
+    } catch {
+      // not listening yet
+    }
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  child.kill("SIGTERM");
+  throw new Error(`the app did not answer on port ${opts.port} within 60 s:\n${log}`);
+}
+
+export function stopApp(child: ChildProcess | null): Promise<void> {
+  if (!child || child.exitCode !== null) return Promise.resolve();
+  return new Promise((resolve) => {
+    const timer = setTimeout(() => child.kill("SIGKILL"), 10_000);
+    child.once("exit", () => {
+      clearTimeout(timer);
+      resolve();
+    });
+    child.kill("SIGTERM");
+  });
+}
