@@ -159,7 +159,7 @@ export function sortedCopy(x: readonly number[]): number[] {
  * Complexity O(1). Throws StatsInputError on an empty array.
  * @example medianSorted([1, 2, 3, 4]) // 2.5
  */
-export function medianSorted(sorted: readonly number[]): number {
+export function medianSorted(sorted: ArrayLike<number>): number {
   if (sorted.length === 0) throw new StatsInputError("values is empty");
   const h = sorted.length >> 1;
   return sorted.length % 2 === 1 ? sorted[h] : (sorted[h - 1] + sorted[h]) / 2;
