@@ -48,6 +48,10 @@ export interface ModelScore {
   bound: "below" | "above" | null;
 }
 
+// Standard-normal Φ and Φ⁻¹ from @stdlib, bound once: the batch path calls them per value.
+const phi = normal.cdf.factory(0, 1);
+const phiInverse = normal.quantile.factory(0, 1);
+
 /** Largest |z| that the reference data themselves reach: Φ⁻¹(n/(n+1)), or 3 without n. */
 function dataReach(n: number | undefined): number {
   return n === undefined ? 3 : normal.quantile(n / (n + 1), 0, 1);
@@ -124,10 +128,12 @@ export function scoreMany(
       const g = kind === 0 ? x : kind === 1 ? Math.log(x) : Math.expm1(lambda * Math.log(x)) / lambda;
       const zi = (g - mean) / sd;
       z[i] = zi;
-      percentile[i] = 100 * normal.cdf(zi, 0, 1);
+      percentile[i] = 100 * phi(zi);
     }
   } else {
-    const idx = indexEmpirical(model);
+    // empiricalRank inlined, without a result object per value.
+    const { distinct, first, last, n } = indexEmpirical(model);
+    const top = distinct.length - 1;
     for (let i = 0; i < m; i++) {
       const x = values[i];
       if (!Number.isFinite(x)) {
@@ -136,11 +142,29 @@ export function scoreMany(
         invalid.push(i);
         continue;
       }
-      const r = empiricalRank(idx, x);
-      const p = r.rank / (idx.n + 1);
-      z[i] = normal.quantile(p, 0, 1);
+      let rank: number;
+      if (x < distinct[0]) {
+        rank = 1;
+        bound[i] = -1;
+      } else if (x > distinct[top]) {
+        rank = n;
+        bound[i] = 1;
+      } else {
+        let lo = 0;
+        let hi = top;
+        while (lo < hi) {
+          const mid = (lo + hi + 1) >> 1;
+          if (distinct[mid] <= x) lo = mid;
+          else hi = mid - 1;
+        }
+        rank =
+          distinct[lo] === x
+            ? (first[lo] + last[lo]) / 2
+            : last[lo] + (x - distinct[lo]) / (distinct[lo + 1] - distinct[lo]);
+      }
+      const p = rank / (n + 1);
+      z[i] = phiInverse(p);
       percentile[i] = 100 * p;
-      bound[i] = r.bound === "below" ? -1 : r.bound === "above" ? 1 : 0;
     }
   }
   return { z, percentile, bound, invalid };
