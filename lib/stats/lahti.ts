@@ -69,7 +69,9 @@ function verdictOf(subgroups: LahtiSubgroupResult[]): Pick<LahtiResult, "verdict
   return {
     verdict: "marginal",
     reasons: [
-      `the largest proportion, ${worst.percent.toFixed(2)}% of ${worst.label} ${worst.side} the combined ${limit} limit, lies between ${LAHTI_COMBINE_AT_OR_BELOW_PERCENT}% and ${LAHTI_PARTITION_ABOVE_PERCENT}%: the decision rests on clinical and non-statistical judgement`,
+      `the largest proportion, ${worst.percent.toFixed(2)}% of ${worst.label} ${worst.side} the ` +
+        `combined ${limit} limit, lies between ${LAHTI_COMBINE_AT_OR_BELOW_PERCENT}% and ` +
+        `${LAHTI_PARTITION_ABOVE_PERCENT}%: the decision rests on clinical and non-statistical judgement`,
     ],
   };
 }

@@ -102,7 +102,8 @@ export function verifyInterval(
         ? `so a second set of ${n} is needed`
         : "so the interval is not verified for this population";
   const reasons = [
-    `${outside} of ${n} values (${((100 * outside) / n).toFixed(1)}%) fall outside ${range} (${below} below, ${above} above); at most ${allowedOutside} are allowed, ${outcome}`,
+    `${outside} of ${n} values (${((100 * outside) / n).toFixed(1)}%) fall outside ${range} ` +
+      `(${below} below, ${above} above); at most ${allowedOutside} are allowed, ${outcome}`,
   ];
   if (!passed) {
     reasons.push(
@@ -118,7 +119,8 @@ export function verifyInterval(
   const notes: string[] = [];
   if (n !== 20 || maxFraction !== 0.1) {
     notes.push(
-      `EP28-A3c states its rule for 20 values (at most 2 outside); with ${n} values it is applied as at most ${+(100 * maxFraction).toFixed(4)}% outside (${allowedOutside})`,
+      `EP28-A3c states its rule for 20 values (at most 2 outside); with ${n} values it is ` +
+        `applied as at most ${+(100 * maxFraction).toFixed(4)}% outside (${allowedOutside})`,
     );
   }
   if (n < 20) {
