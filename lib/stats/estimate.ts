@@ -1,0 +1,247 @@
+/**
+ * The estimate of one partition: outlier screen, choice of scale, nonparametric, parametric
+ * and robust limits with 90% CIs, normality on the parametric scale, and method advice. This
+ * is the document stored with an estimate and printed by `bellwether estimate`.
+ */
+import { andersonDarling } from "./anderson-darling";
+import { boxCoxFitFromLogs } from "./box-cox";
+import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
+import { nonparametricLimits } from "./nonparametric";
+import { dixonReedOutliers } from "./outliers-dixon";
+import { hornOutliers } from "./outliers-horn";
+import { tukeyOutliers } from "./outliers-tukey";
+import type { OutlierProposal } from "./outliers";
+import { parametricFromScale, type Transform } from "./parametric";
+import { ROBUST_MAX_N, ROBUST_MIN_N, robustReferenceLimits } from "./robust-horn";
+import { shapiroWilk } from "./shapiro-wilk";
+import { assertFiniteSample, StatsInputError } from "./validate";
+
+export type OutlierOption = "none" | "dixon" | "tukey" | "horn";
+export type TransformOption = "auto" | Transform;
+
+export const OUTLIER_OPTIONS: readonly OutlierOption[] = ["none", "dixon", "tukey", "horn"];
+export const TRANSFORM_OPTIONS: readonly TransformOption[] = ["auto", "none", "ln", "box-cox"];
+export const DEFAULT_SEED = 1;
+/** Shapiro-Wilk (Royston) is defined up to this many values. */
+const SHAPIRO_MAX_N = 5000;
+
+export interface EstimateOptions {
+  /** Outlier screen whose proposals are excluded; default "horn". */
+  outliers?: OutlierOption;
+  /** Scale of the parametric and robust methods; default "auto". */
+  transform?: TransformOption;
+  /** Seed of every bootstrap; default 1. Store it with the estimate. */
+  seed?: number;
+}
+
+export interface Exclusion {
+  value: number;
+  /** The screen that proposed it. */
+  reason: OutlierOption;
+}
+
+export interface ParametricSection extends LimitsWithCi {
+  transform: Transform;
+  lambda: number | null;
+  /** Mean and SD on the transformed scale. */
+  mean: number | null;
+  sd: number | null;
+}
+
+export interface NormalitySection {
+  shapiroWilk: { w: number; p: number } | null;
+  andersonDarling: { a2: number; p: number } | null;
+}
+
+export interface ReferenceIntervalEstimate {
+  /** Values used after exclusions. */
+  n: number;
+  excluded: Exclusion[];
+  nonparametric: LimitsWithCi;
+  parametric: ParametricSection;
+  robust: LimitsWithCi;
+  normality: NormalitySection;
+  recommended: RecommendedMethod | null;
+  warnings: string[];
+}
+
+const EMPTY: LimitsWithCi = { lower: null, upper: null, lowerCi: null, upperCi: null };
+
+function scaleOf(sorted: readonly number[], logs: Float64Array | null, t: Transform, lambda: number | null): number[] {
+  if (t === "none") return sorted as number[];
+  if (t === "ln") return Array.from(logs!);
+  const l = lambda as number;
+  if (l === 0) return Array.from(logs!);
+  const y = new Array<number>(sorted.length);
+  for (let i = 0; i < y.length; i++) y[i] = Math.expm1(l * logs![i]) / l;
+  return y;
+}
+
+function tryOr<T>(f: () => T, fallback: T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof StatsInputError) return fallback;
+    throw e;
+  }
+}
+
+/**
+ * Estimates the 95% reference interval of one partition by every applicable method.
+ *
+ * 1. Outliers: the chosen screen (Horn by default; Tukey on the raw scale when a value is not
+ *    positive) proposes values; they are excluded here and listed in `excluded`.
+ * 2. Scale ("auto"): among raw, ln and Box-Cox (the last two only when every value is
+ *    positive), the one on which the data look most Gaussian: the highest Shapiro-Wilk W,
+ *    or the lowest Anderson-Darling A² above 5000 values; ties go to the simpler scale.
+ * 3. Nonparametric limits on the raw values (rank p(n + 1)), CIs from binomial ranks (n ≥ 119)
+ *    or a seeded bootstrap (39–118, said in `warnings`).
+ * 4. Parametric limits on the chosen scale; robust limits on the same scale for 20–119 values.
+ * 5. Normality on the parametric scale: Shapiro-Wilk (3–5000 values), Anderson-Darling (≥ 8);
+ *    null outside those ranges.
+ * 6. Method advice and warnings.
+ * The same values, options and seed always give the same document.
+ * @see lib/stats/* for each method and its source; CLSI EP28-A3c (2010).
+ * Complexity O(n log n): one sort; the λ search is O(n) per evaluation; bootstraps only below
+ *   120 values.
+ * Throws StatsInputError on an empty sample, a non-finite value, an unknown option, or ln /
+ *   Box-Cox requested for data with a non-positive value.
+ * @example estimateReferenceInterval(values, { outliers: "horn", transform: "auto", seed: 1 })
+ */
+export function estimateReferenceInterval(
+  values: readonly number[],
+  options: EstimateOptions = {},
+): ReferenceIntervalEstimate {
+  assertFiniteSample(values);
+  const outlierOption = options.outliers ?? "horn";
+  const transformOption = options.transform ?? "auto";
+  const seed = options.seed ?? DEFAULT_SEED;
+  if (!OUTLIER_OPTIONS.includes(outlierOption)) {
+    throw new StatsInputError(`outliers must be one of ${OUTLIER_OPTIONS.join(", ")} (got "${String(outlierOption)}")`);
+  }
+  if (!TRANSFORM_OPTIONS.includes(transformOption)) {
+    throw new StatsInputError(`transform must be one of ${TRANSFORM_OPTIONS.join(", ")} (got "${String(transformOption)}")`);
+  }
+  if (!Number.isSafeInteger(seed)) throw new StatsInputError(`seed must be an integer (got ${String(seed)})`);
+  const warnings: string[] = [];
+  let allPositive = true;
+  for (let i = 0; i < values.length; i++) if (values[i] <= 0) allPositive = false;
+
+  // 1. Outliers
+  let proposals: OutlierProposal[] = [];
+  let hornLambda: number | null = null;
+  if (outlierOption === "dixon") proposals = dixonReedOutliers(values).outliers;
+  else if (outlierOption === "tukey") proposals = tukeyOutliers(values).outliers;
+  else if (outlierOption === "horn") {
+    if (allPositive && values.length >= 4) {
+      const h = hornOutliers(values);
+      proposals = h.outliers;
+      if (h.converged) hornLambda = h.lambda;
+      else warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
+    } else if (values.length >= 4) {
+      proposals = tukeyOutliers(values).outliers;
+      warnings.push("Horn's method needs positive values; Tukey fences on the raw scale were used instead.");
+    }
+  }
+  const excludedIdx = new Uint8Array(values.length);
+  for (const p of proposals) excludedIdx[p.index] = 1;
+  const excluded: Exclusion[] = proposals
+    .slice()
+    .sort((a, b) => a.index - b.index)
+    .map((p) => ({ value: p.value, reason: p.method }));
+  const kept = new Float64Array(values.length - proposals.length);
+  for (let i = 0, j = 0; i < values.length; i++) if (!excludedIdx[i]) kept[j++] = values[i];
+  const sorted = Array.from(kept.sort());
+  const n = sorted.length;
+  const distinct = n >= 2 && sorted[n - 1] > sorted[0];
+
+  // 2. Scale
+  const logs = allPositive && n > 0 ? Float64Array.from(sorted, Math.log) : null;
+  let lambda: number | null = null;
+  const needBoxCox = transformOption === "box-cox" || (transformOption === "auto" && allPositive);
+  if ((transformOption === "ln" || transformOption === "box-cox") && !allPositive) {
+    throw new StatsInputError(`transform "${transformOption}" needs every value to be positive`);
+  }
+  if (needBoxCox && distinct && logs) {
+    lambda = hornLambda ?? boxCoxFitFromLogs(logs, 0, n).lambda;
+    if (Math.abs(lambda) === 3) warnings.push(`The Box-Cox λ reached the edge of its search range (${lambda}).`);
+  }
+  let transform: Transform = transformOption === "auto" ? "none" : transformOption;
+  let y: number[] | null = null;
+  if (transformOption === "auto" && distinct && n >= 3) {
+    const candidates: Transform[] = allPositive && lambda !== null ? ["none", "ln", "box-cox"] : ["none"];
+    let best = -Infinity;
+    for (const c of candidates) {
+      const yc = scaleOf(sorted, logs, c, c === "box-cox" ? lambda : null);
+      const score = n <= SHAPIRO_MAX_N
+        ? tryOr(() => shapiroWilk(yc).w, -Infinity)
+        : tryOr(() => -andersonDarling(yc).a2, -Infinity);
+      if (score > best) {
+        best = score;
+        transform = c;
+        y = yc;
+      }
+    }
+  }
+  if (transform !== "box-cox") lambda = null;
+  if (y === null && n > 0 && (transform === "none" || logs)) y = scaleOf(sorted, logs, transform, lambda);
+
+  // 3. Nonparametric, on the raw values
+  const np = nonparametricLimits(sorted, { seed });
+  if (np.ciMethod === "bootstrap") {
+    warnings.push(`Nonparametric 90% CIs are percentile-bootstrap intervals (fewer than 119 values; seed ${seed}).`);
+  }
+  if (n < 39) warnings.push(`Nonparametric limits need at least 39 values (have ${n}).`);
+  const nonparametric: LimitsWithCi = { lower: np.lower, upper: np.upper, lowerCi: np.lowerCi, upperCi: np.upperCi };
+
+  // 4. Parametric and robust, on the chosen scale
+  let parametric: ParametricSection = { transform, lambda, mean: null, sd: null, ...EMPTY };
+  if (y !== null && n >= 3 && distinct) {
+    const p = parametricFromScale(y, transform, lambda);
+    parametric = { transform, lambda, mean: p.mean, sd: p.sd, lower: p.lower, upper: p.upper, lowerCi: p.lowerCi, upperCi: p.upperCi };
+    if (p.lower === null || p.upper === null) {
+      warnings.push("A parametric limit cannot be carried back from the Box-Cox scale (1 + λy ≤ 0).");
+    }
+    if (transform === "none" && allPositive && p.lower !== null && p.lower < 0) {
+      warnings.push("The raw-scale parametric lower limit is negative although every value is positive.");
+    }
+  } else if (n < 3) {
+    warnings.push(`Parametric limits need at least 3 values (have ${n}).`);
+  } else {
+    warnings.push("All values are equal: parametric and robust limits cannot be estimated.");
+  }
+  let robust: LimitsWithCi = EMPTY;
+  if (n >= ROBUST_MIN_N && n <= ROBUST_MAX_N && distinct) {
+    robust = robustReferenceLimits(sorted, { transform, lambda, seed });
+  }
+
+  // 5. Normality on the parametric scale
+  const normality: NormalitySection = { shapiroWilk: null, andersonDarling: null };
+  if (y !== null && distinct) {
+    const yy = y;
+    if (n >= 3 && n <= SHAPIRO_MAX_N) normality.shapiroWilk = tryOr(() => shapiroWilk(yy), null);
+    if (n >= 8) {
+      const ad = tryOr(() => andersonDarling(yy), null);
+      normality.andersonDarling = ad && { a2: ad.a2, p: ad.p };
+    }
+  }
+
+  // 6. Advice
+  const advice = adviseMethod({
+    n,
+    nonparametric,
+    parametric: parametric.mean === null ? null : parametric,
+    robust: robust.lower === null && robust.upper === null ? null : robust,
+    normalityP: normality.shapiroWilk?.p ?? normality.andersonDarling?.p ?? null,
+  });
+  return {
+    n,
+    excluded,
+    nonparametric,
+    parametric,
+    robust,
+    normality,
+    recommended: advice.recommended,
+    warnings: [...warnings, ...advice.warnings],
+  };
+}

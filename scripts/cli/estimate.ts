@@ -1,0 +1,135 @@
+/**
+ * `bellwether estimate FILE [--outliers none|dixon|tukey|horn] [--transform auto|none|ln|box-cox] [--seed N]`
+ * Reads a CSV with a header row and a `value` column (other columns are ignored) and prints
+ * the estimate document as JSON.
+ */
+import { readFile } from "node:fs/promises";
+import Papa from "papaparse";
+import {
+  estimateReferenceInterval,
+  OUTLIER_OPTIONS,
+  TRANSFORM_OPTIONS,
+  DEFAULT_SEED,
+  type OutlierOption,
+  type TransformOption,
+} from "../../lib/stats/estimate";
+import { StatsInputError } from "../../lib/stats/validate";
+import { CliError } from "./cli-error";
+
+interface Parsed {
+  file: string;
+  outliers: OutlierOption;
+  transform: TransformOption;
+  seed: number;
+}
+
+function parseArgs(args: string[]): Parsed {
+  let file: string | null = null;
+  let outliers: OutlierOption = "horn";
+  let transform: TransformOption = "auto";
+  let seed = DEFAULT_SEED;
+  for (let i = 0; i < args.length; i++) {
+    const a = args[i];
+    const eq = a.startsWith("--") ? a.indexOf("=") : -1;
+    const flag = eq > 0 ? a.slice(0, eq) : a;
+    const inline = eq > 0 ? a.slice(eq + 1) : undefined;
+    const value = () => {
+      const v = inline ?? args[++i];
+      if (v === undefined) throw new CliError(`${flag} needs a value`);
+      return v;
+    };
+    if (flag === "--outliers") {
+      const v = value();
+      if (!(OUTLIER_OPTIONS as readonly string[]).includes(v)) {
+        throw new CliError(`--outliers must be one of ${OUTLIER_OPTIONS.join(", ")} (got "${v}")`);
+      }
+      outliers = v as OutlierOption;
+    } else if (flag === "--transform") {
+      const v = value();
+      if (!(TRANSFORM_OPTIONS as readonly string[]).includes(v)) {
+        throw new CliError(`--transform must be one of ${TRANSFORM_OPTIONS.join(", ")} (got "${v}")`);
+      }
+      transform = v as TransformOption;
+    } else if (flag === "--seed") {
+      const v = value();
+      if (!/^-?\d+$/.test(v) || !Number.isSafeInteger(Number(v))) {
+        throw new CliError(`--seed must be an integer (got "${v}")`);
+      }
+      seed = Number(v);
+    } else if (flag.startsWith("--")) {
+      throw new CliError(`unknown option ${flag}`);
+    } else if (file === null) {
+      file = a;
+    } else {
+      throw new CliError(`only one FILE may be given (got "${file}" and "${a}")`);
+    }
+  }
+  if (file === null) throw new CliError("estimate needs a CSV FILE with a value column");
+  return { file, outliers, transform, seed };
+}
+
+/** Values of the `value` column, with 1-based file line numbers in the error messages. */
+export function readValues(text: string, file: string): number[] {
+  const body = text.replace(/^\uFEFF/, "");
+  if (body.trim() === "") throw new CliError(`${file} is empty`);
+  const parsed = Papa.parse<Record<string, string>>(body, {
+    header: true,
+    skipEmptyLines: "greedy",
+    transformHeader: (h) => h.trim(),
+  });
+  const fields = parsed.meta.fields ?? [];
+  const column = fields.find((f) => f.toLowerCase() === "value");
+  if (column === undefined) {
+    throw new CliError(`${file} has no "value" column (columns: ${fields.join(", ") || "none"})`);
+  }
+  // Ragged rows are tolerated (a short row shows up below as a missing value), and so is a
+  // one-column file (no delimiter to detect); quoting errors are not.
+  const broken = parsed.errors.find(
+    (e) => e.type !== "FieldMismatch" && e.code !== "UndetectableDelimiter",
+  );
+  if (broken) {
+    throw new CliError(`${file}: CSV error near data row ${(broken.row ?? 0) + 1}: ${broken.message}`);
+  }
+  const values: number[] = [];
+  // File line numbers: the header is line 1; blank lines the parser skipped are counted back.
+  const lines = body.split(/\r\n|\n|\r/);
+  let line = 1;
+  for (const row of parsed.data) {
+    line++;
+    while (line <= lines.length && lines[line - 1].trim() === "") line++;
+    const raw = (row[column] ?? "").trim();
+    const v = raw === "" ? Number.NaN : Number(raw);
+    if (!Number.isFinite(v)) {
+      throw new CliError(`${file} line ${line}: value "${raw}" is not a number`);
+    }
+    values.push(v);
+  }
+  if (values.length === 0) throw new CliError(`${file} has a header but no values`);
+  return values;
+}
+
+export async function run(args: string[]): Promise<number> {
+  const opts = parseArgs(args);
+  let text: string;
+  try {
+    text = await readFile(opts.file, "utf8");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new CliError(
+      code === "ENOENT" ? `${opts.file}: no such file` : `${opts.file}: cannot read (${code ?? String(e)})`,
+    );
+  }
+  const values = readValues(text, opts.file);
+  try {
+    const doc = estimateReferenceInterval(values, {
+      outliers: opts.outliers,
+      transform: opts.transform,
+      seed: opts.seed,
+    });
+    process.stdout.write(`${JSON.stringify(doc, null, 2)}\n`);
+    return 0;
+  } catch (e) {
+    if (e instanceof StatsInputError) throw new CliError(e.message);
+    throw e;
+  }
+}
