@@ -68,42 +68,66 @@ export function boxCoxInverse(y: number | readonly number[], lambda: number): nu
 }
 
 /**
- * Profile log-likelihood from precomputed logarithms ln x[from..to), without input checks.
- * The transformed values are accumulated about a shift (the middle value) in one pass, which
- * avoids cancellation without storing them.
+ * Sorted logarithms with tie counts: laboratory values are reported at a fixed resolution, so
+ * a large sample holds far fewer distinct values than values, and the likelihood need only
+ * visit each distinct value once.
  */
-export function boxCoxLogLikFromLogs(
-  logs: ArrayLike<number>,
+export interface LogTable {
+  /** Distinct ln x, ascending. */
+  logs: Float64Array;
+  /** How many values share each; null when all counts are 1. */
+  counts: Float64Array | null;
+}
+
+/**
+ * The log table of values sorted ascending (all positive; not re-checked). O(n).
+ */
+export function logTableOfSorted(sorted: ArrayLike<number>): LogTable {
+  const len = sorted.length;
+  let distinct = len > 0 ? 1 : 0;
+  for (let i = 1; i < len; i++) if (sorted[i] !== sorted[i - 1]) distinct++;
+  const logs = new Float64Array(distinct);
+  if (distinct === len) {
+    for (let i = 0; i < len; i++) logs[i] = Math.log(sorted[i]);
+    return { logs, counts: null };
+  }
+  const counts = new Float64Array(distinct);
+  let j = -1;
+  for (let i = 0; i < len; i++) {
+    if (i === 0 || sorted[i] !== sorted[i - 1]) logs[++j] = Math.log(sorted[i]);
+    counts[j]++;
+  }
+  return { logs, counts };
+}
+
+/**
+ * Profile log-likelihood over the rows [from, to) of a log table, without input checks. The
+ * transformed values are accumulated about a shift (the middle row) in one pass, which avoids
+ * cancellation without storing them.
+ */
+export function boxCoxLogLikFromTable(
+  table: LogTable,
   lambda: number,
   from = 0,
-  to = logs.length,
-  sumLog?: number,
+  to = table.logs.length,
 ): number {
-  const len = to - from;
-  const mid = logs[from + (len >> 1)];
-  let shift: number;
+  const { logs, counts } = table;
+  const mid = logs[from + ((to - from) >> 1)];
+  const shift = lambda === 0 ? mid : Math.expm1(lambda * mid) / lambda;
+  let w = 0;
   let s1 = 0;
   let s2 = 0;
   let sl = 0;
-  if (lambda === 0) {
-    shift = mid;
-    for (let i = from; i < to; i++) {
-      const d = logs[i] - shift;
-      s1 += d;
-      s2 += d * d;
-      sl += logs[i];
-    }
-  } else {
-    shift = Math.expm1(lambda * mid) / lambda;
-    for (let i = from; i < to; i++) {
-      const d = Math.expm1(lambda * logs[i]) / lambda - shift;
-      s1 += d;
-      s2 += d * d;
-      sl += logs[i];
-    }
+  for (let i = from; i < to; i++) {
+    const c = counts === null ? 1 : counts[i];
+    const d = (lambda === 0 ? logs[i] : Math.expm1(lambda * logs[i]) / lambda) - shift;
+    w += c;
+    s1 += c * d;
+    s2 += c * d * d;
+    sl += c * logs[i];
   }
-  const variance = (s2 - (s1 * s1) / len) / len;
-  return -(len / 2) * Math.log(variance) + (lambda - 1) * (sumLog ?? sl);
+  const variance = (s2 - (s1 * s1) / w) / w;
+  return -(w / 2) * Math.log(variance) + (lambda - 1) * sl;
 }
 
 /**
@@ -120,7 +144,7 @@ export function boxCoxLogLik(x: readonly number[], lambda: number): number {
   assertPositiveSample(x);
   assertFiniteNumber(lambda, "lambda");
   assertNotConstant(x);
-  return boxCoxLogLikFromLogs(x.map(Math.log), lambda);
+  return boxCoxLogLikFromTable({ logs: Float64Array.from(x, Math.log), counts: null }, lambda);
 }
 
 function assertNotConstant(x: readonly number[]): void {
@@ -137,19 +161,17 @@ export interface BoxCoxFit {
 }
 
 /**
- * λ̂ from logarithms ln x[from..to), without input checks: a grid at steps of 1 finds the
- * best region, then Brent's method refines it to about 1e−8.
+ * λ̂ over the rows [from, to) of a log table, without input checks: a grid at steps of about
+ * 1 finds the best region, then Brent's method refines it to about 1e−8.
  */
-export function boxCoxFitFromLogs(
-  logs: ArrayLike<number>,
+export function boxCoxFitFromTable(
+  table: LogTable,
   from = 0,
-  to = logs.length,
+  to = table.logs.length,
   lower = -3,
   upper = 3,
 ): BoxCoxFit {
-  let sumLog = 0;
-  for (let i = from; i < to; i++) sumLog += logs[i];
-  const f = (l: number) => boxCoxLogLikFromLogs(logs, l, from, to, sumLog);
+  const f = (l: number) => boxCoxLogLikFromTable(table, l, from, to);
   const steps = Math.max(2, Math.ceil(upper - lower));
   let best = lower;
   let bestF = -Infinity;
@@ -208,5 +230,6 @@ export function boxCoxFit(x: readonly number[], lower = -3, upper = 3): BoxCoxFi
   assertFiniteNumber(upper, "upper");
   if (!(lower < upper)) throw new StatsInputError(`the λ search interval needs lower < upper`);
   assertNotConstant(x);
-  return boxCoxFitFromLogs(x.map(Math.log), 0, x.length, lower, upper);
+  const table = logTableOfSorted(Float64Array.from(x).sort());
+  return boxCoxFitFromTable(table, 0, table.logs.length, lower, upper);
 }

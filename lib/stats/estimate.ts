@@ -4,11 +4,12 @@
  * is the document stored with an estimate and printed by `bellwether estimate`.
  */
 import { andersonDarling } from "./anderson-darling";
-import { boxCoxFitFromLogs } from "./box-cox";
+import { boxCoxFitFromTable, logTableOfSorted } from "./box-cox";
+import { skewness } from "./descriptive";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
 import { dixonReedOutliers } from "./outliers-dixon";
-import { hornOutliers } from "./outliers-horn";
+import { hornScreenSorted } from "./outliers-horn";
 import { tukeyOutliers } from "./outliers-tukey";
 import type { OutlierProposal } from "./outliers";
 import { parametricFromScale, type Transform } from "./parametric";
@@ -92,8 +93,10 @@ function tryOr<T>(f: () => T, fallback: T): T {
  * 1. Outliers: the chosen screen (Horn by default; Tukey on the raw scale when a value is not
  *    positive) proposes values; they are excluded here and listed in `excluded`.
  * 2. Scale ("auto"): among raw, ln and Box-Cox (the last two only when every value is
- *    positive), the one on which the data look most Gaussian: the highest Shapiro-Wilk W,
- *    or the lowest Anderson-Darling A² above 5000 values; ties go to the simpler scale.
+ *    positive), the one on which the data look most Gaussian: the highest Shapiro-Wilk W up
+ *    to 5000 values; above that, where every test rejects trivial departures and Shapiro-Wilk
+ *    is undefined, the least skewed (smallest |g1|), symmetry being what the transformation
+ *    is for. Ties go to the simpler scale.
  * 3. Nonparametric limits on the raw values (rank p(n + 1)), CIs from binomial ranks (n ≥ 119)
  *    or a seeded bootstrap (39–118, said in `warnings`).
  * 4. Parametric limits on the chosen scale; robust limits on the same scale for 20–119 values.
@@ -127,59 +130,75 @@ export function estimateReferenceInterval(
   let allPositive = true;
   for (let i = 0; i < values.length; i++) if (values[i] <= 0) allPositive = false;
 
-  // 1. Outliers
+  // 1. Outliers. Horn's screen works on the one sort of the data; its kept values are a
+  // contiguous run of it.
   let proposals: OutlierProposal[] = [];
   let hornLambda: number | null = null;
-  if (outlierOption === "dixon") proposals = dixonReedOutliers(values).outliers;
-  else if (outlierOption === "tukey") proposals = tukeyOutliers(values).outliers;
-  else if (outlierOption === "horn") {
-    if (allPositive && values.length >= 4) {
-      const h = hornOutliers(values);
-      proposals = h.outliers;
-      if (h.converged) hornLambda = h.lambda;
-      else warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
-    } else if (values.length >= 4) {
+  let sortedKept: Float64Array | null = null;
+  let excluded: Exclusion[] = [];
+  if (outlierOption === "horn" && allPositive && values.length >= 4) {
+    const all = Float64Array.from(values).sort();
+    const h = hornScreenSorted(all);
+    sortedKept = all.subarray(h.from, h.to);
+    const keptMin = all[h.from];
+    const keptMax = all[h.to - 1];
+    for (let i = 0; i < values.length; i++) {
+      if (values[i] < keptMin || values[i] > keptMax) excluded.push({ value: values[i], reason: "horn" });
+    }
+    if (h.converged) hornLambda = h.lambda;
+    else warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
+  } else {
+    if (outlierOption === "dixon") proposals = dixonReedOutliers(values).outliers;
+    else if (outlierOption === "tukey") proposals = tukeyOutliers(values).outliers;
+    else if (outlierOption === "horn" && values.length >= 4) {
       proposals = tukeyOutliers(values).outliers;
       warnings.push("Horn's method needs positive values; Tukey fences on the raw scale were used instead.");
     }
+    const excludedIdx = new Uint8Array(values.length);
+    for (const p of proposals) excludedIdx[p.index] = 1;
+    excluded = proposals
+      .slice()
+      .sort((a, b) => a.index - b.index)
+      .map((p) => ({ value: p.value, reason: p.method }));
+    const kept = new Float64Array(values.length - proposals.length);
+    for (let i = 0, j = 0; i < values.length; i++) if (!excludedIdx[i]) kept[j++] = values[i];
+    sortedKept = kept.sort();
   }
-  const excludedIdx = new Uint8Array(values.length);
-  for (const p of proposals) excludedIdx[p.index] = 1;
-  const excluded: Exclusion[] = proposals
-    .slice()
-    .sort((a, b) => a.index - b.index)
-    .map((p) => ({ value: p.value, reason: p.method }));
-  const kept = new Float64Array(values.length - proposals.length);
-  for (let i = 0, j = 0; i < values.length; i++) if (!excludedIdx[i]) kept[j++] = values[i];
-  const sorted = Array.from(kept.sort());
+  const sorted = Array.from(sortedKept);
   const n = sorted.length;
   const distinct = n >= 2 && sorted[n - 1] > sorted[0];
 
   // 2. Scale
-  const logs = allPositive && n > 0 ? Float64Array.from(sorted, Math.log) : null;
+  let logs: Float64Array | null = null;
+  if (allPositive && n > 0) {
+    // A plain loop: TypedArray.from with a map function is many times slower.
+    logs = new Float64Array(n);
+    for (let i = 0; i < n; i++) logs[i] = Math.log(sorted[i]);
+  }
   let lambda: number | null = null;
   const needBoxCox = transformOption === "box-cox" || (transformOption === "auto" && allPositive);
   if ((transformOption === "ln" || transformOption === "box-cox") && !allPositive) {
     throw new StatsInputError(`transform "${transformOption}" needs every value to be positive`);
   }
   if (needBoxCox && distinct && logs) {
-    lambda = hornLambda ?? boxCoxFitFromLogs(logs, 0, n).lambda;
+    lambda = hornLambda ?? boxCoxFitFromTable(logTableOfSorted(sorted)).lambda;
     if (Math.abs(lambda) === 3) warnings.push(`The Box-Cox λ reached the edge of its search range (${lambda}).`);
   }
   let transform: Transform = transformOption === "auto" ? "none" : transformOption;
   let y: number[] | null = null;
+  let shapiro: { w: number; p: number } | null = null;
   if (transformOption === "auto" && distinct && n >= 3) {
     const candidates: Transform[] = allPositive && lambda !== null ? ["none", "ln", "box-cox"] : ["none"];
     let best = -Infinity;
     for (const c of candidates) {
       const yc = scaleOf(sorted, logs, c, c === "box-cox" ? lambda : null);
-      const score = n <= SHAPIRO_MAX_N
-        ? tryOr(() => shapiroWilk(yc).w, -Infinity)
-        : tryOr(() => -andersonDarling(yc).a2, -Infinity);
+      const sw = n <= SHAPIRO_MAX_N ? tryOr(() => shapiroWilk(yc), null) : null;
+      const score = n <= SHAPIRO_MAX_N ? (sw?.w ?? -Infinity) : -Math.abs(tryOr(() => skewness(yc), Infinity));
       if (score > best) {
         best = score;
         transform = c;
         y = yc;
+        shapiro = sw;
       }
     }
   }
@@ -219,7 +238,7 @@ export function estimateReferenceInterval(
   const normality: NormalitySection = { shapiroWilk: null, andersonDarling: null };
   if (y !== null && distinct) {
     const yy = y;
-    if (n >= 3 && n <= SHAPIRO_MAX_N) normality.shapiroWilk = tryOr(() => shapiroWilk(yy), null);
+    if (n >= 3 && n <= SHAPIRO_MAX_N) normality.shapiroWilk = shapiro ?? tryOr(() => shapiroWilk(yy), null);
     if (n >= 8) {
       const ad = tryOr(() => andersonDarling(yy), null);
       normality.andersonDarling = ad && { a2: ad.a2, p: ad.p };

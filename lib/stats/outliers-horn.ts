@@ -2,9 +2,8 @@
  * Horn's outlier screen for reference values: Box-Cox transformation to symmetry, then Tukey's
  * fences on the transformed scale, repeated until nothing more is flagged.
  */
-import { boxCoxFitFromLogs } from "./box-cox";
-import { orderOf, type OutlierProposal } from "./outliers";
-import { valueAtRank } from "./quantile";
+import { boxCoxFitFromTable, logTableOfSorted, type LogTable } from "./box-cox";
+import type { OutlierProposal } from "./outliers";
 import { assertPositiveSample, StatsInputError } from "./validate";
 
 /** Rounds of re-estimation before giving up; each round usually flags far fewer values. */
@@ -32,88 +31,140 @@ export interface HornOptions {
  * Tukey fences Q1 − 1.5·IQR, Q3 + 1.5·IQR of the transformed values, propose every value
  * outside them, then re-estimate λ on the values kept and repeat, at most `maxIterations`
  * (10) rounds. Because the transform is increasing, the values kept are always a contiguous
- * run of the sorted data, so each round costs one λ search and no copying.
+ * run of the sorted data, so each round costs one λ search (over the distinct values) and
+ * no copying. The values reported are exactly those outside the final kept run.
  * @see Horn PS, Feng L, Li Y, Pesce AJ. Effect of outliers and nonhealthy individuals on
  *   reference interval estimation. Clin Chem 2001;47:2137–2145; Tukey JW. Exploratory Data
  *   Analysis, 1977; Box GEP, Cox DR. J R Stat Soc B 1964;26:211–252.
- * Complexity O(n log n) for the sort, then O(n) per likelihood evaluation (≈ 20 per round).
+ * Complexity O(n log n) for the sort, then O(d) per likelihood evaluation (d distinct values,
+ *   ≈ 20 evaluations per round).
  * Throws StatsInputError on fewer than 4 values, a non-positive or non-finite value, or a
  *   bad k.
  * @example hornOutliers([...eightyHealthyValues, 900]).outliers.some((o) => o.value === 900) // true
  */
 export function hornOutliers(values: readonly number[], options: HornOptions = {}): HornResult {
   assertPositiveSample(values);
-  if (values.length < 4) {
-    throw new StatsInputError(`Horn's method needs at least 4 values (got ${values.length})`);
+  const screen = hornScreenSorted(Float64Array.from(values).sort(), options);
+  const { rounds } = screen;
+  const outliers: OutlierProposal[] = [];
+  if (rounds.length > 0) {
+    const last = rounds[rounds.length - 1];
+    for (let i = 0; i < values.length; i++) {
+      const v = values[i];
+      if (v >= last.keptMin && v <= last.keptMax) continue;
+      const low = v < last.keptMin;
+      const r = rounds.findIndex((rd) => (low ? v < rd.keptMin : v > rd.keptMax));
+      const rd = rounds[r];
+      const y = rd.lambda === 0 ? Math.log(v) : Math.expm1(rd.lambda * Math.log(v)) / rd.lambda;
+      const fence = low ? rd.lowerFence : rd.upperFence;
+      outliers.push({
+        index: i,
+        value: v,
+        method: "horn",
+        reason:
+          `Box-Cox value ${y.toPrecision(6)} (λ = ${rd.lambda.toFixed(4)}) is ` +
+          `${low ? "below the lower" : "above the upper"} fence ${fence.toPrecision(6)} (round ${r + 1})`,
+      });
+    }
+  }
+  const { lambda, lowerFence, upperFence, iterations, converged } = screen;
+  return { outliers, lambda, lowerFence, upperFence, iterations, converged };
+}
+
+export interface HornRound {
+  lambda: number;
+  lowerFence: number;
+  upperFence: number;
+  /** Smallest and largest value kept after the round. */
+  keptMin: number;
+  keptMax: number;
+}
+
+export interface HornScreen {
+  /** The values kept are sorted[from..to). */
+  from: number;
+  to: number;
+  rounds: HornRound[];
+  lambda: number;
+  lowerFence: number;
+  upperFence: number;
+  iterations: number;
+  converged: boolean;
+}
+
+/**
+ * Horn's screen on positive values already sorted ascending (not re-checked), for callers that
+ * have sorted once: returns the kept run sorted[from..to) and each round, instead of proposals.
+ * @see {@link hornOutliers}
+ * Complexity O(d) per likelihood evaluation, d distinct values; no sort.
+ * Throws StatsInputError on fewer than 4 values or a bad k.
+ * @example hornScreenSorted(Float64Array.from(values).sort()).to
+ */
+export function hornScreenSorted(sorted: Float64Array, options: HornOptions = {}): HornScreen {
+  if (sorted.length < 4) {
+    throw new StatsInputError(`Horn's method needs at least 4 values (got ${sorted.length})`);
   }
   const k = options.k ?? 1.5;
   if (!(k > 0)) throw new StatsInputError(`the fence multiplier k must be positive (got ${k})`);
   const maxIterations = options.maxIterations ?? HORN_MAX_ITERATIONS;
-  const order = orderOf(values);
-  const logs = Float64Array.from(order, (i) => Math.log(values[i]));
+  const table = logTableOfSorted(sorted);
 
+  // Kept values: sorted[lo..hi) of the data, and rows [uLo, uHi) of the table of distinct values.
   let lo = 0;
-  let hi = values.length;
+  let hi = sorted.length;
+  let uLo = 0;
+  let uHi = table.logs.length;
   let lambda = 1;
   let lowerFence = -Infinity;
   let upperFence = Infinity;
   let iterations = 0;
   let converged = false;
-  const outliers: OutlierProposal[] = [];
+  const rounds: HornRound[] = [];
 
   while (iterations < maxIterations) {
-    if (hi - lo < 4 || logs[hi - 1] === logs[lo]) {
+    if (uHi - uLo < 2 || hi - lo < 4) {
       converged = true;
       break;
     }
     iterations++;
-    lambda = fitLambda(logs, lo, hi, iterations === 1 ? null : lambda);
+    lambda = fitLambda(table, uLo, uHi, iterations === 1 ? null : lambda);
     const l = lambda;
-    const t = (j: number) => (l === 0 ? logs[j] : Math.expm1(l * logs[j]) / l);
-    const m = hi - lo;
-    const view = { length: m } as { length: number; [i: number]: number };
-    // The quartiles need the transformed values at four positions only.
-    const q = (p: number) => {
-      const r = 1 + p * (m - 1);
+    const t = (v: number) => (l === 0 ? Math.log(v) : Math.expm1(l * Math.log(v)) / l);
+    // Type-7 quartiles of the transformed kept values: the transform is increasing, so they
+    // interpolate between the transforms of two neighbouring sorted values.
+    const quartile = (p: number) => {
+      const r = p * (hi - lo - 1);
       const a = Math.floor(r);
-      view[a - 1] = t(lo + a - 1);
-      if (a < m) view[a] = t(lo + a);
-      return valueAtRank(view, r) as number;
+      const f = r - a;
+      const ya = t(sorted[lo + a]);
+      return f === 0 ? ya : ya + f * (t(sorted[lo + a + 1]) - ya);
     };
-    const q1 = q(0.25);
-    const q3 = q(0.75);
+    const q1 = quartile(0.25);
+    const q3 = quartile(0.75);
     lowerFence = q1 - k * (q3 - q1);
     upperFence = q3 + k * (q3 - q1);
-    const round = iterations;
-    const before = outliers.length;
-    const flag = (j: number, side: string, fence: number) => {
-      outliers.push({
-        index: order[j],
-        value: values[order[j]],
-        method: "horn",
-        reason:
-          `Box-Cox value ${t(j).toPrecision(6)} (λ = ${l.toFixed(4)}) is ${side} ` +
-          `${fence.toPrecision(6)} (round ${round})`,
-      });
-    };
-    while (hi - lo > 0 && t(lo) < lowerFence) flag(lo++, "below the lower fence", lowerFence);
-    while (hi - lo > 0 && t(hi - 1) > upperFence) flag(--hi, "above the upper fence", upperFence);
-    if (outliers.length === before) {
+    const before = hi - lo;
+    while (hi - lo > 0 && t(sorted[lo]) < lowerFence) lo++;
+    while (hi - lo > 0 && t(sorted[hi - 1]) > upperFence) hi--;
+    while (uLo < uHi && table.logs[uLo] < Math.log(sorted[lo])) uLo++;
+    while (uHi > uLo && table.logs[uHi - 1] > Math.log(sorted[hi - 1])) uHi--;
+    rounds.push({ lambda: l, lowerFence, upperFence, keptMin: sorted[lo], keptMax: sorted[hi - 1] });
+    if (hi - lo === before) {
       converged = true;
       break;
     }
   }
-  return { outliers, lambda, lowerFence, upperFence, iterations, converged };
+  return { from: lo, to: hi, rounds, lambda, lowerFence, upperFence, iterations, converged };
 }
 
-/** λ̂ on logs[lo..hi); after the first round a narrow bracket around the last λ̂ suffices. */
-function fitLambda(logs: Float64Array, lo: number, hi: number, previous: number | null): number {
+/** λ̂ on table rows [lo, hi); after the first round a narrow bracket around the last λ̂ suffices. */
+function fitLambda(table: LogTable, lo: number, hi: number, previous: number | null): number {
   if (previous !== null) {
     const a = Math.max(-3, previous - 0.5);
     const b = Math.min(3, previous + 0.5);
-    const near = boxCoxFitFromLogs(logs, lo, hi, a, b);
+    const near = boxCoxFitFromTable(table, lo, hi, a, b);
     const onEdge = (near.lambda === a && a > -3) || (near.lambda === b && b < 3);
     if (!onEdge) return near.lambda;
   }
-  return boxCoxFitFromLogs(logs, lo, hi).lambda;
+  return boxCoxFitFromTable(table, lo, hi).lambda;
 }
