@@ -43,7 +43,9 @@ export async function proxy(request: NextRequest) {
     if (!token) {
       const signIn = new URL("/sign-in", request.url);
       if (pathname !== "/") signIn.searchParams.set("callbackUrl", `${pathname}${search}`);
-      return NextResponse.redirect(signIn);
+      const redirect = NextResponse.redirect(signIn);
+      redirect.headers.set("Content-Security-Policy", "default-src 'none'; frame-ancestors 'none'");
+      return redirect;
     }
   }
 

@@ -5,7 +5,12 @@ import path from "node:path";
 // handlers, and browser tests in Chromium against a served build. scripts/test.sh starts the
 // database and the app before calling vitest, and passes their addresses in the environment.
 export default defineConfig({
-  resolve: { alias: { "@": path.resolve(__dirname) } },
+  resolve: {
+    alias: {
+      "@": path.resolve(__dirname),
+      "server-only": path.resolve(__dirname, "tests/support/server-only.ts"),
+    },
+  },
   test: {
     projects: [
       {

@@ -57,7 +57,7 @@ async function main(): Promise<number> {
     total.failed += t.failed;
     total.skipped += t.skipped;
   };
-  const baseEnv: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "test", NEXT_TELEMETRY_DISABLED: "1" };
+  const baseEnv: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "test", NEXT_TELEMETRY_DISABLED: "1", VITE_CONFIG_NATIVE_IGNORE_WARNING: "true" };
 
   if (suites.includes("unit")) add(runVitest("unit", baseEnv));
 

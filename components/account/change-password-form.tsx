@@ -1,21 +1,21 @@
 "use client";
 
-import { useActionState, useEffect, useRef } from "react";
+import { useEffect, useRef } from "react";
 import { changeOwnPasswordAction } from "@/app/(workspace)/account/actions";
 import { Button } from "@/components/ui/button";
 import { TextField } from "@/components/ui/field";
 import { StatusMessage } from "@/components/ui/status-message";
-import { IDLE_STATE } from "@/lib/auth/action-state";
+import { useFormAction } from "@/components/ui/use-form-action";
 
 export function ChangePasswordForm() {
-  const [state, action, pending] = useActionState(changeOwnPasswordAction, IDLE_STATE);
+  const [state, onSubmit, pending] = useFormAction(changeOwnPasswordAction);
   const form = useRef<HTMLFormElement>(null);
   useEffect(() => {
     if (state.status === "ok") form.current?.reset();
   }, [state]);
   const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
   return (
-    <form ref={form} action={action} className="space-y-3">
+    <form ref={form} onSubmit={onSubmit} className="space-y-3">
       <TextField label="Current password" name="current" type="password" autoComplete="current-password" error={errors.current} />
       <TextField label="New password" name="next" type="password" autoComplete="new-password" error={errors.next} hint="At least 12 characters." />
       <TextField label="New password again" name="confirm" type="password" autoComplete="new-password" error={errors.confirm} />

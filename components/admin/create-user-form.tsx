@@ -1,22 +1,22 @@
 "use client";
 
-import { useActionState, useEffect, useRef } from "react";
+import { useEffect, useRef } from "react";
 import { createUserAction } from "@/app/(admin)/admin/users/actions";
 import { Button } from "@/components/ui/button";
 import { SelectField, TextField } from "@/components/ui/field";
 import { StatusMessage } from "@/components/ui/status-message";
-import { IDLE_STATE } from "@/lib/auth/action-state";
+import { useFormAction } from "@/components/ui/use-form-action";
 import { ROLE_OPTIONS } from "./role-options";
 
 export function CreateUserForm() {
-  const [state, action, pending] = useActionState(createUserAction, IDLE_STATE);
+  const [state, onSubmit, pending] = useFormAction(createUserAction);
   const form = useRef<HTMLFormElement>(null);
   useEffect(() => {
     if (state.status === "ok") form.current?.reset();
   }, [state]);
   const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
   return (
-    <form ref={form} action={action} className="space-y-3" aria-label="New user">
+    <form ref={form} onSubmit={onSubmit} className="space-y-3" aria-label="New user">
       <TextField label="Full name" name="name" required error={errors.name} />
       <TextField label="E-mail" name="email" type="email" required error={errors.email} />
       <SelectField label="Role" name="role" options={ROLE_OPTIONS} defaultValue="clinician" error={errors.role} />

@@ -1,13 +1,13 @@
 "use client";
 
 import { createColumnHelper } from "@tanstack/react-table";
-import { useActionState, useMemo, useState } from "react";
+import { useMemo, useState } from "react";
 import { changeRoleAction, setActiveAction, setPasswordAction } from "@/app/(admin)/admin/users/actions";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
 import { StatusMessage } from "@/components/ui/status-message";
-import { IDLE_STATE } from "@/lib/auth/action-state";
+import { useFormAction } from "@/components/ui/use-form-action";
 import { ROLE_LABELS, type Role } from "@/lib/auth/roles";
 import { ROLE_OPTIONS } from "./role-options";
 
@@ -23,9 +23,9 @@ export interface UserRow {
 }
 
 function RoleCell({ row }: { row: UserRow }) {
-  const [state, action, pending] = useActionState(changeRoleAction, IDLE_STATE);
+  const [state, onSubmit, pending] = useFormAction(changeRoleAction);
   return (
-    <form action={action} className="flex items-center gap-1.5" aria-label={`Role of ${row.email}`}>
+    <form onSubmit={onSubmit} className="flex items-center gap-1.5" aria-label={`Role of ${row.email}`}>
       <input type="hidden" name="id" value={row.id} />
       <select
         name="role"
@@ -48,8 +48,8 @@ function RoleCell({ row }: { row: UserRow }) {
 }
 
 function AccountCell({ row }: { row: UserRow }) {
-  const [state, action, pending] = useActionState(setActiveAction, IDLE_STATE);
-  const [pwState, pwAction, pwPending] = useActionState(setPasswordAction, IDLE_STATE);
+  const [state, onSubmit, pending] = useFormAction(setActiveAction);
+  const [pwState, onPasswordSubmit, pwPending] = useFormAction(setPasswordAction);
   const [showPassword, setShowPassword] = useState(false);
   return (
     <div className="space-y-1">
@@ -57,7 +57,7 @@ function AccountCell({ row }: { row: UserRow }) {
         {row.isSelf ? (
           <span className="text-xs text-ink-500">(you)</span>
         ) : (
-          <form action={action}>
+          <form onSubmit={onSubmit}>
             <input type="hidden" name="id" value={row.id} />
             <input type="hidden" name="active" value={row.active ? "false" : "true"} />
             <Button
@@ -82,7 +82,7 @@ function AccountCell({ row }: { row: UserRow }) {
         </Button>
       </div>
       {showPassword ? (
-        <form action={pwAction} className="flex items-center gap-1.5">
+        <form onSubmit={onPasswordSubmit} className="flex items-center gap-1.5">
           <input type="hidden" name="id" value={row.id} />
           <input
             type="password"

@@ -1,13 +1,11 @@
 "use client";
 
 import { signIn } from "next-auth/react";
-import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
 import { Button } from "@/components/ui/button";
 import { TextField } from "@/components/ui/field";
 
 export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
-  const router = useRouter();
   const [error, setError] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
 
@@ -26,8 +24,8 @@ export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
       setError(result?.error && result.error !== "CredentialsSignin" ? result.error : "The e-mail or password is not right.");
       return;
     }
-    router.replace(callbackUrl);
-    router.refresh();
+    // A full navigation, so the next page is rendered on the server with the new session.
+    window.location.assign(callbackUrl);
   }
 
   return (
@@ -35,7 +33,7 @@ export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
       <TextField label="E-mail" name="email" type="email" autoComplete="username" required autoFocus />
       <TextField label="Password" name="password" type="password" autoComplete="current-password" required />
       {error ? (
-        <p role="alert" className="rounded-md bg-red-50 px-3 py-2 text-sm text-signal-high">
+        <p role="alert" data-testid="sign-in-error" className="rounded-md bg-red-50 px-3 py-2 text-sm text-signal-high">
           {error}
         </p>
       ) : null}

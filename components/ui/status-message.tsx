@@ -5,7 +5,7 @@ export function StatusMessage({ state }: { state: { status: string; message?: st
   return (
     <p
       role={ok ? "status" : "alert"}
-      className={`rounded-md px-3 py-2 text-sm ${ok ? "bg-tide-50 text-tide-700" : "bg-red-50 text-signal-high"}`}
+      className={`break-words rounded-md px-3 py-2 text-sm ${ok ? "bg-tide-50 text-tide-700" : "bg-red-50 text-signal-high"}`}
     >
       {state.message}
     </p>

@@ -28,7 +28,7 @@ export default async function UsersPage() {
         title="Users"
         lead="Who may use Bellwether and in which role. Deactivating an account ends its sessions at once; accounts are never deleted, so the audit trail keeps its names."
       />
-      <div className="grid gap-5 xl:grid-cols-[1fr_20rem]">
+      <div className="grid items-start gap-5 2xl:grid-cols-[1fr_20rem]">
         <Panel title={`${rows.length} users`}>
           <UsersTable rows={rows} />
         </Panel>

@@ -1,0 +1,83 @@
+import type { Browser } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { navigationFor } from "@/lib/auth/navigation";
+import { ROLES } from "@/lib/auth/roles";
+import { demoUser } from "../support/demo-users";
+import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+
+let browser: Browser;
+beforeAll(async () => {
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+});
+
+describe("signing in as each role", () => {
+  for (const role of ROLES) {
+    it(`${role} signs in and sees the navigation of the role`, async () => {
+      const { context, page } = await newPage(browser);
+      const user = demoUser(role);
+      await signIn(page, user.email, user.password);
+      await page.waitForURL("/");
+      expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe(`Welcome, ${user.name}`);
+      const nav = page.getByRole("navigation", { name: "Main" });
+      const labels = (await nav.getByRole("link").allTextContents()).map((t) => t.trim());
+      expect(labels).toEqual(navigationFor(role).map((i) => i.label));
+      expect(await page.getByTestId("signed-in-as").textContent()).toContain(user.name);
+      expect(await page.locator("footer").textContent()).toContain("supports and does not replace the laboratory's licensed direction");
+      await screenshot(page, `overview-${role}`);
+      await context.close();
+    });
+  }
+});
+
+describe("keeping people out", () => {
+  it("sends an anonymous visitor to sign-in, and back after signing in", async () => {
+    const { context, page } = await newPage(browser);
+    await page.goto("/audit");
+    await page.waitForURL(/\/sign-in\?callbackUrl=%2Faudit$/);
+    expect(await page.locator("footer").textContent()).toContain("licensed direction");
+    await screenshot(page, "sign-in");
+    const director = demoUser("director");
+    await signIn(page, director.email, director.password);
+    await page.waitForURL("/audit");
+    expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe("Audit trail");
+    await context.close();
+  });
+
+  it("refuses a clinician who opens the admin users page by its address", async () => {
+    const { context, page } = await newPage(browser);
+    const clinician = demoUser("clinician");
+    await signIn(page, clinician.email, clinician.password);
+    await page.waitForURL("/");
+    const response = await page.goto("/admin/users");
+    expect(response?.status()).toBe(403);
+    expect(await page.getByTestId("forbidden").textContent()).toContain("Not available to your role");
+    expect(await page.getByRole("table").count()).toBe(0);
+    await screenshot(page, "forbidden-clinician");
+    await context.close();
+  });
+
+  it("says plainly when the password is wrong, and stays on sign-in", async () => {
+    const { context, page } = await newPage(browser);
+    await signIn(page, demoUser("scientist").email, "not-the-password");
+    const error = page.getByTestId("sign-in-error");
+    await error.waitFor();
+    expect(await error.textContent()).toBe("The e-mail or password is not right.");
+    expect(new URL(page.url()).pathname).toBe("/sign-in");
+    await context.close();
+  });
+
+  it("signs out: the session ends and pages send the person back to sign-in", async () => {
+    const { context, page } = await newPage(browser);
+    const scientist = demoUser("scientist");
+    await signIn(page, scientist.email, scientist.password);
+    await page.waitForURL("/");
+    await page.getByTestId("signed-in-as").getByRole("button", { name: "Sign out" }).click();
+    await page.waitForURL(/\/sign-in/);
+    await page.goto("/account");
+    await page.waitForURL(/\/sign-in\?callbackUrl=%2Faccount$/);
+    await context.close();
+  });
+});

@@ -1,0 +1,78 @@
+import { describe, expect, it } from "vitest";
+import { AppError } from "@/lib/api/errors";
+import { authorize, type Caller } from "@/lib/auth/authorize";
+import { navigationFor } from "@/lib/auth/navigation";
+import { PERMISSIONS, ROLES, type Permission, type Role } from "@/lib/auth/roles";
+
+const caller = (role: Role, active = true): Caller => ({
+  kind: "user",
+  id: "00000000-0000-4000-8000-000000000001",
+  email: `${role}@example.test`,
+  name: role,
+  role,
+  active,
+});
+
+function codeOf(fn: () => unknown): string | null {
+  try {
+    fn();
+    return null;
+  } catch (err) {
+    return err instanceof AppError ? err.code : "unexpected";
+  }
+}
+
+// The expected table is DESIGN.md's "Roles" table, written out by hand so that a change to
+// PERMISSIONS that departs from the design shows up here.
+const DESIGN_TABLE: Record<Permission, Role[]> = {
+  "users:manage": ["admin"],
+  "audit:read": ["admin", "director"],
+  "studies:write": ["director", "scientist"],
+  "donors:read": ["director", "scientist"],
+  "versions:sign": ["director"],
+  "intervals:read": ["admin", "director", "scientist", "clinician"],
+  "scores:create": ["admin", "director", "scientist", "clinician"],
+};
+
+describe("authorize", () => {
+  for (const permission of Object.keys(PERMISSIONS) as Permission[]) {
+    for (const role of ROLES) {
+      const allowed = DESIGN_TABLE[permission].includes(role);
+      it(`${role} ${allowed ? "may" : "may not"} ${permission}`, () => {
+        expect(codeOf(() => authorize(caller(role), permission))).toBe(allowed ? null : "forbidden");
+      });
+    }
+  }
+
+  it("refuses an anonymous caller with 401 and a sign-in message", () => {
+    try {
+      authorize(null, "intervals:read");
+      expect.unreachable();
+    } catch (err) {
+      expect(err).toBeInstanceOf(AppError);
+      expect((err as AppError).status).toBe(401);
+      expect((err as AppError).message).toBe("Sign in to continue.");
+    }
+  });
+
+  it("refuses a deactivated user whatever the role, even an administrator", () => {
+    for (const role of ROLES) {
+      expect(codeOf(() => authorize(caller(role, false), "intervals:read"))).toBe("unauthenticated");
+    }
+    expect(() => authorize(caller("admin", false), "users:manage")).toThrow("This account has been deactivated");
+  });
+
+  it("returns the caller when allowed", () => {
+    const c = caller("director");
+    expect(authorize(c, "versions:sign")).toBe(c);
+  });
+});
+
+describe("navigation", () => {
+  it("shows each role only the sections it may use", () => {
+    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/audit", "/account"]);
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/audit", "/account"]);
+    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/account"]);
+    expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
+  });
+});
