@@ -1,7 +1,8 @@
 /**
  * npm test (after scripts/ensure-system.sh): unit tests, then a fresh private PostgreSQL and the
  * served app for the integration and browser tests. Stops what it started, also on failure, and
- * ends with the line "N passed, N failed". `npm test -- unit` (or integration, e2e) runs one suite.
+ * ends with the line "N passed, N failed". The type check and the linter count as one test each.
+ * `npm test -- unit` (or integration, e2e) runs one suite.
  */
 import { spawnSync, type ChildProcess } from "node:child_process";
 import crypto from "node:crypto";
@@ -45,6 +46,14 @@ function runVitest(suite: Suite, env: NodeJS.ProcessEnv): Tally {
   return { passed: json.numPassedTests, failed, skipped: json.numPendingTests + json.numTodoTests };
 }
 
+/** A whole-tree check (types, lint) counted as one test: it passes or fails as a whole. */
+function runCheck(label: string, bin: string, args: string[]): Tally {
+  console.log(`bellwether: ${label}`);
+  const result = spawnSync(path.join(ROOT, "node_modules", ".bin", bin), args, { cwd: ROOT, stdio: "inherit" });
+  if (result.status !== 0) console.error(`bellwether: ${label} failed`);
+  return result.status === 0 ? { passed: 1, failed: 0, skipped: 0 } : { passed: 0, failed: 1, skipped: 0 };
+}
+
 async function main(): Promise<number> {
   const wanted = process.argv.slice(2).filter((a): a is Suite => (SUITES as readonly string[]).includes(a));
   const suites: Suite[] = wanted.length ? wanted : [...SUITES];
@@ -59,7 +68,11 @@ async function main(): Promise<number> {
   };
   const baseEnv: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "test", NEXT_TELEMETRY_DISABLED: "1", VITE_CONFIG_NATIVE_IGNORE_WARNING: "true" };
 
-  if (suites.includes("unit")) add(runVitest("unit", baseEnv));
+  if (suites.includes("unit")) {
+    add(runCheck("typecheck (tsc --noEmit)", "tsc", ["--noEmit", "-p", "."]));
+    add(runCheck("lint (eslint .)", "eslint", ["."]));
+    add(runVitest("unit", baseEnv));
+  }
 
   const needsStack = suites.some((s) => s !== "unit");
   let database: DatabaseHandle | null = null;
