@@ -1,6 +1,5 @@
 "use client";
 
-import { useEffect, useRef } from "react";
 import { changeOwnPasswordAction } from "@/app/(workspace)/account/actions";
 import { Button } from "@/components/ui/button";
 import { TextField } from "@/components/ui/field";
@@ -8,14 +7,10 @@ import { StatusMessage } from "@/components/ui/status-message";
 import { useFormAction } from "@/components/ui/use-form-action";
 
 export function ChangePasswordForm() {
-  const [state, onSubmit, pending] = useFormAction(changeOwnPasswordAction);
-  const form = useRef<HTMLFormElement>(null);
-  useEffect(() => {
-    if (state.status === "ok") form.current?.reset();
-  }, [state]);
+  const [state, onSubmit, pending] = useFormAction(changeOwnPasswordAction, { resetOnSuccess: true });
   const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
   return (
-    <form ref={form} onSubmit={onSubmit} className="space-y-3">
+    <form onSubmit={onSubmit} className="space-y-3">
       <TextField label="Current password" name="current" type="password" autoComplete="current-password" error={errors.current} />
       <TextField label="New password" name="next" type="password" autoComplete="new-password" error={errors.next} hint="At least 12 characters." />
       <TextField label="New password again" name="confirm" type="password" autoComplete="new-password" error={errors.confirm} />

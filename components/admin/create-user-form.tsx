@@ -1,6 +1,5 @@
 "use client";
 
-import { useEffect, useRef } from "react";
 import { createUserAction } from "@/app/(admin)/admin/users/actions";
 import { Button } from "@/components/ui/button";
 import { SelectField, TextField } from "@/components/ui/field";
@@ -9,14 +8,10 @@ import { useFormAction } from "@/components/ui/use-form-action";
 import { ROLE_OPTIONS } from "./role-options";
 
 export function CreateUserForm() {
-  const [state, onSubmit, pending] = useFormAction(createUserAction);
-  const form = useRef<HTMLFormElement>(null);
-  useEffect(() => {
-    if (state.status === "ok") form.current?.reset();
-  }, [state]);
+  const [state, onSubmit, pending] = useFormAction(createUserAction, { resetOnSuccess: true });
   const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
   return (
-    <form ref={form} onSubmit={onSubmit} className="space-y-3" aria-label="New user">
+    <form onSubmit={onSubmit} className="space-y-3" aria-label="New user">
       <TextField label="Full name" name="name" required error={errors.name} />
       <TextField label="E-mail" name="email" type="email" required error={errors.email} />
       <SelectField label="Role" name="role" options={ROLE_OPTIONS} defaultValue="clinician" error={errors.role} />
