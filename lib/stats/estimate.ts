@@ -132,7 +132,6 @@ export function estimateReferenceInterval(
 
   // 1. Outliers. Horn's screen works on the one sort of the data; its kept values are a
   // contiguous run of it.
-  let proposals: OutlierProposal[] = [];
   let hornLambda: number | null = null;
   let sortedKept: Float64Array | null = null;
   let excluded: Exclusion[] = [];
@@ -148,6 +147,7 @@ export function estimateReferenceInterval(
     if (h.converged) hornLambda = h.lambda;
     else warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
   } else {
+    let proposals: OutlierProposal[] = [];
     if (outlierOption === "dixon") proposals = dixonReedOutliers(values).outliers;
     else if (outlierOption === "tukey") proposals = tukeyOutliers(values).outliers;
     else if (outlierOption === "horn" && values.length >= 4) {

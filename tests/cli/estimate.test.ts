@@ -1,17 +1,19 @@
 import { execFile } from "node:child_process";
 import path from "node:path";
 import { promisify } from "node:util";
-import { describe, expect, it } from "vitest";
+import { describe, expect, it, vi } from "vitest";
+import { run as runEstimate } from "@/scripts/cli/estimate";
+import { CliError } from "@/scripts/cli/cli-error";
 
-const run = promisify(execFile);
+const exec = promisify(execFile);
 const ROOT = path.resolve(__dirname, "../..");
-const FIX = (name: string) => path.join("tests/fixtures", name);
+const FIX = (name: string) => path.join(ROOT, "tests/fixtures", name);
 // The binary `npx tsx` resolves to, called directly to spare npx's start-up on every run.
 const TSX = path.join(ROOT, "node_modules/.bin/tsx");
 
 async function cli(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
   try {
-    const { stdout, stderr } = await run(TSX, ["scripts/bellwether.ts", "estimate", ...args], {
+    const { stdout, stderr } = await exec(TSX, ["scripts/bellwether.ts", "estimate", ...args], {
       cwd: ROOT,
     });
     return { code: 0, stdout, stderr };
@@ -21,10 +23,29 @@ async function cli(args: string[]): Promise<{ code: number; stdout: string; stde
   }
 }
 
-describe.concurrent("bellwether estimate", () => {
+/** Runs the command in-process and returns what it printed. */
+async function inProcess(args: string[]): Promise<string> {
+  let out = "";
+  const spy = vi.spyOn(process.stdout, "write").mockImplementation((chunk) => {
+    out += String(chunk);
+    return true;
+  });
+  try {
+    expect(await runEstimate(args)).toBe(0);
+  } finally {
+    spy.mockRestore();
+  }
+  return out;
+}
+
+// Child processes are slow to start on a busy machine: the end-to-end cases are few and run
+// side by side; the many input checks run in-process through the same `run`.
+describe.concurrent("bellwether estimate (as a process)", () => {
   it("prints one JSON document and the same one for the same input and seed", async () => {
-    const a = await cli([FIX("estimate-lognormal-80.csv"), "--seed", "3"]);
-    const b = await cli([FIX("estimate-lognormal-80.csv"), "--seed=3"]);
+    const [a, b] = await Promise.all([
+      cli([FIX("estimate-lognormal-80.csv"), "--seed", "3"]),
+      cli([FIX("estimate-lognormal-80.csv"), "--seed=3"]),
+    ]);
     expect(a.code).toBe(0);
     expect(a.stderr).toBe("");
     expect(a.stdout).toBe(b.stdout);
@@ -32,35 +53,49 @@ describe.concurrent("bellwether estimate", () => {
     expect(doc.n).toBe(80);
     expect(doc.nonparametric.lower).toBeTypeOf("number");
     expect(doc.recommended).toBe("parametric");
-  }, 30_000);
+  }, 60_000);
 
-  it("applies --outliers and --transform", async () => {
-    const r = await cli([FIX("estimate-gaussian-150-outlier.csv"), "--outliers", "dixon", "--transform", "none"]);
-    expect(r.code).toBe(0);
-    const doc = JSON.parse(r.stdout);
+  it("exits 2 with one line on stderr for bad input", async () => {
+    const r = await cli([FIX("estimate-missing-value.csv")]);
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr.trimEnd().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/^bellwether: .*line 3: value "" is not a number\n$/);
+  }, 60_000);
+});
+
+describe("bellwether estimate (in-process)", () => {
+  it("applies --outliers and --transform and ignores other columns", async () => {
+    const doc = JSON.parse(
+      await inProcess([FIX("estimate-gaussian-150-outlier.csv"), "--outliers", "dixon", "--transform", "none"]),
+    );
     expect(doc.excluded).toEqual([{ value: 46, reason: "dixon" }]);
     expect(doc.n).toBe(149);
     expect(doc.parametric.transform).toBe("none");
     expect(doc.nonparametric.lowerCi).toHaveLength(2);
     expect(doc.recommended).toBe("nonparametric");
-  }, 30_000);
+  });
+
+  it("gives the same document in-process as the same seed twice", async () => {
+    const args = [FIX("estimate-lognormal-80.csv"), "--seed", "5"];
+    expect(await inProcess(args)).toBe(await inProcess(args));
+  });
 
   const bad: [string, string[], RegExp][] = [
-    ["a missing value column", [FIX("estimate-no-value-column.csv")], /no "value" column/],
+    ["a missing value column", [FIX("estimate-no-value-column.csv")], /no "value" column \(columns: donor, result\)/],
     ["a non-numeric value, with its line", [FIX("estimate-missing-value.csv")], /line 3: value "" is not a number/],
     ["an empty file", [FIX("estimate-empty.csv")], /is empty/],
     ["a missing file", [FIX("no-such-file.csv")], /no such file/],
     ["an unknown option value", [FIX("estimate-lognormal-80.csv"), "--transform", "sqrt"], /--transform must be one of/],
+    ["an unknown option", [FIX("estimate-lognormal-80.csv"), "--bins", "3"], /unknown option --bins/],
     ["a bad seed", [FIX("estimate-lognormal-80.csv"), "--seed", "x"], /--seed must be an integer/],
     ["no file", [], /needs a CSV FILE/],
   ];
   for (const [label, args, message] of bad) {
-    it(`exits 2 with one line on stderr for ${label}`, async () => {
-      const r = await cli(args);
-      expect(r.code).toBe(2);
-      expect(r.stdout).toBe("");
-      expect(r.stderr.trimEnd().split("\n")).toHaveLength(1);
-      expect(r.stderr).toMatch(message);
-    }, 30_000);
+    it(`throws a CliError for ${label}`, async () => {
+      const p = runEstimate(args);
+      await expect(p).rejects.toBeInstanceOf(CliError);
+      await expect(runEstimate(args)).rejects.toThrow(message);
+    });
   }
 });
