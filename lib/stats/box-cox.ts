@@ -80,7 +80,10 @@ export interface LogTable {
 }
 
 /**
- * The log table of values sorted ascending (all positive; not re-checked). O(n).
+ * The log table of values sorted ascending (all positive; not re-checked).
+ * @see common practice (grouping tied values)
+ * Complexity O(n). Throws nothing.
+ * @example logTableOfSorted([1, 1, Math.E]) // { logs: [0, 1], counts: [2, 1] }
  */
 export function logTableOfSorted(sorted: ArrayLike<number>): LogTable {
   const len = sorted.length;
@@ -104,6 +107,9 @@ export function logTableOfSorted(sorted: ArrayLike<number>): LogTable {
  * Profile log-likelihood over the rows [from, to) of a log table, without input checks. The
  * transformed values are accumulated about a shift (the middle row) in one pass, which avoids
  * cancellation without storing them.
+ * @see Box GEP, Cox DR. J R Stat Soc B 1964;26:211–252.
+ * Complexity O(d) for d rows. Throws nothing; needs two distinct rows for a finite value.
+ * @example boxCoxLogLikFromTable(logTableOfSorted([1, 2, 3, 4, 5, 6, 7, 8, 9, 10]), 1) // -10.55107…
  */
 export function boxCoxLogLikFromTable(
   table: LogTable,
@@ -163,6 +169,9 @@ export interface BoxCoxFit {
 /**
  * λ̂ over the rows [from, to) of a log table, without input checks: a grid at steps of about
  * 1 finds the best region, then Brent's method refines it to about 1e−8.
+ * @see Box GEP, Cox DR. J R Stat Soc B 1964;26:211–252; Brent RP, 1973.
+ * Complexity O(d) per evaluation, about 20–30 evaluations. Throws nothing.
+ * @example boxCoxFitFromTable(logTableOfSorted([1, 2, 3, 4, 5, 6, 7, 8, 9, 10])).lambda // 0.72196…
  */
 export function boxCoxFitFromTable(
   table: LogTable,

@@ -13,7 +13,12 @@ export interface OutlierProposal {
   reason: string;
 }
 
-/** Indices of `values` ordered by value (stable for ties). O(n log n). */
+/**
+ * Indices of `values` ordered by value (ties by index).
+ * @see common practice
+ * Complexity O(n log n). Throws nothing.
+ * @example orderOf([30, 10, 20]) // Uint32Array [1, 2, 0]
+ */
 export function orderOf(values: readonly number[]): Uint32Array {
   const idx = new Uint32Array(values.length);
   for (let i = 0; i < idx.length; i++) idx[i] = i;

@@ -39,8 +39,11 @@ export interface ParametricOptions {
 }
 
 /**
- * The forward map of a scale, applied to one value. Throws StatsInputError for a value the
- * scale cannot take (non-positive on ln or Box-Cox).
+ * The forward map of a scale (raw, ln, Box-Cox with λ) applied to one value.
+ * @see Box GEP, Cox DR. J R Stat Soc B 1964;26:211–252.
+ * Complexity O(1).
+ * Throws StatsInputError for a value the scale cannot take (non-positive on ln or Box-Cox).
+ * @example toScale(Math.E, "ln", null) // 1
  */
 export function toScale(x: number, transform: Transform, lambda: number | null): number {
   if (transform === "none") return x;
@@ -51,7 +54,12 @@ export function toScale(x: number, transform: Transform, lambda: number | null):
   return boxCoxTransform(x, lambda ?? 1);
 }
 
-/** The inverse map of a scale; null where it is undefined (Box-Cox with 1 + λy ≤ 0). */
+/**
+ * The inverse map of a scale; null where it is undefined (Box-Cox with 1 + λy ≤ 0).
+ * @see Box GEP, Cox DR. J R Stat Soc B 1964;26:211–252.
+ * Complexity O(1). Throws StatsInputError on a non-finite y.
+ * @example fromScale(1, "box-cox", -2) // null
+ */
 export function fromScale(y: number, transform: Transform, lambda: number | null): number | null {
   if (transform === "none") return y;
   if (transform === "ln") return Math.exp(y);

@@ -5,8 +5,11 @@
 import { assertFiniteSample, assertOpenProbability, StatsInputError } from "./validate";
 
 /**
- * Throws unless the array is sorted ascending and holds only finite numbers.
+ * Input check: the array is non-empty, finite and sorted ascending.
+ * @see common practice
  * Complexity O(n).
+ * Throws StatsInputError on an empty, unsorted or non-finite array.
+ * @example assertSorted([1, 2, 2, 5]) // passes
  */
 export function assertSorted(sorted: readonly number[], name = "sorted values"): void {
   assertFiniteSample(sorted, name);
@@ -20,7 +23,9 @@ export function assertSorted(sorted: readonly number[], name = "sorted values"):
 /**
  * The value at a fractional 1-based rank r of a sorted array, by linear interpolation between
  * x(⌊r⌋) and x(⌊r⌋ + 1); null when r < 1 or r > n. Does not validate the array.
- * Complexity O(1).
+ * @see Hyndman RJ, Fan Y. Am Stat 1996;50:361–365 (the interpolation shared by types 4–9).
+ * Complexity O(1). Throws nothing.
+ * @example valueAtRank([10, 20, 30], 1.5) // 15
  */
 export function valueAtRank(sorted: ArrayLike<number>, r: number): number | null {
   const len = sorted.length;

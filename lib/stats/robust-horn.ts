@@ -122,7 +122,7 @@ function biweightVariance(x: ArrayLike<number>, centre: number, mad: number, c: 
  * Complexity O(n log n).
  * Throws StatsInputError on fewer than 3 values, a non-finite value, or non-positive tuning
  *   constants.
- * @example robustLimitsOnScale([...twentyValues]) // { location, scale, locationSe, lower, upper }
+ * @example robustLimitsOnScale(sixtySodiumValues) // { location: 139.817, scale: 2.330, locationSe: 0.315, lower: 135.11, upper: 144.52 }
  */
 export function robustLimitsOnScale(
   values: readonly number[],

@@ -40,6 +40,13 @@ describe("boxCoxLambda", () => {
     expect(boxCoxFit(SKEWED).logLik).toBeCloseTo(-9.955163491826, 9);
   });
 
+  it("handles tied values (grouped internally) exactly as R does ungrouped", () => {
+    // R: x <- c(1,1,2,2,2,3,5,5,8,13,13); optimize(ll, c(-3,3), maximum=TRUE, tol=1e-12)
+    const f = boxCoxFit([13, 1, 2, 5, 2, 1, 3, 8, 2, 5, 13]);
+    expect(Math.abs(f.lambda - TIES_LAMBDA)).toBeLessThan(1e-6);
+    expect(f.logLik).toBeCloseTo(TIES_LOGLIK, 9);
+  });
+
   it("reports a maximum on the edge of the search interval", () => {
     // One far value on the right: ℓ keeps rising towards λ = -3. R: sapply(c(-3,-2,0), ll, x)
     // = -3.801069 -4.215096 -5.622701 (the bound is a search limit, not an estimate).
@@ -94,3 +101,7 @@ describe("brentMaximize", () => {
     expect(() => brentMaximize((x) => x, 1, 1)).toThrow(StatsInputError);
   });
 });
+
+// R: optimize(function(l) ll(l, c(1,1,2,2,2,3,5,5,8,13,13)), c(-3,3), maximum=TRUE, tol=1e-12)
+const TIES_LAMBDA = -0.108647007786;
+const TIES_LOGLIK = -12.136477644231;
