@@ -3,7 +3,7 @@
  * and robust limits with 90% CIs, normality on the parametric scale, and method advice. This
  * is the document stored with an estimate and printed by `bellwether estimate`.
  */
-import { andersonDarling } from "./anderson-darling";
+import { andersonDarlingSorted } from "./anderson-darling";
 import { boxCoxFitFromTable, logTableOfSorted } from "./box-cox";
 import { skewness } from "./descriptive";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
@@ -240,7 +240,8 @@ export function estimateReferenceInterval(
     const yy = y;
     if (n >= 3 && n <= SHAPIRO_MAX_N) normality.shapiroWilk = shapiro ?? tryOr(() => shapiroWilk(yy), null);
     if (n >= 8) {
-      const ad = tryOr(() => andersonDarling(yy), null);
+      // y is the sorted sample under an increasing transform, so it is still in order.
+      const ad = tryOr(() => andersonDarlingSorted(yy), null);
       normality.andersonDarling = ad && { a2: ad.a2, p: ad.p };
     }
   }

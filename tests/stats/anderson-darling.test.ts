@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { andersonDarling } from "@/lib/stats/anderson-darling";
+import { andersonDarling, andersonDarlingSorted } from "@/lib/stats/anderson-darling";
 import { StatsInputError } from "@/lib/stats/validate";
 import fixture from "../fixtures/sw-ad-normality.json";
 
@@ -63,5 +63,18 @@ describe("andersonDarling", () => {
       "values[7] is not a finite number (Infinity)",
     );
     expect(() => andersonDarling(Array(10).fill(4.2))).toThrow("all values are equal");
+  });
+});
+
+describe("andersonDarlingSorted", () => {
+  // Same check values as above (computed with R from the METHODS.md §5.2 formula).
+  const weights = [148, 154, 158, 160, 161, 162, 166, 170, 182, 195, 236];
+
+  it("gives the same result as the unsorted entry point on sorted input", () => {
+    expect(andersonDarlingSorted(weights)).toEqual(andersonDarling(weights));
+  });
+
+  it("refuses values out of order rather than returning a wrong statistic", () => {
+    expect(() => andersonDarlingSorted([...weights].reverse())).toThrow("values are not in ascending order at index 1");
   });
 });
