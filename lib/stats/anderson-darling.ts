@@ -1,4 +1,5 @@
 import normal from "@stdlib/stats-base-dists-normal";
+import { meanAndSdOfChecked } from "./descriptive";
 import { assertFiniteSample, StatsInputError } from "./validate";
 
 export interface AndersonDarlingResult {
@@ -56,12 +57,7 @@ export function andersonDarlingSorted(sorted: readonly number[]): AndersonDarlin
 
 function andersonDarlingOnSorted(sorted: ArrayLike<number>): AndersonDarlingResult {
   const n = sorted.length;
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += sorted[i];
-  mean /= n;
-  let ss = 0;
-  for (let i = 0; i < n; i++) ss += (sorted[i] - mean) ** 2;
-  const sd = Math.sqrt(ss / (n - 1));
+  const { mean, sd } = meanAndSdOfChecked(sorted);
   if (sorted[n - 1] === sorted[0]) {
     throw new StatsInputError("Anderson-Darling needs spread in the values: all values are equal");
   }

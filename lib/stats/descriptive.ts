@@ -16,7 +16,7 @@ export function n(x: readonly number[]): number {
   return x.length;
 }
 
-function plainMean(x: readonly number[]): number {
+function plainMean(x: ArrayLike<number>): number {
   let s = 0;
   for (let i = 0; i < x.length; i++) s += x[i];
   let m = s / x.length;
@@ -40,7 +40,7 @@ export function mean(x: readonly number[]): number {
 }
 
 /** Central moment sums about the mean: [Σd², Σd³, Σd⁴] with the corrected two-pass scheme. */
-function centralSums(x: readonly number[], m: number): [number, number, number, number] {
+function centralSums(x: ArrayLike<number>, m: number): [number, number, number, number] {
   let s1 = 0;
   let s2 = 0;
   let s3 = 0;
@@ -67,6 +67,19 @@ export function sampleVariance(x: readonly number[]): number {
   const m = plainMean(x);
   const [s1, s2] = centralSums(x, m);
   return (s2 - (s1 * s1) / x.length) / (x.length - 1);
+}
+
+/**
+ * Mean and n − 1 SD in one call, for callers that have already checked their sample (finite
+ * values, at least 2) and may hold it in a typed array; no input checks of its own.
+ * @see Chan TF, Golub GH, LeVeque RJ. Am Stat 1983;37:242–247.
+ * Complexity O(n).
+ * @example meanAndSdOfChecked(Float64Array.of(2, 4, 4, 4, 5, 5, 7, 9)) // { mean: 5, sd: 2.138089… }
+ */
+export function meanAndSdOfChecked(x: ArrayLike<number>): { mean: number; sd: number } {
+  const m = plainMean(x);
+  const [s1, s2] = centralSums(x, m);
+  return { mean: m, sd: Math.sqrt((s2 - (s1 * s1) / x.length) / (x.length - 1)) };
 }
 
 /**

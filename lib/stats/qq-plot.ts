@@ -1,4 +1,5 @@
 import normal from "@stdlib/stats-base-dists-normal";
+import { meanAndSdOfChecked } from "./descriptive";
 import { assertFiniteSample, StatsInputError } from "./validate";
 
 export interface QqPoint {
@@ -59,12 +60,7 @@ export function normalQqPlot(x: readonly number[], options: QqPlotOptions = {}):
   const n = x.length;
   const sorted = Float64Array.from(x).sort();
 
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += sorted[i];
-  mean /= n;
-  let ss = 0;
-  for (let i = 0; i < n; i++) ss += (sorted[i] - mean) ** 2;
-  const sd = Math.sqrt(ss / (n - 1));
+  const { mean, sd } = meanAndSdOfChecked(sorted);
 
   const ranks = selectRanks(n, maxPoints, Math.min(tailRequested, Math.floor(maxPoints / 4)));
   const points = ranks.map((rank) => ({

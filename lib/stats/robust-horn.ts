@@ -17,7 +17,7 @@
  *    (Mosteller & Tukey 1977; NIST/SEMATECH Dataplot "BIWEIGHT SCALE"). Descriptions of the
  *    CLSI version quote c = 205.6 for this step instead; we could not confirm that number and
  *    did not adopt it: with c = 205.6 only values beyond ~206 robust SDs get weight 0, so a
- *    tenfold transcription error (≈ 60 SDs out) inflates the scale as much as it inflates the
+ *    tenfold keying error (≈ 60 SDs out) inflates the scale as much as it inflates the
  *    SD, contrary to the method's purpose (robust estimates of location *and* scale, per the
  *    paper's abstract). Our choice: fairly sure of the constant, unsure whether the paper used
  *    it. Both constants are options, so a laboratory can reproduce another convention.

@@ -52,7 +52,7 @@ describe("robustReferenceLimits", () => {
   });
 
   it("moves far less than mean ± 1.96 SD under one gross error", () => {
-    // A tenfold transcription error (the value 1000 instead of ~100) on the 100 clean values.
+    // A tenfold keying error (the value 1000 instead of ~100) on the 100 clean values.
     const clean = robustLimitsOnScale(G100)!;
     const dirty = robustLimitsOnScale([...G100.slice(0, 99), 1000])!;
     const pClean = parametricLimits(G100);
