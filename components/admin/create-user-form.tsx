@@ -11,7 +11,7 @@ export function CreateUserForm() {
   const [state, onSubmit, pending] = useFormAction(createUserAction, { resetOnSuccess: true });
   const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
   return (
-    <form onSubmit={onSubmit} className="space-y-3" aria-label="New user">
+    <form onSubmit={onSubmit} className="max-w-md space-y-3" aria-label="New user">
       <TextField label="Full name" name="name" required error={errors.name} />
       <TextField label="E-mail" name="email" type="email" required error={errors.email} />
       <SelectField label="Role" name="role" options={ROLE_OPTIONS} defaultValue="clinician" error={errors.role} />

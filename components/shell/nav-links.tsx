@@ -7,7 +7,7 @@ import type { NavItem } from "@/lib/auth/navigation";
 export function NavLinks({ items }: { items: NavItem[] }) {
   const pathname = usePathname();
   return (
-    <nav aria-label="Main" className="flex gap-1 overflow-x-auto md:flex-col">
+    <nav aria-label="Main" className="flex gap-1 overflow-x-auto lg:flex-col">
       {items.map((item) => {
         const active = item.href === "/" ? pathname === "/" : pathname.startsWith(item.href);
         return (

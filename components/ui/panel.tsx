@@ -7,7 +7,7 @@ export function Panel({ title, actions, children, className = "" }: {
   className?: string;
 }) {
   return (
-    <section className={`rounded-lg border border-ink-200 bg-white ${className}`}>
+    <section className={`min-w-0 rounded-lg border border-ink-200 bg-white ${className}`}>
       {title || actions ? (
         <header className="flex items-center justify-between gap-3 border-b border-ink-100 px-4 py-2.5">
           {title ? <h2>{title}</h2> : <span />}
