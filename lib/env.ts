@@ -19,15 +19,20 @@ const schema = z.object({
 
 export type Env = z.infer<typeof schema>;
 
-let cached: Env | undefined;
-
-export function env(): Env {
-  if (cached) return cached;
-  const parsed = schema.safeParse(process.env);
+/** Validates an environment; throws one error that lists every problem in plain words. */
+export function parseEnv(source: Record<string, string | undefined>): Env {
+  const parsed = schema.safeParse(source);
   if (!parsed.success) {
     const lines = parsed.error.issues.map((i) => `  - ${i.path.join(".")}: ${i.message}`);
     throw new Error(`Bellwether cannot start, the environment is not valid:\n${lines.join("\n")}`);
   }
-  cached = parsed.data;
+  return parsed.data;
+}
+
+let cached: Env | undefined;
+
+/** The process environment, validated on first use (instrumentation.ts calls it at start-up). */
+export function env(): Env {
+  cached ??= parseEnv(process.env);
   return cached;
 }

@@ -13,6 +13,7 @@ import { ensureCluster, ensureDatabase, startServer, stopServer, type LocalServe
 import { migrateDatabase } from "../../db/migrate";
 import * as schema from "../../db/schema";
 import { seedDemo } from "../../db/seed";
+import { parseEnv } from "../../lib/env";
 
 export const ROOT = path.resolve(__dirname, "..", "..");
 
@@ -75,6 +76,8 @@ const BUILD_INPUTS = [
   "tailwind.config.ts",
   "postcss.config.mjs",
   "tsconfig.json",
+  "tsconfig.build.json",
+  "instrumentation.ts",
   "package-lock.json",
 ];
 
@@ -118,6 +121,8 @@ export function buildIfNeeded(): void {
 
 /** Serves the built app on 127.0.0.1 and resolves once it answers its health check. */
 export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; quiet?: boolean }): Promise<ChildProcess> {
+  // The server checks this too (instrumentation.ts); checking first gives the message at once.
+  parseEnv(opts.env);
   const child = spawn(
     path.join(ROOT, "node_modules", ".bin", "next"),
     ["start", "-H", "127.0.0.1", "-p", String(opts.port)],
