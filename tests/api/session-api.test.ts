@@ -79,6 +79,21 @@ describe("security headers", () => {
   });
 });
 
+describe("unknown API addresses", () => {
+  it("answer 404 as problem+json, not an HTML page", async () => {
+    const res = await fetch(`${BASE_URL}/api/v1/no-such-thing`, { method: "POST" });
+    expect(res.status).toBe(404);
+    expect(res.headers.get("content-type")).toBe("application/problem+json");
+    expect(await res.json()).toEqual({
+      type: "urn:bellwether:problem:not_found",
+      title: "Not found",
+      status: 404,
+      detail: "There is no API endpoint at /api/v1/no-such-thing.",
+      instance: "/api/v1/no-such-thing",
+    });
+  });
+});
+
 describe("health", () => {
   it("answers ok when the database answers", async () => {
     const res = await fetch(`${BASE_URL}/api/health`);
