@@ -5,7 +5,7 @@
  */
 import { andersonDarlingSorted } from "./anderson-darling";
 import { boxCoxFitFromTable, logTableOfSorted } from "./box-cox";
-import { skewness } from "./descriptive";
+import { skewnessOfChecked } from "./descriptive";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
 import { dixonReedOutliers } from "./outliers-dixon";
@@ -76,6 +76,21 @@ function scaleOf(sorted: readonly number[], logs: Float64Array | null, t: Transf
   const y = new Array<number>(sorted.length);
   for (let i = 0; i < y.length; i++) y[i] = Math.expm1(l * logs![i]) / l;
   return y;
+}
+
+/** Writes the values on scale `t` into `buffer` (ln reuses the logs); returns what holds them. */
+function fillScale(
+  buffer: Float64Array,
+  sorted: readonly number[],
+  logs: Float64Array | null,
+  t: Transform,
+  lambda: number | null,
+): ArrayLike<number> {
+  if (t === "none") return sorted;
+  if (t === "ln" || lambda === 0) return logs!;
+  const l = lambda as number;
+  for (let i = 0; i < buffer.length; i++) buffer[i] = Math.expm1(l * logs![i]) / l;
+  return buffer;
 }
 
 function tryOr<T>(f: () => T, fallback: T): T {
@@ -190,15 +205,27 @@ export function estimateReferenceInterval(
   if (transformOption === "auto" && distinct && n >= 3) {
     const candidates: Transform[] = allPositive && lambda !== null ? ["none", "ln", "box-cox"] : ["none"];
     let best = -Infinity;
-    for (const c of candidates) {
-      const yc = scaleOf(sorted, logs, c, c === "box-cox" ? lambda : null);
-      const sw = n <= SHAPIRO_MAX_N ? tryOr(() => shapiroWilk(yc), null) : null;
-      const score = n <= SHAPIRO_MAX_N ? (sw?.w ?? -Infinity) : -Math.abs(tryOr(() => skewness(yc), Infinity));
-      if (score > best) {
-        best = score;
-        transform = c;
-        y = yc;
-        shapiro = sw;
+    if (n <= SHAPIRO_MAX_N) {
+      for (const c of candidates) {
+        const yc = scaleOf(sorted, logs, c, c === "box-cox" ? lambda : null);
+        const sw = tryOr(() => shapiroWilk(yc), null);
+        if ((sw?.w ?? -Infinity) > best) {
+          best = sw?.w ?? -Infinity;
+          transform = c;
+          y = yc;
+          shapiro = sw;
+        }
+      }
+    } else {
+      // Large samples: each scale is scored in one reused buffer; only the chosen one is built.
+      const buffer = new Float64Array(n);
+      for (const c of candidates) {
+        const g1 = skewnessOfChecked(fillScale(buffer, sorted, logs, c, lambda));
+        const score = Number.isNaN(g1) ? -Infinity : -Math.abs(g1);
+        if (score > best) {
+          best = score;
+          transform = c;
+        }
       }
     }
   }
