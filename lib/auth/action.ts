@@ -15,13 +15,13 @@ export type { ActionState };
  * parses the form with zod, runs the work and turns failures into a readable status.
  */
 export async function runAction<S extends z.ZodType>(
-  permission: Permission,
+  permission: Permission | null,
   schema: S,
   formData: FormData,
   work: (caller: Caller, input: z.output<S>) => Promise<string>,
 ): Promise<ActionState> {
   try {
-    const caller = authorize(await currentCaller(), permission);
+    const caller = authorize(await currentCaller(), permission ?? undefined);
     const parsed = schema.safeParse(Object.fromEntries(formData));
     if (!parsed.success) {
       const issues = zodIssues(parsed.error);

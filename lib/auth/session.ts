@@ -26,7 +26,6 @@ export async function currentCaller(): Promise<Caller | null> {
 export async function requirePageCaller(permission?: Permission): Promise<Caller> {
   const caller = await currentCaller();
   if (!caller || !caller.active) redirect("/sign-in");
-  if (!permission) return caller;
   try {
     return authorize(caller, permission);
   } catch (err) {

@@ -76,3 +76,11 @@ describe("navigation", () => {
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });
 });
+
+describe("authorize without a permission (one's own account)", () => {
+  it("lets every active role through and still refuses anonymous and deactivated callers", () => {
+    for (const role of ROLES) expect(codeOf(() => authorize(caller(role)))).toBeNull();
+    expect(codeOf(() => authorize(null))).toBe("unauthenticated");
+    expect(codeOf(() => authorize(caller("clinician", false)))).toBe("unauthenticated");
+  });
+});
