@@ -1,4 +1,5 @@
 import { ZodError } from "zod";
+import { StatsInputError } from "@/lib/stats/validate";
 import { AppError } from "./errors";
 
 /** RFC 9457 problem details: the only error shape Bellwether's API answers with. */
@@ -37,6 +38,16 @@ export function toProblem(err: unknown, instance?: string): Problem {
       detail: errors.map((e) => `${e.path}: ${e.message}`).join("; "),
       instance,
       errors,
+    };
+  }
+  if (err instanceof StatsInputError) {
+    // The engine's input checks speak to the person who sent the data: a 422, never a 500.
+    return {
+      type: "urn:bellwether:problem:invalid",
+      title: "Invalid input",
+      status: 422,
+      detail: err.message,
+      instance,
     };
   }
   console.error("Unhandled error", err);

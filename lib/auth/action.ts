@@ -2,6 +2,7 @@ import "server-only";
 import { z } from "zod";
 import { AppError } from "@/lib/api/errors";
 import { zodIssues } from "@/lib/api/problem";
+import { StatsInputError } from "@/lib/stats/validate";
 import { authorize, type Caller } from "./authorize";
 import type { Permission } from "./roles";
 import { currentCaller } from "./session";
@@ -33,7 +34,7 @@ export async function runAction<S extends z.ZodType>(
     }
     return { status: "ok", message: await work(caller, parsed.data) };
   } catch (err) {
-    if (err instanceof AppError) return { status: "error", message: err.message };
+    if (err instanceof AppError || err instanceof StatsInputError) return { status: "error", message: err.message };
     console.error("Server action failed", err);
     return { status: "error", message: "Something went wrong on our side; nothing was changed." };
   }

@@ -59,9 +59,14 @@ describe("users on the real database", () => {
   });
 
   it("the database itself refuses an e-mail in upper case (check constraint)", async () => {
-    await expect(
-      database.insert(users).values({ email: "Upper@Example.test", name: "U", role: "clinician", passwordHash: "x" }),
-    ).rejects.toThrow();
+    // PostgreSQL's own wording for a violated CHECK constraint, with the constraint's name
+    // from db/schema.ts (drizzle wraps the driver's error as its cause).
+    const error = await database
+      .insert(users)
+      .values({ email: "Upper@Example.test", name: "U", role: "clinician", passwordHash: "x" })
+      .then(() => null, (err: { cause?: { message?: string; code?: string } }) => err.cause);
+    expect(error?.code).toBe("23514");
+    expect(error?.message).toBe('new row for relation "users" violates check constraint "users_email_lowercase"');
   });
 
   it("changes a role and deactivates, with audit events, and keeps at least one active administrator", async () => {
