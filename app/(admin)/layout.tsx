@@ -1,8 +1,3 @@
-import type { ReactNode } from "react";
-import { SignedInLayout } from "@/components/shell/signed-in-layout";
-
+// The same signed-in frame as the workspace; one layout, shared.
 export const dynamic = "force-dynamic";
-
-export default function Layout({ children }: { children: ReactNode }) {
-  return <SignedInLayout>{children}</SignedInLayout>;
-}
+export { default } from "../(workspace)/layout";

@@ -1,8 +1,13 @@
-import type { AuditEvent } from "@/db/schema";
 import { formatDateTime } from "@/lib/format";
 
 /** A compact, read-only list of audit events (newest first). */
-export function AuditEventList({ events }: { events: AuditEvent[] }) {
+export interface AuditEventItem {
+  id: number;
+  at: Date;
+  summary: string;
+}
+
+export function AuditEventList({ events }: { events: AuditEventItem[] }) {
   if (events.length === 0) return <p className="text-sm text-ink-500">No events yet.</p>;
   return (
     <ol className="divide-y divide-ink-100 text-sm">
