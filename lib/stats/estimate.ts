@@ -4,7 +4,7 @@
  * is the document stored with an estimate and printed by `bellwether estimate`.
  */
 import { andersonDarlingSorted } from "./anderson-darling";
-import { boxCoxFitFromTable, logTableOfSorted } from "./box-cox";
+import { boxCoxFitFromTable, boxCoxOfLog, logTableOfSorted } from "./box-cox";
 import { skewnessOfChecked } from "./descriptive";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
@@ -74,7 +74,7 @@ function scaleOf(sorted: readonly number[], logs: Float64Array | null, t: Transf
   const l = lambda as number;
   if (l === 0) return Array.from(logs!);
   const y = new Array<number>(sorted.length);
-  for (let i = 0; i < y.length; i++) y[i] = Math.expm1(l * logs![i]) / l;
+  for (let i = 0; i < y.length; i++) y[i] = boxCoxOfLog(logs![i], l);
   return y;
 }
 
@@ -89,7 +89,7 @@ function fillScale(
   if (t === "none") return sorted;
   if (t === "ln" || lambda === 0) return logs!;
   const l = lambda as number;
-  for (let i = 0; i < buffer.length; i++) buffer[i] = Math.expm1(l * logs![i]) / l;
+  for (let i = 0; i < buffer.length; i++) buffer[i] = boxCoxOfLog(logs![i], l);
   return buffer;
 }
 

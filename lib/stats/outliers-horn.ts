@@ -2,7 +2,7 @@
  * Horn's outlier screen for reference values: Box-Cox transformation to symmetry, then Tukey's
  * fences on the transformed scale, repeated until nothing more is flagged.
  */
-import { boxCoxFitFromTable, logTableOfSorted, type LogTable } from "./box-cox";
+import { boxCoxFitFromTable, boxCoxOfValue, logTableOfSorted, type LogTable } from "./box-cox";
 import type { OutlierProposal } from "./outliers";
 import { assertPositiveSample, StatsInputError } from "./validate";
 
@@ -55,7 +55,7 @@ export function hornOutliers(values: readonly number[], options: HornOptions = {
       const low = v < last.keptMin;
       const r = rounds.findIndex((rd) => (low ? v < rd.keptMin : v > rd.keptMax));
       const rd = rounds[r];
-      const y = rd.lambda === 0 ? Math.log(v) : Math.expm1(rd.lambda * Math.log(v)) / rd.lambda;
+      const y = boxCoxOfValue(v, rd.lambda);
       const fence = low ? rd.lowerFence : rd.upperFence;
       outliers.push({
         index: i,
@@ -129,7 +129,7 @@ export function hornScreenSorted(sorted: Float64Array, options: HornOptions = {}
     iterations++;
     lambda = fitLambda(table, uLo, uHi, iterations === 1 ? null : lambda);
     const l = lambda;
-    const t = (v: number) => (l === 0 ? Math.log(v) : Math.expm1(l * Math.log(v)) / l);
+    const t = (v: number) => boxCoxOfValue(v, l);
     // Type-7 quartiles of the transformed kept values: the transform is increasing, so they
     // interpolate between the transforms of two neighbouring sorted values.
     const quartile = (p: number) => {
