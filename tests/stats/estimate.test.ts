@@ -3,7 +3,6 @@ import normal from "@stdlib/stats-base-dists-normal";
 import { skewness } from "@/lib/stats/descriptive";
 import { estimateReferenceInterval } from "@/lib/stats/estimate";
 import { createRandom } from "@/lib/stats/random";
-import { parametricLimits } from "@/lib/stats/parametric";
 import { shapiroWilk } from "@/lib/stats/shapiro-wilk";
 import { StatsInputError } from "@/lib/stats/validate";
 import fixture from "../fixtures/reference-limits.json";
@@ -156,12 +155,15 @@ describe("estimateReferenceInterval", () => {
     expect(estimateReferenceInterval(x, { seed: 8 }).robust).not.toEqual(a.robust);
   });
 
-  it("matches a plain parametric computation for transform none", () => {
-    const x = set("gaussian-60").values;
-    const d = estimateReferenceInterval(x, { outliers: "none", transform: "none" });
-    const p = parametricLimits(x);
-    expect(d.parametric.lower).toBeCloseTo(p.lower!, 12);
-    expect(d.parametric.upperCi![1]).toBeCloseTo(p.upperCi![1], 12);
+  it("gives R's raw-scale parametric limits for transform none", () => {
+    // R (scripts/fixtures/reference-limits.R): mean(x) ± qnorm(.975)·sd(x) on gaussian-60;
+    // 1e-9 relative: the same closed formula in double precision.
+    const ref = set("gaussian-60");
+    const d = estimateReferenceInterval(ref.values, { outliers: "none", transform: "none" });
+    expect(Math.abs(d.parametric.mean! / ref.raw.mean - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(d.parametric.sd! / ref.raw.sd - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(d.parametric.lower! / ref.raw.lower - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(d.parametric.upper! / ref.raw.upper - 1)).toBeLessThan(1e-9);
   });
 
   it("above 5000 values scores each scale by |skewness| and leaves Shapiro-Wilk null", () => {
