@@ -54,7 +54,7 @@ export function hornOutliers(values: readonly number[], options: HornOptions = {
  * The proposals of a finished Horn screen for the caller's values, in their order: every value
  * outside the final kept run, each with the round that set it aside, that round's λ, its
  * Box-Cox value and the round's quartiles and fences on the Box-Cox scale.
- * @see {@link hornOutliers}
+ * @see Horn PS, Feng L, Li Y, Pesce AJ. Clin Chem 2001;47:2137–2145; {@link hornOutliers}.
  * Complexity O(n + p·r) for p proposals and r rounds. Throws nothing (values positive, as the
  *   screen required).
  * @example hornProposals(values, hornScreenSorted(Float64Array.from(values).sort()))
