@@ -4,7 +4,16 @@ import { z } from "zod";
  * The environment, validated once with zod. Read lazily so that `next build` (which imports
  * server modules without a database) does not need the runtime variables.
  */
-const schema = z.object({
+
+/** What identifies the running code; optional, and read outside the app too (the command line). */
+const engineSchema = z.object({
+  BELLWETHER_COMMIT: z
+    .string()
+    .regex(/^[0-9a-fA-F]{7,40}$/, "BELLWETHER_COMMIT must be a git commit hash (7 to 40 hex digits)")
+    .optional(),
+});
+
+const schema = engineSchema.extend({
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   DATABASE_URL: z
     .string({ error: "DATABASE_URL is not set; `npm start` sets it for the private PostgreSQL" })
@@ -19,14 +28,25 @@ const schema = z.object({
 
 export type Env = z.infer<typeof schema>;
 
-/** Validates an environment; throws one error that lists every problem in plain words. */
-export function parseEnv(source: Record<string, string | undefined>): Env {
-  const parsed = schema.safeParse(source);
+export type EngineEnv = z.infer<typeof engineSchema>;
+
+function parseWith<T extends z.ZodType>(s: T, source: Record<string, string | undefined>): z.infer<T> {
+  const parsed = s.safeParse(source);
   if (!parsed.success) {
     const lines = parsed.error.issues.map((i) => `  - ${i.path.join(".")}: ${i.message}`);
     throw new Error(`Bellwether cannot start, the environment is not valid:\n${lines.join("\n")}`);
   }
   return parsed.data;
+}
+
+/** Validates an environment; throws one error that lists every problem in plain words. */
+export function parseEnv(source: Record<string, string | undefined>): Env {
+  return parseWith(schema, source);
+}
+
+/** Validates only the variables that identify the running code (see lib/engine.ts). */
+export function parseEngineEnv(source: Record<string, string | undefined>): EngineEnv {
+  return parseWith(engineSchema, source);
 }
 
 let cached: Env | undefined;
@@ -35,4 +55,12 @@ let cached: Env | undefined;
 export function env(): Env {
   cached ??= parseEnv(process.env);
   return cached;
+}
+
+let cachedEngine: EngineEnv | undefined;
+
+/** The engine variables of the process environment, validated on first use; needs no database. */
+export function engineEnv(): EngineEnv {
+  cachedEngine ??= parseEngineEnv(process.env);
+  return cachedEngine;
 }

@@ -1,4 +1,5 @@
 import normal from "@stdlib/stats-base-dists-normal";
+import { rankTableOfSorted, rankType6, type RankTable } from "../stats/quantile";
 import { assertFiniteNumber } from "../stats/validate";
 import type { EmpiricalModel } from "./model";
 
@@ -13,52 +14,28 @@ export interface EmpiricalScore {
  * Precomputed form of an empirical model: the distinct values with the first and last 1-based
  * rank of each, so that scoring is one binary search.
  */
-export interface EmpiricalIndex {
-  n: number;
-  distinct: Float64Array;
-  first: Float64Array;
-  last: Float64Array;
-}
+export type EmpiricalIndex = RankTable;
 
+/**
+ * Index an empirical model's sorted reference values for scoring.
+ * @see common practice (grouping tied order statistics); rankTableOfSorted in lib/stats/quantile.ts.
+ * Complexity O(n). Throws nothing (the model was validated: sorted, at least 2 values).
+ * @example indexEmpirical({ kind: "empirical", values: [1, 2, 2, 3] }).last // [1, 3, 4]
+ */
 export function indexEmpirical(model: EmpiricalModel): EmpiricalIndex {
-  const v = model.values;
-  const distinct: number[] = [];
-  const first: number[] = [];
-  const last: number[] = [];
-  for (let i = 0; i < v.length; i++) {
-    if (i > 0 && v[i] === v[i - 1]) {
-      last[last.length - 1] = i + 1;
-    } else {
-      distinct.push(v[i]);
-      first.push(i + 1);
-      last.push(i + 1);
-    }
-  }
-  return {
-    n: v.length,
-    distinct: Float64Array.from(distinct),
-    first: Float64Array.from(first),
-    last: Float64Array.from(last),
-  };
+  return rankTableOfSorted(model.values);
 }
 
-/** Fractional rank of x in (0, n+1): the inverse of the type-6 quantile, mid-rank on ties. */
+/**
+ * Fractional rank of x in [1, n] (the inverse of the type-6 quantile, mid-rank on ties, see
+ * rankType6) and, outside the reference data, which side the bound lies on.
+ * @see Hyndman RJ, Fan Y. Am Stat 1996;50:361–365 (definition 6).
+ * Complexity O(log n). Throws nothing.
+ * @example empiricalRank(indexEmpirical({ kind: "empirical", values: [1, 2, 3, 4] }), 9) // { rank: 4, bound: "above" }
+ */
 export function empiricalRank(idx: EmpiricalIndex, x: number): { rank: number; bound: "below" | "above" | null } {
-  const { distinct, first, last, n } = idx;
-  const m = distinct.length;
-  if (x < distinct[0]) return { rank: 1, bound: "below" };
-  if (x > distinct[m - 1]) return { rank: n, bound: "above" };
-  let lo = 0;
-  let hi = m - 1;
-  // Largest k with distinct[k] ≤ x.
-  while (lo < hi) {
-    const mid = (lo + hi + 1) >> 1;
-    if (distinct[mid] <= x) lo = mid;
-    else hi = mid - 1;
-  }
-  if (distinct[lo] === x) return { rank: (first[lo] + last[lo]) / 2, bound: null };
-  const f = (x - distinct[lo]) / (distinct[lo + 1] - distinct[lo]);
-  return { rank: last[lo] + f, bound: null };
+  const bound = x < idx.distinct[0] ? "below" : x > idx.distinct[idx.distinct.length - 1] ? "above" : null;
+  return { rank: rankType6(idx, x), bound };
 }
 
 /**

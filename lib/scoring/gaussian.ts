@@ -1,4 +1,5 @@
 import normal from "@stdlib/stats-base-dists-normal";
+import { boxCoxOfValue } from "../stats/box-cox";
 import { assertFiniteNumber, StatsInputError } from "../stats/validate";
 import type { GaussianModel } from "./model";
 
@@ -11,9 +12,7 @@ export function gaussianTransform(model: GaussianModel): (x: number) => number {
     if (!(x > 0)) {
       throw new StatsInputError(`value ${x} is not positive; ${name} scoring model needs values > 0`);
     }
-    if (lambda === 0) return Math.log(x);
-    // expm1 keeps precision as λ approaches 0, where (x^λ − 1)/λ → ln x.
-    return Math.expm1(lambda * Math.log(x)) / lambda;
+    return boxCoxOfValue(x, lambda);
   };
 }
 

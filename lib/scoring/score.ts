@@ -1,4 +1,6 @@
 import normal from "@stdlib/stats-base-dists-normal";
+import { boxCoxOfValue } from "../stats/box-cox";
+import { rankType6 } from "../stats/quantile";
 import { assertFiniteNumber, StatsInputError } from "../stats/validate";
 import {
   GENERAL_CAUTION,
@@ -115,25 +117,29 @@ export function scoreMany(
   const model = partition.model;
   if (model.kind === "gaussian") {
     const { mean, sd } = model;
+    // ln is Box-Cox with λ = 0.
     const lambda = model.transform === "box-cox" ? (model.lambda as number) : 0;
-    const kind = model.transform === "none" ? 0 : lambda === 0 ? 1 : 2;
+    const raw = model.transform === "none";
     for (let i = 0; i < m; i++) {
       const x = values[i];
-      if (!Number.isFinite(x) || (kind !== 0 && !(x > 0))) {
+      if (!Number.isFinite(x) || (!raw && !(x > 0))) {
         z[i] = NaN;
         percentile[i] = NaN;
         invalid.push(i);
         continue;
       }
-      const g = kind === 0 ? x : kind === 1 ? Math.log(x) : Math.expm1(lambda * Math.log(x)) / lambda;
+      const g = raw ? x : boxCoxOfValue(x, lambda);
       const zi = (g - mean) / sd;
       z[i] = zi;
       percentile[i] = 100 * phi(zi);
     }
   } else {
-    // empiricalRank inlined, without a result object per value.
-    const { distinct, first, last, n } = indexEmpirical(model);
-    const top = distinct.length - 1;
+    // The bound is read from the ends here rather than through empiricalRank, so that no
+    // result object is made per value.
+    const idx = indexEmpirical(model);
+    const lowest = idx.distinct[0];
+    const highest = idx.distinct[idx.distinct.length - 1];
+    const n = idx.n;
     for (let i = 0; i < m; i++) {
       const x = values[i];
       if (!Number.isFinite(x)) {
@@ -142,27 +148,8 @@ export function scoreMany(
         invalid.push(i);
         continue;
       }
-      let rank: number;
-      if (x < distinct[0]) {
-        rank = 1;
-        bound[i] = -1;
-      } else if (x > distinct[top]) {
-        rank = n;
-        bound[i] = 1;
-      } else {
-        let lo = 0;
-        let hi = top;
-        while (lo < hi) {
-          const mid = (lo + hi + 1) >> 1;
-          if (distinct[mid] <= x) lo = mid;
-          else hi = mid - 1;
-        }
-        rank =
-          distinct[lo] === x
-            ? (first[lo] + last[lo]) / 2
-            : last[lo] + (x - distinct[lo]) / (distinct[lo + 1] - distinct[lo]);
-      }
-      const p = rank / (n + 1);
+      bound[i] = x < lowest ? -1 : x > highest ? 1 : 0;
+      const p = rankType6(idx, x) / (n + 1);
       z[i] = phiInverse(p);
       percentile[i] = 100 * p;
     }

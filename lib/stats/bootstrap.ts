@@ -2,7 +2,7 @@
  * Percentile bootstrap confidence intervals, drawn from a seeded generator.
  */
 import { createRandom } from "./random";
-import { valueAtRank } from "./quantile";
+import { quantileType6OfSorted } from "./quantile";
 import { assertFiniteNumber, assertFiniteSample, StatsInputError } from "./validate";
 
 export interface BootstrapOptions {
@@ -65,9 +65,9 @@ export function percentileBootstrap(
   const alpha = (1 - level) / 2;
   return (draws ?? []).map((d) => {
     if (d.length < replicates / 2) return null;
-    const sorted = Array.from(Float64Array.from(d).sort());
-    const lower = valueAtRank(sorted, alpha * (sorted.length + 1));
-    const upper = valueAtRank(sorted, (1 - alpha) * (sorted.length + 1));
+    const sorted = Float64Array.from(d).sort();
+    const lower = quantileType6OfSorted(sorted, alpha);
+    const upper = quantileType6OfSorted(sorted, 1 - alpha);
     if (lower === null || upper === null) return null;
     return { lower, upper, used: d.length };
   });

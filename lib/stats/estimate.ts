@@ -4,41 +4,105 @@
  * is the document stored with an estimate and printed by `bellwether estimate`.
  */
 import { andersonDarlingSorted } from "./anderson-darling";
-import { boxCoxFitFromTable, logTableOfSorted } from "./box-cox";
+import { boxCoxFitFromTable, boxCoxOfLog, logTableOfSorted } from "./box-cox";
 import { skewnessOfChecked } from "./descriptive";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
 import { dixonReedOutliers } from "./outliers-dixon";
-import { hornScreenSorted } from "./outliers-horn";
+import { hornProposals, hornScreenSorted } from "./outliers-horn";
 import { tukeyOutliers } from "./outliers-tukey";
-import type { OutlierProposal } from "./outliers";
+import type { OutlierEvidence, OutlierMethod, OutlierProposal } from "./outliers";
 import { parametricFromScale, type Transform } from "./parametric";
-import { ROBUST_MAX_N, ROBUST_MIN_N, robustReferenceLimits } from "./robust-horn";
+import {
+  C_LOCATION,
+  C_SCALE,
+  MAD_NORMAL,
+  ROBUST_MAX_N,
+  ROBUST_MIN_N,
+  robustReferenceLimits,
+} from "./robust-horn";
 import { shapiroWilk } from "./shapiro-wilk";
 import { assertFiniteSample, StatsInputError } from "./validate";
 
 export type OutlierOption = "none" | "dixon" | "tukey" | "horn";
 export type TransformOption = "auto" | Transform;
+/** "propose": the screen only proposes; "apply": its proposals are left out of the limits. */
+export type ScreeningMode = "propose" | "apply";
 
 export const OUTLIER_OPTIONS: readonly OutlierOption[] = ["none", "dixon", "tukey", "horn"];
 export const TRANSFORM_OPTIONS: readonly TransformOption[] = ["auto", "none", "ln", "box-cox"];
+export const SCREENING_MODES: readonly ScreeningMode[] = ["propose", "apply"];
 export const DEFAULT_SEED = 1;
+/** Resamples of every bootstrap CI in the document (nonparametric below 119 values, robust). */
+export const BOOTSTRAP_REPLICATES = 1000;
 /** Shapiro-Wilk (Royston) is defined up to this many values. */
 const SHAPIRO_MAX_N = 5000;
 
 export interface EstimateOptions {
-  /** Outlier screen whose proposals are excluded; default "horn". */
+  /** Outlier screen; default "horn". */
   outliers?: OutlierOption;
+  /**
+   * What the screen's proposals do; default "propose" (listed, nothing excluded: the scientist
+   * confirms exclusions and removes them before calling). "apply" excludes them.
+   */
+  screening?: ScreeningMode;
   /** Scale of the parametric and robust methods; default "auto". */
   transform?: TransformOption;
   /** Seed of every bootstrap; default 1. Store it with the estimate. */
   seed?: number;
 }
 
+/** A value the outlier screen proposed, with the rule and its statistic. */
 export interface Exclusion {
   value: number;
-  /** The screen that proposed it. */
-  reason: OutlierOption;
+  /** The rule that proposed it. */
+  reason: OutlierMethod;
+  /** Position of the value in the values given. */
+  index: number;
+  /** The rule's finding in words a scientist can check by hand. */
+  explanation: string;
+  /** The same finding as numbers: D/R against 1/3, the Tukey fences, or Horn's λ and fences. */
+  evidence: OutlierEvidence;
+}
+
+export interface ScreeningSection {
+  /** The screen asked for. */
+  outliers: OutlierOption;
+  /** The rule that ran: Tukey on the raw scale when Horn met a non-positive value; null if none. */
+  rule: OutlierMethod | null;
+  mode: ScreeningMode;
+  /** True when the screen's proposals were left out of the limits (mode "apply"). */
+  applied: boolean;
+  /** Values given, before any exclusion. */
+  valuesGiven: number;
+}
+
+/** Who computed the document: filled in outside lib/stats (lib/engine.ts), null here. */
+export interface EngineIdentity {
+  name: string;
+  /** The package version. */
+  version: string;
+  /** The git commit of the code, where known. */
+  commit: string | null;
+  /** True when the working tree differed from that commit; null when not known. */
+  uncommittedChanges: boolean | null;
+}
+
+/** Everything besides the values needed to compute the same document again. */
+export interface Provenance {
+  /** The options as applied, defaults filled in. */
+  options: { outliers: OutlierOption; screening: ScreeningMode; transform: TransformOption; seed: number };
+  bootstrap: {
+    method: "percentile";
+    generator: "xoshiro128**";
+    replicates: number;
+    level: number;
+    /** The sections whose CIs came from the bootstrap in this document. */
+    usedFor: ("nonparametric" | "robust")[];
+  };
+  /** The robust method's tuning constants (see lib/stats/robust-horn.ts). */
+  robust: { method: "Horn-Pesce-Copeland 1998, biweight"; madNormal: number; cLocation: number; cScale: number };
+  engine: EngineIdentity | null;
 }
 
 export interface ParametricSection extends LimitsWithCi {
@@ -64,6 +128,10 @@ export interface ReferenceIntervalEstimate {
   normality: NormalitySection;
   recommended: RecommendedMethod | null;
   warnings: string[];
+  /** Every value the screen proposed, whatever the mode, in the order given. */
+  proposed: Exclusion[];
+  screening: ScreeningSection;
+  provenance: Provenance;
 }
 
 const EMPTY: LimitsWithCi = { lower: null, upper: null, lowerCi: null, upperCi: null };
@@ -74,7 +142,7 @@ function scaleOf(sorted: readonly number[], logs: Float64Array | null, t: Transf
   const l = lambda as number;
   if (l === 0) return Array.from(logs!);
   const y = new Array<number>(sorted.length);
-  for (let i = 0; i < y.length; i++) y[i] = Math.expm1(l * logs![i]) / l;
+  for (let i = 0; i < y.length; i++) y[i] = boxCoxOfLog(logs![i], l);
   return y;
 }
 
@@ -89,7 +157,7 @@ function fillScale(
   if (t === "none") return sorted;
   if (t === "ln" || lambda === 0) return logs!;
   const l = lambda as number;
-  for (let i = 0; i < buffer.length; i++) buffer[i] = Math.expm1(l * logs![i]) / l;
+  for (let i = 0; i < buffer.length; i++) buffer[i] = boxCoxOfLog(logs![i], l);
   return buffer;
 }
 
@@ -106,7 +174,9 @@ function tryOr<T>(f: () => T, fallback: T): T {
  * Estimates the 95% reference interval of one partition by every applicable method.
  *
  * 1. Outliers: the chosen screen (Horn by default; Tukey on the raw scale when a value is not
- *    positive) proposes values; they are excluded here and listed in `excluded`.
+ *    positive) proposes values, listed in `proposed` with the rule's statistic. With screening
+ *    "propose" (the default) nothing is excluded; with "apply" they are left out and also
+ *    listed in `excluded`.
  * 2. Scale ("auto"): among raw, ln and Box-Cox (the last two only when every value is
  *    positive), the one on which the data look most Gaussian: the highest Shapiro-Wilk W up
  *    to 5000 values; above that, where every test rejects trivial departures and Shapiro-Wilk
@@ -118,13 +188,14 @@ function tryOr<T>(f: () => T, fallback: T): T {
  * 5. Normality on the parametric scale: Shapiro-Wilk (3–5000 values), Anderson-Darling (≥ 8);
  *    null outside those ranges.
  * 6. Method advice and warnings.
- * The same values, options and seed always give the same document.
+ * The same values, options and seed always give the same document; `provenance` records the
+ * options, seed, bootstrap size and robust constants (the caller adds the engine's identity).
  * @see lib/stats/* for each method and its source; CLSI EP28-A3c (2010).
  * Complexity O(n log n): one sort; the λ search is O(n) per evaluation; bootstraps only below
  *   120 values.
  * Throws StatsInputError on an empty sample, a non-finite value, an unknown option, or ln /
  *   Box-Cox requested for data with a non-positive value.
- * @example estimateReferenceInterval(values, { outliers: "horn", transform: "auto", seed: 1 })
+ * @example estimateReferenceInterval(values, { outliers: "horn", screening: "propose", transform: "auto", seed: 1 })
  */
 export function estimateReferenceInterval(
   values: readonly number[],
@@ -132,10 +203,14 @@ export function estimateReferenceInterval(
 ): ReferenceIntervalEstimate {
   assertFiniteSample(values);
   const outlierOption = options.outliers ?? "horn";
+  const screeningMode = options.screening ?? "propose";
   const transformOption = options.transform ?? "auto";
   const seed = options.seed ?? DEFAULT_SEED;
   if (!OUTLIER_OPTIONS.includes(outlierOption)) {
     throw new StatsInputError(`outliers must be one of ${OUTLIER_OPTIONS.join(", ")} (got "${String(outlierOption)}")`);
+  }
+  if (!SCREENING_MODES.includes(screeningMode)) {
+    throw new StatsInputError(`screening must be one of ${SCREENING_MODES.join(", ")} (got "${String(screeningMode)}")`);
   }
   if (!TRANSFORM_OPTIONS.includes(transformOption)) {
     throw new StatsInputError(`transform must be one of ${TRANSFORM_OPTIONS.join(", ")} (got "${String(transformOption)}")`);
@@ -144,40 +219,57 @@ export function estimateReferenceInterval(
   const warnings: string[] = [];
   let allPositive = true;
   for (let i = 0; i < values.length; i++) if (values[i] <= 0) allPositive = false;
+  const apply = screeningMode === "apply";
 
   // 1. Outliers. Horn's screen works on the one sort of the data; its kept values are a
   // contiguous run of it.
   let hornLambda: number | null = null;
-  let sortedKept: Float64Array | null = null;
-  let excluded: Exclusion[] = [];
+  let sortedKept: Float64Array;
+  let proposals: OutlierProposal[] = [];
+  let rule: OutlierMethod | null = null;
   if (outlierOption === "horn" && allPositive && values.length >= 4) {
     const all = Float64Array.from(values).sort();
     const h = hornScreenSorted(all);
-    sortedKept = all.subarray(h.from, h.to);
-    const keptMin = all[h.from];
-    const keptMax = all[h.to - 1];
-    for (let i = 0; i < values.length; i++) {
-      if (values[i] < keptMin || values[i] > keptMax) excluded.push({ value: values[i], reason: "horn" });
-    }
-    if (h.converged) hornLambda = h.lambda;
-    else warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
+    rule = "horn";
+    proposals = hornProposals(values, h);
+    const keptAll = h.from === 0 && h.to === all.length;
+    sortedKept = apply ? all.subarray(h.from, h.to) : all;
+    // The screen's last λ̂ is that of its kept values: reusable when those are the values used.
+    if (h.converged && (apply || keptAll)) hornLambda = h.lambda;
+    if (!h.converged) warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
   } else {
-    let proposals: OutlierProposal[] = [];
-    if (outlierOption === "dixon") proposals = dixonReedOutliers(values).outliers;
-    else if (outlierOption === "tukey") proposals = tukeyOutliers(values).outliers;
-    else if (outlierOption === "horn" && values.length >= 4) {
+    if (outlierOption === "dixon") {
+      rule = "dixon";
+      proposals = dixonReedOutliers(values).outliers;
+    } else if (outlierOption === "tukey") {
+      rule = "tukey";
+      proposals = tukeyOutliers(values).outliers;
+    } else if (outlierOption === "horn" && values.length >= 4) {
+      rule = "tukey";
       proposals = tukeyOutliers(values).outliers;
       warnings.push("Horn's method needs positive values; Tukey fences on the raw scale were used instead.");
     }
+    proposals = proposals.slice().sort((a, b) => a.index - b.index);
     const excludedIdx = new Uint8Array(values.length);
-    for (const p of proposals) excludedIdx[p.index] = 1;
-    excluded = proposals
-      .slice()
-      .sort((a, b) => a.index - b.index)
-      .map((p) => ({ value: p.value, reason: p.method }));
-    const kept = new Float64Array(values.length - proposals.length);
+    if (apply) for (const p of proposals) excludedIdx[p.index] = 1;
+    const kept = new Float64Array(values.length - (apply ? proposals.length : 0));
     for (let i = 0, j = 0; i < values.length; i++) if (!excludedIdx[i]) kept[j++] = values[i];
     sortedKept = kept.sort();
+  }
+  const proposed: Exclusion[] = proposals.map((p) => ({
+    value: p.value,
+    reason: p.method,
+    index: p.index,
+    explanation: p.reason,
+    evidence: p.evidence,
+  }));
+  const excluded: Exclusion[] = apply ? proposed.slice() : [];
+  if (!apply && proposed.length > 0) {
+    warnings.push(
+      `The ${rule === "dixon" ? "Dixon/Reed" : rule === "tukey" ? "Tukey" : "Horn"} screen proposes ` +
+        `${proposed.length} value${proposed.length === 1 ? "" : "s"} for exclusion; ` +
+        "they are included in these limits until an exclusion is confirmed.",
+    );
   }
   const sorted = Array.from(sortedKept);
   const n = sorted.length;
@@ -233,7 +325,7 @@ export function estimateReferenceInterval(
   if (y === null && n > 0 && (transform === "none" || logs)) y = scaleOf(sorted, logs, transform, lambda);
 
   // 3. Nonparametric, on the raw values
-  const np = nonparametricLimits(sorted, { seed });
+  const np = nonparametricLimits(sorted, { seed, replicates: BOOTSTRAP_REPLICATES });
   if (np.ciMethod === "bootstrap") {
     warnings.push(`Nonparametric 90% CIs are percentile-bootstrap intervals (fewer than 119 values; seed ${seed}).`);
   }
@@ -258,7 +350,14 @@ export function estimateReferenceInterval(
   }
   let robust: LimitsWithCi = EMPTY;
   if (n >= ROBUST_MIN_N && n <= ROBUST_MAX_N && distinct) {
-    robust = robustReferenceLimits(sorted, { transform, lambda, seed });
+    robust = robustReferenceLimits(sorted, {
+      transform,
+      lambda,
+      seed,
+      replicates: BOOTSTRAP_REPLICATES,
+      cLocation: C_LOCATION,
+      cScale: C_SCALE,
+    });
   }
 
   // 5. Normality on the parametric scale
@@ -290,5 +389,22 @@ export function estimateReferenceInterval(
     normality,
     recommended: advice.recommended,
     warnings: [...warnings, ...advice.warnings],
+    proposed,
+    screening: { outliers: outlierOption, rule, mode: screeningMode, applied: apply && rule !== null, valuesGiven: values.length },
+    provenance: {
+      options: { outliers: outlierOption, screening: screeningMode, transform: transformOption, seed },
+      bootstrap: {
+        method: "percentile",
+        generator: "xoshiro128**",
+        replicates: BOOTSTRAP_REPLICATES,
+        level: 0.9,
+        usedFor: [
+          ...(np.ciMethod === "bootstrap" ? (["nonparametric"] as const) : []),
+          ...(robust.lowerCi !== null || robust.upperCi !== null ? (["robust"] as const) : []),
+        ],
+      },
+      robust: { method: "Horn-Pesce-Copeland 1998, biweight", madNormal: MAD_NORMAL, cLocation: C_LOCATION, cScale: C_SCALE },
+      engine: null,
+    },
   };
 }

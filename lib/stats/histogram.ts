@@ -1,4 +1,6 @@
 import normal from "@stdlib/stats-base-dists-normal";
+import { boxCoxOfValue } from "./box-cox";
+import { valueAtRank } from "./quantile";
 import { assertFiniteSample, assertPositiveSample, StatsInputError } from "./validate";
 
 export type HistogramTransform = "none" | "ln" | "box-cox";
@@ -37,12 +39,9 @@ export interface HistogramOptions {
   curveAt?: readonly number[];
 }
 
-/** Type-7 quantile (R's default, used by R's IQR and nclass.FD) of sorted values. */
+/** Type-7 quantile (R's default, used by R's IQR and nclass.FD) of sorted values: rank 1 + p(n − 1). */
 function quantile7(sorted: Float64Array, p: number): number {
-  const h = (sorted.length - 1) * p;
-  const lo = Math.floor(h);
-  const hi = Math.min(lo + 1, sorted.length - 1);
-  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
+  return valueAtRank(sorted, 1 + p * (sorted.length - 1)) as number;
 }
 
 /**
@@ -110,7 +109,7 @@ export function histogram(x: readonly number[], options: HistogramOptions = {}):
   }
 
   const lambda = transform === "box-cox" ? (options.lambda as number) : transform === "ln" ? 0 : 1;
-  const g = transform === "none" ? (v: number) => v : (v: number) => (lambda === 0 ? Math.log(v) : (v ** lambda - 1) / lambda);
+  const g = transform === "none" ? (v: number) => v : (v: number) => boxCoxOfValue(v, lambda);
   const dg = transform === "none" ? () => 1 : (v: number) => v ** (lambda - 1);
   let mean = 0;
   for (let i = 0; i < n; i++) mean += g(sorted[i]);

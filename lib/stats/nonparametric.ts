@@ -4,7 +4,7 @@
  * from a seeded percentile bootstrap, labelled as such.
  */
 import { percentileBootstrap } from "./bootstrap";
-import { assertSorted, valueAtRank } from "./quantile";
+import { assertSorted, quantileType6OfSorted } from "./quantile";
 import { binomialRankCi } from "./rank-ci";
 
 /** Fewest values for a point estimate of the 2.5th percentile: 0.025·(n + 1) ≥ 1. */
@@ -31,8 +31,7 @@ const P_LOW = 0.025;
 const P_HIGH = 0.975;
 
 function limitsOfSorted(sorted: ArrayLike<number>): [number | null, number | null] {
-  const r = sorted.length + 1;
-  return [valueAtRank(sorted, P_LOW * r), valueAtRank(sorted, P_HIGH * r)];
+  return [quantileType6OfSorted(sorted, P_LOW), quantileType6OfSorted(sorted, P_HIGH)];
 }
 
 /**

@@ -2,7 +2,7 @@
  * Horn's outlier screen for reference values: Box-Cox transformation to symmetry, then Tukey's
  * fences on the transformed scale, repeated until nothing more is flagged.
  */
-import { boxCoxFitFromTable, logTableOfSorted, type LogTable } from "./box-cox";
+import { boxCoxFitFromTable, boxCoxOfValue, logTableOfSorted, type LogTable } from "./box-cox";
 import type { OutlierProposal } from "./outliers";
 import { assertPositiveSample, StatsInputError } from "./validate";
 
@@ -45,34 +45,62 @@ export interface HornOptions {
 export function hornOutliers(values: readonly number[], options: HornOptions = {}): HornResult {
   assertPositiveSample(values);
   const screen = hornScreenSorted(Float64Array.from(values).sort(), options);
-  const { rounds } = screen;
-  const outliers: OutlierProposal[] = [];
-  if (rounds.length > 0) {
-    const last = rounds[rounds.length - 1];
-    for (let i = 0; i < values.length; i++) {
-      const v = values[i];
-      if (v >= last.keptMin && v <= last.keptMax) continue;
-      const low = v < last.keptMin;
-      const r = rounds.findIndex((rd) => (low ? v < rd.keptMin : v > rd.keptMax));
-      const rd = rounds[r];
-      const y = rd.lambda === 0 ? Math.log(v) : Math.expm1(rd.lambda * Math.log(v)) / rd.lambda;
-      const fence = low ? rd.lowerFence : rd.upperFence;
-      outliers.push({
-        index: i,
-        value: v,
-        method: "horn",
-        reason:
-          `Box-Cox value ${y.toPrecision(6)} (λ = ${rd.lambda.toFixed(4)}) is ` +
-          `${low ? "below the lower" : "above the upper"} fence ${fence.toPrecision(6)} (round ${r + 1})`,
-      });
-    }
-  }
+  const outliers = hornProposals(values, screen);
   const { lambda, lowerFence, upperFence, iterations, converged } = screen;
   return { outliers, lambda, lowerFence, upperFence, iterations, converged };
 }
 
+/**
+ * The proposals of a finished Horn screen for the caller's values, in their order: every value
+ * outside the final kept run, each with the round that set it aside, that round's λ, its
+ * Box-Cox value and the round's quartiles and fences on the Box-Cox scale.
+ * @see Horn PS, Feng L, Li Y, Pesce AJ. Clin Chem 2001;47:2137–2145; {@link hornOutliers}.
+ * Complexity O(n + p·r) for p proposals and r rounds. Throws nothing (values positive, as the
+ *   screen required).
+ * @example hornProposals(values, hornScreenSorted(Float64Array.from(values).sort()))
+ */
+export function hornProposals(values: readonly number[], screen: HornScreen): OutlierProposal[] {
+  const { rounds, k } = screen;
+  const outliers: OutlierProposal[] = [];
+  if (rounds.length === 0) return outliers;
+  const last = rounds[rounds.length - 1];
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (v >= last.keptMin && v <= last.keptMax) continue;
+    const low = v < last.keptMin;
+    const r = rounds.findIndex((rd) => (low ? v < rd.keptMin : v > rd.keptMax));
+    const rd = rounds[r];
+    const y = boxCoxOfValue(v, rd.lambda);
+    const fence = low ? rd.lowerFence : rd.upperFence;
+    outliers.push({
+      index: i,
+      value: v,
+      method: "horn",
+      reason:
+        `Box-Cox value ${y.toPrecision(6)} (λ = ${rd.lambda.toFixed(4)}) is ` +
+        `${low ? "below the lower" : "above the upper"} fence ${fence.toPrecision(6)} (round ${r + 1})`,
+      evidence: {
+        rule: "horn",
+        side: low ? "low" : "high",
+        lambda: rd.lambda,
+        transformedValue: y,
+        q1: rd.q1,
+        q3: rd.q3,
+        k,
+        lowerFence: rd.lowerFence,
+        upperFence: rd.upperFence,
+        round: r + 1,
+      },
+    });
+  }
+  return outliers;
+}
+
 export interface HornRound {
   lambda: number;
+  /** Type-7 quartiles of the Box-Cox values kept at the start of the round. */
+  q1: number;
+  q3: number;
   lowerFence: number;
   upperFence: number;
   /** Smallest and largest value kept after the round. */
@@ -85,6 +113,8 @@ export interface HornScreen {
   from: number;
   to: number;
   rounds: HornRound[];
+  /** The Tukey multiplier used. */
+  k: number;
   lambda: number;
   lowerFence: number;
   upperFence: number;
@@ -129,7 +159,7 @@ export function hornScreenSorted(sorted: Float64Array, options: HornOptions = {}
     iterations++;
     lambda = fitLambda(table, uLo, uHi, iterations === 1 ? null : lambda);
     const l = lambda;
-    const t = (v: number) => (l === 0 ? Math.log(v) : Math.expm1(l * Math.log(v)) / l);
+    const t = (v: number) => boxCoxOfValue(v, l);
     // Type-7 quartiles of the transformed kept values: the transform is increasing, so they
     // interpolate between the transforms of two neighbouring sorted values.
     const quartile = (p: number) => {
@@ -148,13 +178,13 @@ export function hornScreenSorted(sorted: Float64Array, options: HornOptions = {}
     while (hi - lo > 0 && t(sorted[hi - 1]) > upperFence) hi--;
     while (uLo < uHi && table.logs[uLo] < Math.log(sorted[lo])) uLo++;
     while (uHi > uLo && table.logs[uHi - 1] > Math.log(sorted[hi - 1])) uHi--;
-    rounds.push({ lambda: l, lowerFence, upperFence, keptMin: sorted[lo], keptMax: sorted[hi - 1] });
+    rounds.push({ lambda: l, q1, q3, lowerFence, upperFence, keptMin: sorted[lo], keptMax: sorted[hi - 1] });
     if (hi - lo === before) {
       converged = true;
       break;
     }
   }
-  return { from: lo, to: hi, rounds, lambda, lowerFence, upperFence, iterations, converged };
+  return { from: lo, to: hi, rounds, k, lambda, lowerFence, upperFence, iterations, converged };
 }
 
 /** λ̂ on table rows [lo, hi); after the first round a narrow bracket around the last λ̂ suffices. */

@@ -55,15 +55,26 @@ export function tukeyOutliers(values: readonly number[], k = 1.5): TukeyResult {
   for (let i = 0; i < values.length; i++) {
     const v = values[i];
     if (v < fences.lowerFence || v > fences.upperFence) {
-      const side =
-        v < fences.lowerFence
+      const side = v < fences.lowerFence ? "low" : "high";
+      const where =
+        side === "low"
           ? `below the lower fence ${fences.lowerFence}`
           : `above the upper fence ${fences.upperFence}`;
       outliers.push({
         index: i,
         value: v,
         method: "tukey",
-        reason: `${v} is ${side} (Q1 ${fences.q1}, Q3 ${fences.q3}, k ${k})`,
+        reason: `${v} is ${where} (Q1 ${fences.q1}, Q3 ${fences.q3}, k ${k})`,
+        evidence: {
+          rule: "tukey",
+          side,
+          value: v,
+          q1: fences.q1,
+          q3: fences.q3,
+          k,
+          lowerFence: fences.lowerFence,
+          upperFence: fences.upperFence,
+        },
       });
     }
   }

@@ -49,7 +49,83 @@ export function valueAtRank(sorted: ArrayLike<number>, r: number): number | null
 export function quantileType6(sorted: readonly number[], p: number): number | null {
   assertOpenProbability(p);
   assertSorted(sorted);
+  return quantileType6OfSorted(sorted, p);
+}
+
+/**
+ * As {@link quantileType6}, without input checks, for callers that hold a sorted copy and a
+ * fixed p (the nonparametric limits, each bootstrap replicate).
+ * @see Hyndman RJ, Fan Y. Am Stat 1996;50:361–365 (definition 6).
+ * Complexity O(1). Throws nothing; null when p(n + 1) is outside [1, n].
+ * @example quantileType6OfSorted(Float64Array.of(1, 2, 3, 4, 5, 6, 7, 8, 9), 0.25) // 2.5
+ */
+export function quantileType6OfSorted(sorted: ArrayLike<number>, p: number): number | null {
   return valueAtRank(sorted, p * (sorted.length + 1));
+}
+
+/**
+ * Sorted values grouped for rank look-ups: the distinct values with the first and last 1-based
+ * rank each one occupies.
+ */
+export interface RankTable {
+  n: number;
+  distinct: Float64Array;
+  first: Float64Array;
+  last: Float64Array;
+}
+
+/**
+ * The rank table of values sorted ascending (not re-checked).
+ * @see common practice (grouping tied order statistics)
+ * Complexity O(n). Throws nothing.
+ * @example rankTableOfSorted([1, 2, 2, 3]) // { n: 4, distinct: [1, 2, 3], first: [1, 2, 4], last: [1, 3, 4] }
+ */
+export function rankTableOfSorted(sorted: ArrayLike<number>): RankTable {
+  const len = sorted.length;
+  let d = len > 0 ? 1 : 0;
+  for (let i = 1; i < len; i++) if (sorted[i] !== sorted[i - 1]) d++;
+  const distinct = new Float64Array(d);
+  const first = new Float64Array(d);
+  const last = new Float64Array(d);
+  let j = -1;
+  for (let i = 0; i < len; i++) {
+    if (i === 0 || sorted[i] !== sorted[i - 1]) {
+      distinct[++j] = sorted[i];
+      first[j] = i + 1;
+    }
+    last[j] = i + 1;
+  }
+  return { n: len, distinct, first, last };
+}
+
+/**
+ * Fractional rank of x, the inverse of the type-6 quantile: the r in [1, n] at which
+ * valueAtRank(sorted, r) = x, so that r/(n + 1) is x's empirical cumulative proportion. Where
+ * several values equal x the quantile is flat over their ranks i … j and the mid-rank
+ * (i + j)/2 is returned; between two distinct values the rank runs linearly from the last rank
+ * of the lower to the first rank of the upper. Outside [x(1), x(n)] the rank is clamped to 1 or
+ * n: the caller reports a bound there (compare x with the first and last distinct value).
+ * @see Hyndman RJ, Fan Y. Sample quantiles in statistical packages. Am Stat 1996;50:361–365
+ *   (definition 6, inverted).
+ * Complexity O(log d) for d distinct values (binary search). Throws nothing; the table must
+ *   not be empty and x must be a number.
+ * @example rankType6(rankTableOfSorted([1, 2, 3, 4]), 2.5) // 2.5, i.e. 2.5/5 = 50%
+ */
+export function rankType6(table: RankTable, x: number): number {
+  const { distinct, first, last } = table;
+  const top = distinct.length - 1;
+  if (x < distinct[0]) return 1;
+  if (x > distinct[top]) return table.n;
+  let lo = 0;
+  let hi = top;
+  // Largest k with distinct[k] ≤ x.
+  while (lo < hi) {
+    const mid = (lo + hi + 1) >> 1;
+    if (distinct[mid] <= x) lo = mid;
+    else hi = mid - 1;
+  }
+  if (distinct[lo] === x) return (first[lo] + last[lo]) / 2;
+  return last[lo] + (x - distinct[lo]) / (distinct[lo + 1] - distinct[lo]);
 }
 
 /**

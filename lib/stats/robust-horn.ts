@@ -159,15 +159,66 @@ export interface RobustLimits {
   upperCi: [number, number] | null;
 }
 
-export interface RobustOptions extends RobustConstants {
+export interface RobustPointOptions extends RobustConstants {
   /** Scale on which the method runs (it assumes symmetry); default "none". */
   transform?: Transform;
   /** Box-Cox λ when transform is "box-cox" (required then). */
   lambda?: number | null;
+}
+
+export interface RobustOptions extends RobustPointOptions {
   /** Bootstrap seed; default 1. */
   seed?: number;
   /** Bootstrap replicates; default 1000. */
   replicates?: number;
+}
+
+interface OnScale {
+  y: number[];
+  transform: Transform;
+  lambda: number | null;
+  cL: number;
+  cS: number;
+  est: RobustEstimate | null;
+}
+
+/** Checks, carries the values to the analysis scale and estimates there: shared by both entry points. */
+function robustOnScale(values: readonly number[], options: RobustPointOptions): OnScale {
+  assertFiniteSample(values);
+  const n = values.length;
+  if (n < ROBUST_MIN_N || n > ROBUST_MAX_N) {
+    throw new StatsInputError(
+      `the robust method is defined for ${ROBUST_MIN_N} to ${ROBUST_MAX_N} values (got ${n})`,
+    );
+  }
+  const transform = options.transform ?? "none";
+  if (transform === "box-cox" && (options.lambda === undefined || options.lambda === null)) {
+    throw new StatsInputError("the robust method on the Box-Cox scale needs λ");
+  }
+  const lambda = transform === "box-cox" ? (options.lambda as number) : null;
+  const cL = options.cLocation ?? C_LOCATION;
+  const cS = options.cScale ?? C_SCALE;
+  const y = values.map((v) => toScale(v, transform, lambda));
+  return { y, transform, lambda, cL, cS, est: robustLimitsOnScale(y, { cLocation: cL, cScale: cS }) };
+}
+
+/**
+ * Horn-Pesce-Copeland robust 95% reference limits in the data's unit, point estimates only (no
+ * bootstrap): the method runs on the given scale (raw, ln or Box-Cox with λ) and the limits are
+ * carried back; a limit whose back-transformation is undefined, or that cannot be estimated
+ * (MAD 0), is null. For simulations and for callers that do not need the CIs.
+ * @see Horn PS, Pesce AJ, Copeland BE. Clin Chem 1998;44:622–631.
+ * Complexity O(n log n).
+ * Throws StatsInputError as {@link robustReferenceLimits}.
+ * @example robustPointLimits(eightyValues, { transform: "box-cox", lambda: 0.31 }) // { lower, upper }
+ */
+export function robustPointLimits(
+  values: readonly number[],
+  options: RobustPointOptions = {},
+): { lower: number | null; upper: number | null } {
+  const { transform, lambda, est } = robustOnScale(values, options);
+  if (est === null) return { lower: null, upper: null };
+  return { lower: fromScale(est.lower, transform, lambda), upper: fromScale(est.upper, transform, lambda) };
 }
 
 /**
@@ -186,22 +237,7 @@ export function robustReferenceLimits(
   values: readonly number[],
   options: RobustOptions = {},
 ): RobustLimits {
-  assertFiniteSample(values);
-  const n = values.length;
-  if (n < ROBUST_MIN_N || n > ROBUST_MAX_N) {
-    throw new StatsInputError(
-      `the robust method is defined for ${ROBUST_MIN_N} to ${ROBUST_MAX_N} values (got ${n})`,
-    );
-  }
-  const transform = options.transform ?? "none";
-  if (transform === "box-cox" && (options.lambda === undefined || options.lambda === null)) {
-    throw new StatsInputError("the robust method on the Box-Cox scale needs λ");
-  }
-  const lambda = transform === "box-cox" ? (options.lambda as number) : null;
-  const cL = options.cLocation ?? C_LOCATION;
-  const cS = options.cScale ?? C_SCALE;
-  const y = values.map((v) => toScale(v, transform, lambda));
-  const est = robustLimitsOnScale(y, { cLocation: cL, cScale: cS });
+  const { y, transform, lambda, cL, cS, est } = robustOnScale(values, options);
   if (est === null) return { lower: null, upper: null, lowerCi: null, upperCi: null };
   const [lo, hi] = percentileBootstrap(
     y,

@@ -1,24 +1,32 @@
 /**
- * `bellwether estimate FILE [--outliers none|dixon|tukey|horn] [--transform auto|none|ln|box-cox] [--seed N]`
+ * `bellwether estimate FILE [--outliers none|dixon|tukey|horn] [--screening apply|propose]
+ *   [--transform auto|none|ln|box-cox] [--seed N]`
  * Reads a CSV with a header row and a `value` column (other columns are ignored) and prints
- * the estimate document as JSON.
+ * the estimate document as JSON, stamped with the engine's version and commit. The command
+ * line applies the outlier screen by default (its proposals are excluded, and the document's
+ * `screening.applied` says so); `--screening propose` only lists them, as the app does.
  */
 import { readFile } from "node:fs/promises";
 import Papa from "papaparse";
 import {
   estimateReferenceInterval,
   OUTLIER_OPTIONS,
+  SCREENING_MODES,
   TRANSFORM_OPTIONS,
   DEFAULT_SEED,
+  type EngineIdentity,
   type OutlierOption,
+  type ScreeningMode,
   type TransformOption,
 } from "../../lib/stats/estimate";
+import { engineIdentity, stampEngine } from "../../lib/engine";
 import { StatsInputError } from "../../lib/stats/validate";
 import { CliError } from "./cli-error";
 
 interface Parsed {
   file: string;
   outliers: OutlierOption;
+  screening: ScreeningMode;
   transform: TransformOption;
   seed: number;
 }
@@ -26,6 +34,7 @@ interface Parsed {
 function parseArgs(args: string[]): Parsed {
   let file: string | null = null;
   let outliers: OutlierOption = "horn";
+  let screening: ScreeningMode = "apply";
   let transform: TransformOption = "auto";
   let seed = DEFAULT_SEED;
   for (let i = 0; i < args.length; i++) {
@@ -44,6 +53,12 @@ function parseArgs(args: string[]): Parsed {
         throw new CliError(`--outliers must be one of ${OUTLIER_OPTIONS.join(", ")} (got "${v}")`);
       }
       outliers = v as OutlierOption;
+    } else if (flag === "--screening") {
+      const v = value();
+      if (!(SCREENING_MODES as readonly string[]).includes(v)) {
+        throw new CliError(`--screening must be one of ${SCREENING_MODES.join(", ")} (got "${v}")`);
+      }
+      screening = v as ScreeningMode;
     } else if (flag === "--transform") {
       const v = value();
       if (!(TRANSFORM_OPTIONS as readonly string[]).includes(v)) {
@@ -65,7 +80,7 @@ function parseArgs(args: string[]): Parsed {
     }
   }
   if (file === null) throw new CliError("estimate needs a CSV FILE with a value column");
-  return { file, outliers, transform, seed };
+  return { file, outliers, screening, transform, seed };
 }
 
 /** Values of the `value` column, with 1-based file line numbers in the error messages. */
@@ -120,16 +135,29 @@ export async function run(args: string[]): Promise<number> {
     );
   }
   const values = readValues(text, opts.file);
+  const engine = readEngine();
+  let doc;
   try {
-    const doc = estimateReferenceInterval(values, {
+    doc = estimateReferenceInterval(values, {
       outliers: opts.outliers,
+      screening: opts.screening,
       transform: opts.transform,
       seed: opts.seed,
     });
-    process.stdout.write(`${JSON.stringify(doc, null, 2)}\n`);
-    return 0;
   } catch (e) {
     if (e instanceof StatsInputError) throw new CliError(e.message);
     throw e;
+  }
+  process.stdout.write(`${JSON.stringify(stampEngine(doc, engine), null, 2)}\n`);
+  return 0;
+}
+
+/** The engine's identity; a malformed BELLWETHER_COMMIT is the caller's error, not a crash. */
+function readEngine(): EngineIdentity {
+  try {
+    return engineIdentity();
+  } catch (e) {
+    const problems = String((e as Error).message).split("\n").slice(1).map((l) => l.replace(/^\s*-\s*/, ""));
+    throw new CliError(`the environment is not valid: ${problems.join("; ")}`);
   }
 }

@@ -1,4 +1,5 @@
-import { execFile } from "node:child_process";
+import { execFile, execFileSync } from "node:child_process";
+import { readFileSync } from "node:fs";
 import path from "node:path";
 import { promisify } from "node:util";
 import { describe, expect, it, vi } from "vitest";
@@ -69,11 +70,58 @@ describe("bellwether estimate (in-process)", () => {
     const doc = JSON.parse(
       await inProcess([FIX("estimate-gaussian-150-outlier.csv"), "--outliers", "dixon", "--transform", "none"]),
     );
-    expect(doc.excluded).toEqual([{ value: 46, reason: "dixon" }]);
+    // The fixture's value column sorted (`sort -g`): min 3.7, …, 5.85, 46 on data row 150.
+    // Dixon/Reed (METHODS.md §4.1): D/R = (46 − 5.85)/(46 − 3.7) = 40.15/42.3 = 0.94917… ≥ 1/3.
+    expect(doc.excluded).toEqual([
+      {
+        value: 46,
+        reason: "dixon",
+        index: 149,
+        explanation: "D/R = 0.9492 ≥ 1/3 (high)",
+        evidence: {
+          rule: "dixon",
+          side: "high",
+          kind: "single",
+          gap: expect.closeTo(40.15, 12),
+          range: expect.closeTo(42.3, 12),
+          ratio: expect.closeTo(40.15 / 42.3, 12),
+          threshold: 1 / 3,
+          step: 1,
+        },
+      },
+    ]);
     expect(doc.n).toBe(149);
     expect(doc.parametric.transform).toBe("none");
     expect(doc.nonparametric.lowerCi).toHaveLength(2);
     expect(doc.recommended).toBe("nonparametric");
+  });
+
+  it("applies the screen by default and says so in the document", async () => {
+    const doc = JSON.parse(await inProcess([FIX("estimate-gaussian-150-outlier.csv"), "--outliers", "dixon"]));
+    expect(doc.screening).toEqual({ outliers: "dixon", rule: "dixon", mode: "apply", applied: true, valuesGiven: 150 });
+    expect(doc.provenance.options).toEqual({ outliers: "dixon", screening: "apply", transform: "auto", seed: 1 });
+    expect(doc.proposed).toEqual(doc.excluded);
+  });
+
+  it("only proposes with --screening propose, as the app does", async () => {
+    const doc = JSON.parse(
+      await inProcess([FIX("estimate-gaussian-150-outlier.csv"), "--outliers", "dixon", "--screening", "propose"]),
+    );
+    expect(doc.screening).toMatchObject({ mode: "propose", applied: false });
+    expect(doc.excluded).toEqual([]);
+    expect(doc.proposed.map((p: { value: number }) => p.value)).toEqual([46]);
+    expect(doc.n).toBe(150);
+  });
+
+  it("stamps the engine's version and commit", async () => {
+    const doc = JSON.parse(await inProcess([FIX("estimate-lognormal-80.csv")]));
+    // Expected from outside the code: package.json's version and git's own answer.
+    const version = JSON.parse(readFileSync(path.join(ROOT, "package.json"), "utf8")).version;
+    const head = execFileSync("git", ["rev-parse", "HEAD"], { cwd: ROOT, encoding: "utf8" }).trim();
+    expect(doc.provenance.engine).toMatchObject({ name: "bellwether", version, commit: head });
+    expect(typeof doc.provenance.engine.uncommittedChanges).toBe("boolean");
+    expect(doc.provenance.robust).toMatchObject({ madNormal: 0.6745, cLocation: 3.7 });
+    expect(doc.provenance.bootstrap.replicates).toBe(1000);
   });
 
   it("gives the same document in-process as the same seed twice", async () => {
@@ -89,6 +137,11 @@ describe("bellwether estimate (in-process)", () => {
     ["an unknown option value", [FIX("estimate-lognormal-80.csv"), "--transform", "sqrt"], /--transform must be one of/],
     ["an unknown option", [FIX("estimate-lognormal-80.csv"), "--bins", "3"], /unknown option --bins/],
     ["a bad seed", [FIX("estimate-lognormal-80.csv"), "--seed", "x"], /--seed must be an integer/],
+    [
+      "an unknown screening mode",
+      [FIX("estimate-lognormal-80.csv"), "--screening", "drop"],
+      /--screening must be one of propose, apply \(got "drop"\)/,
+    ],
     ["no file", [], /needs a CSV FILE/],
   ];
   for (const [label, args, message] of bad) {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { parseEnv } from "@/lib/env";
+import { parseEngineEnv, parseEnv } from "@/lib/env";
 
 const valid = {
   DATABASE_URL: "postgres://postgres:pw@127.0.0.1:54329/bellwether",
@@ -30,5 +30,17 @@ describe("parseEnv", () => {
   it("reads the sign-in limits as whole numbers", () => {
     expect(parseEnv({ ...valid, BELLWETHER_SIGN_IN_MAX_FAILURES: "3" }).BELLWETHER_SIGN_IN_MAX_FAILURES).toBe(3);
     expect(() => parseEnv({ ...valid, BELLWETHER_SIGN_IN_LOCK_MINUTES: "0" })).toThrow("BELLWETHER_SIGN_IN_LOCK_MINUTES");
+  });
+});
+
+describe("parseEngineEnv", () => {
+  it("accepts a git commit hash or nothing, and names a malformed one", () => {
+    expect(parseEngineEnv({})).toEqual({});
+    expect(parseEngineEnv({ BELLWETHER_COMMIT: "0123abc" }).BELLWETHER_COMMIT).toBe("0123abc");
+    expect(() => parseEngineEnv({ BELLWETHER_COMMIT: "main" })).toThrow(
+      "  - BELLWETHER_COMMIT: BELLWETHER_COMMIT must be a git commit hash (7 to 40 hex digits)",
+    );
+    // The app's full environment checks it too.
+    expect(() => parseEnv({ ...valid, BELLWETHER_COMMIT: "v1.0" })).toThrow("BELLWETHER_COMMIT");
   });
 });

@@ -1,6 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { createScorer, scoreMany, scoreValue } from "@/lib/scoring/score";
-import { scoringPartitionSchema, type ScoringPartitionInput } from "@/lib/scoring/model";
+import {
+  gaussianModelSchema,
+  scoringModelSchema,
+  scoringPartitionSchema,
+  type ScoringPartitionInput,
+} from "@/lib/scoring/model";
 import { GENERAL_CAUTION } from "@/lib/scoring/cautions";
 import { StatsInputError } from "@/lib/stats/validate";
 import fx from "../fixtures/scoring-checks.json";
@@ -111,26 +116,37 @@ describe("scoreValue", () => {
 });
 
 describe("scoreMany", () => {
-  it("agrees with the one-value scorer for every model kind", () => {
-    const values = [100, 134.9, 137, 139.65035, 140, 142.5, 146.6, 200];
-    for (const partition of [empirical]) {
+  it("gives R's z, percentile and bound for every model kind, in the batch and one value at a time", () => {
+    // Expected: scripts/fixtures/scoring-checks.R ("everyKind"): pnorm of the transformed z for
+    // gaussian models; for empirical ones the inverse type-6 quantile written out in R from
+    // DESIGN.md's rule (mid-rank on ties, bounds outside the data), on 150 values and on a
+    // small tied set. 1e-9: Φ and Φ⁻¹ of @stdlib against R's, and (x^λ − 1)/λ against expm1.
+    const covered = new Set<string>();
+    for (const c of fx.everyKind) {
+      const partition = scoringPartitionSchema.parse({ low: null, high: 1e6, unit: "mmol/L", model: c.model });
+      const kind = c.model.kind === "gaussian" ? `gaussian/${c.model.transform}` : "empirical";
+      covered.add(kind);
+      const many = scoreMany(partition, c.values);
       const one = createScorer(partition);
-      const many = scoreMany(partition, values);
-      values.forEach((v, i) => {
+      expect(many.invalid).toEqual([]);
+      c.values.forEach((v, i) => {
+        const label = `${kind} at ${v}`;
+        expect(many.z[i], label).toBeCloseTo(c.z[i], 9);
+        expect(many.percentile[i], label).toBeCloseTo(c.percentile[i], 9);
+        expect(many.bound[i], label).toBe(c.bound[i]);
         const s = one(v);
-        expect(many.z[i]).toBe(s.z);
-        expect(many.percentile[i]).toBe(s.percentile);
-        expect(many.bound[i]).toBe(s.bound === "below" ? -1 : s.bound === "above" ? 1 : 0);
+        expect(s.z, label).toBeCloseTo(c.z[i], 9);
+        expect(s.percentile, label).toBeCloseTo(c.percentile[i], 9);
+        expect(s.bound, label).toBe(c.bound[i] === -1 ? "below" : c.bound[i] === 1 ? "above" : null);
       });
     }
-    const bc = scoringPartitionSchema.parse({
-      ...potassium,
-      model: { kind: "gaussian", transform: "box-cox", lambda: fx.boxCox.lambda, mean: fx.boxCox.mean, sd: fx.boxCox.sd },
-    });
-    const many = scoreMany(bc, [12, 3, 0.5]);
-    // R (scoring-checks.R): z = 1.426965547123339 at 12.
-    expect(many.z[0]).toBeCloseTo(fx.boxCox.z, 10);
-    expect(many.z[1]).toBe(createScorer(bc)(3).z);
+    // Every member of the union (lib/scoring/model.ts), so a new kind cannot go unchecked.
+    const union = scoringModelSchema.options.flatMap((o) =>
+      o.shape.kind.value === "gaussian"
+        ? gaussianModelSchema.shape.transform.options.map((t) => `gaussian/${t}`)
+        : [o.shape.kind.value],
+    );
+    expect([...covered].sort()).toEqual([...union].sort());
   });
 
   it("marks values it cannot score as NaN and lists them, leaving the rest", () => {

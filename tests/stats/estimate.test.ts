@@ -3,7 +3,6 @@ import normal from "@stdlib/stats-base-dists-normal";
 import { skewness } from "@/lib/stats/descriptive";
 import { estimateReferenceInterval } from "@/lib/stats/estimate";
 import { createRandom } from "@/lib/stats/random";
-import { parametricLimits } from "@/lib/stats/parametric";
 import { shapiroWilk } from "@/lib/stats/shapiro-wilk";
 import { StatsInputError } from "@/lib/stats/validate";
 import fixture from "../fixtures/reference-limits.json";
@@ -12,10 +11,15 @@ const set = (name: string) => fixture.sets.find((s) => s.name === name)!;
 
 describe("estimateReferenceInterval", () => {
   it("has exactly the document shape of the estimate contract", () => {
+    // DESIGN.md: the contract's fields (n … warnings) stay; proposed, screening and provenance
+    // were added after them.
     const d = estimateReferenceInterval(set("lognormal-80").values);
     expect(Object.keys(d)).toEqual([
       "n", "excluded", "nonparametric", "parametric", "robust", "normality", "recommended", "warnings",
+      "proposed", "screening", "provenance",
     ]);
+    expect(Object.keys(d.screening)).toEqual(["outliers", "rule", "mode", "applied", "valuesGiven"]);
+    expect(Object.keys(d.provenance)).toEqual(["options", "bootstrap", "robust", "engine"]);
     expect(Object.keys(d.nonparametric)).toEqual(["lower", "upper", "lowerCi", "upperCi"]);
     expect(Object.keys(d.parametric)).toEqual([
       "transform", "lambda", "mean", "sd", "lower", "upper", "lowerCi", "upperCi",
@@ -51,22 +55,96 @@ describe("estimateReferenceInterval", () => {
     expect(d.warnings.join(" ")).not.toMatch(/bootstrap/);
   });
 
-  it("excludes what the screen proposes and labels the reason", () => {
+  describe("outlier screening", () => {
+    // 120 Gaussian values from R (scripts/fixtures/reference-limits.R) and one gross error.
     const x = [...set("gaussian-120").values, 46];
-    const d = estimateReferenceInterval(x, { outliers: "horn" });
-    expect(d.excluded).toContainEqual({ value: 46, reason: "horn" });
-    expect(d.n).toBe(x.length - d.excluded.length);
-    const none = estimateReferenceInterval(x, { outliers: "none" });
-    expect(none.excluded).toEqual([]);
-    expect(none.n).toBe(x.length);
-    expect(estimateReferenceInterval(x, { outliers: "dixon" }).excluded).toContainEqual({ value: 46, reason: "dixon" });
-    expect(estimateReferenceInterval(x, { outliers: "tukey" }).excluded).toContainEqual({ value: 46, reason: "tukey" });
+    const sorted = [...x].sort((a, b) => a - b);
+
+    it("only proposes by default: nothing excluded, limits on every value given", () => {
+      const d = estimateReferenceInterval(x, { outliers: "horn", transform: "none" });
+      expect(d.screening).toEqual({ outliers: "horn", rule: "horn", mode: "propose", applied: false, valuesGiven: 121 });
+      expect(d.excluded).toEqual([]);
+      expect(d.proposed).toContainEqual(expect.objectContaining({ value: 46, reason: "horn", index: 120 }));
+      expect(d.n).toBe(121);
+      // Type-6 limits of all 121 values, worked by hand (Hyndman & Fan definition 6):
+      // r = 0.025·122 = 3.05 and 0.975·122 = 118.95. 1e-12: one interpolation.
+      expect(d.nonparametric.lower).toBeCloseTo(sorted[2] + 0.05 * (sorted[3] - sorted[2]), 12);
+      expect(d.nonparametric.upper).toBeCloseTo(sorted[117] + 0.95 * (sorted[118] - sorted[117]), 12);
+      // Raw-scale mean of all 121 values, the gross error included (plain arithmetic).
+      expect(d.parametric.mean).toBeCloseTo(x.reduce((a, b) => a + b, 0) / 121, 10);
+      expect(d.warnings.join(" ")).toMatch(/Horn screen proposes \d+ values? for exclusion/);
+    });
+
+    it("with screening apply excludes the proposals, lists them in both lists, and says so", () => {
+      const d = estimateReferenceInterval(x, { outliers: "horn", screening: "apply" });
+      expect(d.screening).toEqual({ outliers: "horn", rule: "horn", mode: "apply", applied: true, valuesGiven: 121 });
+      expect(d.excluded).toContainEqual(expect.objectContaining({ value: 46, reason: "horn" }));
+      expect(d.proposed).toEqual(d.excluded);
+      expect(d.n).toBe(121 - d.excluded.length);
+      expect(d.provenance.options).toEqual({ outliers: "horn", screening: "apply", transform: "auto", seed: 1 });
+    });
+
+    it("gives each proposal the rule's statistic", () => {
+      // Dixon/Reed (METHODS.md §4.1), by hand on the sorted data: D = 46 − x(120), R = 46 − x(1).
+      const dixon = estimateReferenceInterval(x, { outliers: "dixon", screening: "apply" });
+      expect(dixon.excluded).toHaveLength(1);
+      const de = dixon.excluded[0];
+      expect(de).toMatchObject({ value: 46, reason: "dixon", index: 120 });
+      expect(de.evidence).toMatchObject({ rule: "dixon", side: "high", kind: "single", threshold: 1 / 3, step: 1 });
+      expect(de.evidence.rule === "dixon" && de.evidence.ratio).toBeCloseTo((46 - sorted[119]) / (46 - sorted[0]), 12);
+      expect(de.explanation).toMatch(/^D\/R = 0\.\d{4} ≥ 1\/3 \(high\)$/);
+      // Tukey (METHODS.md §4.2), type-7 quartiles by hand: ranks 1 + 0.25·120 = 31 and 91, whole
+      // numbers, so Q1 = x(31) and Q3 = x(91).
+      const tukey = estimateReferenceInterval(x, { outliers: "tukey", screening: "apply" });
+      const te = tukey.excluded.find((e) => e.value === 46)!;
+      const iqr = sorted[90] - sorted[30];
+      expect(te.evidence).toEqual({
+        rule: "tukey",
+        side: "high",
+        value: 46,
+        q1: sorted[30],
+        q3: sorted[90],
+        k: 1.5,
+        lowerFence: sorted[30] - 1.5 * iqr,
+        upperFence: sorted[90] + 1.5 * iqr,
+      });
+      // Horn: the Box-Cox value lies beyond the upper fence of its round (checked against R in
+      // tests/stats/outliers-horn.test.ts).
+      const horn = estimateReferenceInterval(x, { outliers: "horn" }).proposed.find((e) => e.value === 46)!;
+      expect(horn.evidence.rule).toBe("horn");
+      if (horn.evidence.rule === "horn") {
+        expect(horn.evidence.transformedValue).toBeGreaterThan(horn.evidence.upperFence);
+        expect(horn.evidence).toMatchObject({ side: "high", k: 1.5, round: 1 });
+      }
+    });
+
+    it("excludes nothing and proposes nothing without a screen", () => {
+      const none = estimateReferenceInterval(x, { outliers: "none", screening: "apply" });
+      expect(none.excluded).toEqual([]);
+      expect(none.proposed).toEqual([]);
+      expect(none.n).toBe(x.length);
+      expect(none.screening).toMatchObject({ rule: null, applied: false });
+    });
+  });
+
+  it("records what is needed to reproduce it", () => {
+    const d = estimateReferenceInterval(set("gamma-45").values, { seed: 7 });
+    // 45 values: both the nonparametric (below 119) and the robust CIs are bootstrapped.
+    expect(d.provenance).toEqual({
+      options: { outliers: "horn", screening: "propose", transform: "auto", seed: 7 },
+      bootstrap: { method: "percentile", generator: "xoshiro128**", replicates: 1000, level: 0.9, usedFor: ["nonparametric", "robust"] },
+      // The constants chosen in lib/stats/robust-horn.ts (its header says why): 0.6745, 3.7, 9 raw MADs.
+      robust: { method: "Horn-Pesce-Copeland 1998, biweight", madNormal: 0.6745, cLocation: 3.7, cScale: 9 * 0.6745 },
+      // lib/stats cannot know the engine; lib/engine.ts stamps it.
+      engine: null,
+    });
   });
 
   it("falls back to Tukey on the raw scale when Horn meets a non-positive value", () => {
     const x = set("gaussian-60").values.map((v) => v - 140);
     const d = estimateReferenceInterval(x);
     expect(d.warnings.join(" ")).toMatch(/Tukey fences on the raw scale/);
+    expect(d.screening).toMatchObject({ outliers: "horn", rule: "tukey" });
     expect(d.parametric.transform).toBe("none");
   });
 
@@ -77,12 +155,15 @@ describe("estimateReferenceInterval", () => {
     expect(estimateReferenceInterval(x, { seed: 8 }).robust).not.toEqual(a.robust);
   });
 
-  it("matches a plain parametric computation for transform none", () => {
-    const x = set("gaussian-60").values;
-    const d = estimateReferenceInterval(x, { outliers: "none", transform: "none" });
-    const p = parametricLimits(x);
-    expect(d.parametric.lower).toBeCloseTo(p.lower!, 12);
-    expect(d.parametric.upperCi![1]).toBeCloseTo(p.upperCi![1], 12);
+  it("gives R's raw-scale parametric limits for transform none", () => {
+    // R (scripts/fixtures/reference-limits.R): mean(x) ± qnorm(.975)·sd(x) on gaussian-60;
+    // 1e-9 relative: the same closed formula in double precision.
+    const ref = set("gaussian-60");
+    const d = estimateReferenceInterval(ref.values, { outliers: "none", transform: "none" });
+    expect(Math.abs(d.parametric.mean! / ref.raw.mean - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(d.parametric.sd! / ref.raw.sd - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(d.parametric.lower! / ref.raw.lower - 1)).toBeLessThan(1e-9);
+    expect(Math.abs(d.parametric.upper! / ref.raw.upper - 1)).toBeLessThan(1e-9);
   });
 
   it("above 5000 values scores each scale by |skewness| and leaves Shapiro-Wilk null", () => {
@@ -106,5 +187,8 @@ describe("estimateReferenceInterval", () => {
     expect(() => estimateReferenceInterval([1, 2, 3], { outliers: "grubbs" as never })).toThrow(/outliers must be/);
     expect(() => estimateReferenceInterval([-1, 2, 3], { transform: "ln" })).toThrow(/positive/);
     expect(() => estimateReferenceInterval([1, 2, 3], { seed: 0.5 })).toThrow(/seed/);
+    expect(() => estimateReferenceInterval([1, 2, 3], { screening: "drop" as never })).toThrow(
+      'screening must be one of propose, apply (got "drop")',
+    );
   });
 });

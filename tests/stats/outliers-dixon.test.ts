@@ -14,6 +14,17 @@ describe("dixonReedOutliers", () => {
     expect(r.steps[1]).toMatchObject({ side: "high", kind: "single", flagged: false });
     expect(r.steps[1].ratio).toBeCloseTo(13 / 47, 12);
     expect(r.outliers[0].reason).toContain("0.4659");
+    // The statistic itself: D = 236 − 195, R = 236 − 148 (METHODS.md §4.1), against 1/3.
+    expect(r.outliers[0].evidence).toEqual({
+      rule: "dixon",
+      side: "high",
+      kind: "single",
+      gap: 41,
+      range: 88,
+      ratio: 41 / 88,
+      threshold: 1 / 3,
+      step: 1,
+    });
   });
 
   it("never alters the caller's array and reports original indices", () => {
@@ -31,6 +42,10 @@ describe("dixonReedOutliers", () => {
     const r = dixonReedOutliers(pair);
     expect(r.outliers.map((o) => o.value).sort((a, b) => a - b)).toEqual([100, 101]);
     expect(r.steps.find((s) => s.kind === "block")).toMatchObject({ side: "high", flagged: true });
+    // Both values of the block carry its statistic: gap 100 − 10 = 90 over the range 101 − 1 = 100.
+    for (const o of r.outliers) {
+      expect(o.evidence).toMatchObject({ rule: "dixon", side: "high", kind: "block", gap: 90, range: 100, ratio: 0.9 });
+    }
     // low side: (20 - 1)/(25 - 1) = 0.79 ≥ 1/3
     const low = dixonReedOutliers([1, 20, 21, 22, 23, 24, 25]);
     expect(low.outliers.map((o) => o.value)).toEqual([1]);

@@ -14,6 +14,17 @@ describe("tukeyOutliers", () => {
     expect(r.lowerFence).toBeCloseTo(133.5, 12);
     expect(r.upperFence).toBeCloseTo(201.5, 12);
     expect(r.outliers.map((o) => [o.index, o.value, o.method])).toEqual([[10, 236, "tukey"]]);
+    // The value and the fences it lies beyond (METHODS.md §4.2: 133.5 and 201.5).
+    expect(r.outliers[0].evidence).toEqual({
+      rule: "tukey",
+      side: "high",
+      value: 236,
+      q1: 159,
+      q3: 176,
+      k: 1.5,
+      lowerFence: 133.5,
+      upperFence: 201.5,
+    });
   });
 
   it("uses R's type-7 quartiles (scripts/fixtures/reference-limits.R)", () => {

@@ -3,6 +3,7 @@ import {
   C_LOCATION,
   C_SCALE,
   robustLimitsOnScale,
+  robustPointLimits,
   robustReferenceLimits,
 } from "@/lib/stats/robust-horn";
 import { parametricLimits } from "@/lib/stats/parametric";
@@ -29,6 +30,20 @@ describe("robustLimitsOnScale (the estimator without CIs)", () => {
     expect(r.locationSe).toBeCloseTo(0.314854414327, 6);
     expect(r.lower).toBeCloseTo(135.111648891108, 6);
     expect(r.upper).toBeCloseTo(144.522340533351, 6);
+  });
+
+  it("gives the same R-computed limits through the point-only entry point and the one with CIs", () => {
+    // R values as above (135.111648891108, 144.522340533351); 1e-6 for the same reason.
+    const point = robustPointLimits(G60);
+    expect(point.lower).toBeCloseTo(135.111648891108, 6);
+    expect(point.upper).toBeCloseTo(144.522340533351, 6);
+    const withCi = robustReferenceLimits(G60, { replicates: 100 });
+    expect(withCi.lower).toBeCloseTo(135.111648891108, 6);
+    expect(withCi.upper).toBeCloseTo(144.522340533351, 6);
+    expect(() => robustPointLimits(G60.slice(0, 19))).toThrow(
+      "the robust method is defined for 20 to 119 values (got 19)",
+    );
+    expect(() => robustPointLimits(G60, { transform: "box-cox" })).toThrow("the robust method on the Box-Cox scale needs λ");
   });
 
   it("is not estimable when more than half the values are equal (MAD = 0)", () => {
