@@ -11,6 +11,7 @@ export * from "./brent-root";
 export * from "./gauss-legendre";
 export * from "./noncentral-t";
 export * from "./box-cox";
+export * from "./box-cox-lrt";
 export * from "./rank-ci";
 export * from "./nonparametric";
 export * from "./parametric";
