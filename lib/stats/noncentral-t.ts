@@ -96,14 +96,14 @@ function as243(t: number, df: number, delta: number): number {
 interface LogURange {
   lo: number;
   hi: number;
-  /** A width over which the density changes by a modest factor: its SD for large ν. */
-  scale: number;
   /** log of the density of s at s = 0. */
   logDensityAt0: number;
 }
 
 const TAIL = 1e-16;
 const RULE = gaussLegendreRule(12);
+/** Panels span at most this many local scales of the integrand (see addPanels). */
+const PANEL_SCALES = 1.5;
 /** Beyond |t·u − δ| = 10, Φ(t·u − δ) is 0 or 1 within 8e−24. */
 const STEP_HALF_WIDTH = 10;
 
@@ -113,28 +113,37 @@ function logURange(df: number): LogURange {
     // Below df ≈ 0.1 the lower quantile underflows; the smallest double stands in for it.
     lo: 0.5 * Math.log(Math.max(qLo, Number.MIN_VALUE) / df),
     hi: 0.5 * Math.log(chisquare.quantile(1 - TAIL, df) / df),
-    scale: Math.min(1, 1 / Math.sqrt(2 * df)),
     logDensityAt0: Math.log(2 * df) + chisquare.logpdf(df, df),
   };
 }
 
-/** Splits [a, b] into panels no wider than h, appending the right ends to `breaks`. */
-function addPanels(breaks: number[], a: number, b: number, h: number): void {
-  const k = Math.max(1, Math.ceil((b - a) / h));
-  for (let j = 1; j < k; j++) breaks.push(a + ((b - a) * j) / k);
-  breaks.push(b);
+/**
+ * Appends breakpoints from a to b, each panel as wide as `width` at its left end allows. The
+ * log-density of s, ν·s − ν·e^(2s)/2 + const, has curvature −2ν·e^(2s), so a local scale of
+ * e^(−s)/√(2ν): right of 0 it narrows, and for small ν the density falls off fast there; left
+ * of 0 the bulk's 1/√(2ν) is kept, since the tail there is nearly e^(νs), which wider panels
+ * would not follow. Where Φ(t·eˢ − δ) changes, panels are no wider than 1/(|δ| + 10) (times
+ * PANEL_SCALES, as everywhere).
+ */
+function addPanels(breaks: number[], a: number, b: number, width: (s: number) => number): void {
+  let s = a;
+  while (s < b) {
+    s = Math.min(b, s + width(s));
+    breaks.push(s);
+  }
 }
 
 function byIntegration(t: number, df: number, delta: number, r: LogURange): number {
   if (t === 0) return normal.cdf(-delta, 0, 1);
-  const { lo, hi, scale, logDensityAt0 } = r;
+  const { lo, hi, logDensityAt0 } = r;
   // log g(s) = log g(0) + ν·(s − (e^(2s) − 1)/2) for s = ln u (the Jacobian e^s included);
   // expm1 keeps the small difference exact where ν is large and s near 0.
   const g = (s: number) =>
     Math.exp(logDensityAt0 + df * (s - 0.5 * Math.expm1(2 * s))) * normal.cdf(t * Math.exp(s) - delta, 0, 1);
+  const densityWidth = (s: number) => PANEL_SCALES * Math.min(1, Math.exp(-Math.max(0, s)) / Math.sqrt(2 * df));
+  const stepWidth = PANEL_SCALES / (Math.abs(delta) + STEP_HALF_WIDTH);
   // Φ(t·u − δ) changes where |t·u − δ| < 10, i.e. u between (δ − 10)/t and (δ + 10)/t; there
-  // its argument moves by at most |δ| + 10 per unit of s, and the panels are no wider than one
-  // unit of it. Elsewhere they are no wider than the scale of the density.
+  // its argument moves by at most |δ| + 10 per unit of s.
   const u1 = (delta - STEP_HALF_WIDTH) / t;
   const u2 = (delta + STEP_HALF_WIDTH) / t;
   const uMax = Math.max(u1, u2);
@@ -143,11 +152,11 @@ function byIntegration(t: number, df: number, delta: number, r: LogURange): numb
   const b = uMax > 0 ? Math.min(hi, Math.log(uMax)) : lo;
   const breaks = [lo];
   if (a < b) {
-    if (a > lo) addPanels(breaks, lo, a, scale);
-    addPanels(breaks, a, b, Math.min(scale, 1 / (Math.abs(delta) + STEP_HALF_WIDTH)));
-    if (b < hi) addPanels(breaks, b, hi, scale);
+    if (a > lo) addPanels(breaks, lo, a, densityWidth);
+    addPanels(breaks, a, b, (s) => Math.min(densityWidth(s), stepWidth));
+    if (b < hi) addPanels(breaks, b, hi, densityWidth);
   } else {
-    addPanels(breaks, lo, hi, scale);
+    addPanels(breaks, lo, hi, densityWidth);
   }
   return Math.min(1, Math.max(0, integrateGaussLegendre(g, breaks, RULE)));
 }
@@ -173,8 +182,8 @@ export function noncentralTCdfAs243(t: number, df: number, delta: number): numbe
 /**
  * Noncentral t CDF by numerical integration: P(T ≤ t) = E[Φ(t·u − δ)], u = √(χ²_ν/ν), as
  * ∫ g(s)·Φ(t·eˢ − δ) ds over s = ln u between its 1e−16 and 1 − 1e−16 quantiles, by composite
- * 12-point Gauss-Legendre quadrature on panels no wider than the SD of s nor, where Φ changes,
- * than 1/(|δ| + 10).
+ * 12-point Gauss-Legendre quadrature on panels of at most 1.5 local scales of the integrand:
+ * 1.5/√(2ν) (less in the right tail) and, where Φ changes, 1.5/(|δ| + 10).
  * This is the method {@link noncentralTCdf} uses where AS 243 does not apply.
  * @see Owen DB. A survey of properties and applications of the noncentral t-distribution.
  *   Technometrics 1968;10:445–478 (the integral over the χ distribution); Abramowitz M,

@@ -104,6 +104,13 @@ describe("continuity across the switch from AS 243 to the integral", () => {
       [30, 200, 30],
       [41, 1000, 37.6],
       [60, 900, 37],
+      // where coarser quadrature panels went wrong while this code was written: heavy tails
+      // with about one degree of freedom, and a negative δ with t far out
+      [50.5, 1.026, 2.108],
+      [60.45, 1.049, 5.308],
+      [404.9, 1.012, 34.69],
+      [-8.865, 24, -19.722],
+      [-3.646, 20.311, -28.625],
       [5, 10, 4],
       [-1, 30, 0.5],
     ]) {
