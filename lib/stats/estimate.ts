@@ -4,8 +4,8 @@
  * is the document stored with an estimate and printed by `bellwether estimate`.
  */
 import { andersonDarlingSorted } from "./anderson-darling";
-import { boxCoxFitFromTable, boxCoxOfLog, logTableOfSorted } from "./box-cox";
-import { skewnessOfChecked } from "./descriptive";
+import { boxCoxFitFromTable, boxCoxLogLikFromTable, boxCoxOfLog, logTableOfSorted } from "./box-cox";
+import { chooseScaleFromTable, type ScaleChoice } from "./box-cox-lrt";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
 import { dixonReedOutliers } from "./outliers-dixon";
@@ -111,6 +111,9 @@ export interface ParametricSection extends LimitsWithCi {
   /** Mean and SD on the transformed scale. */
   mean: number | null;
   sd: number | null;
+  /** The likelihood-ratio tests behind the "auto" scale; null when the scale was given or
+   * could not be tested (a non-positive value, fewer than 3 values, all values equal). */
+  scaleChoice: ScaleChoice | null;
 }
 
 export interface NormalitySection {
@@ -146,21 +149,6 @@ function scaleOf(sorted: readonly number[], logs: Float64Array | null, t: Transf
   return y;
 }
 
-/** Writes the values on scale `t` into `buffer` (ln reuses the logs); returns what holds them. */
-function fillScale(
-  buffer: Float64Array,
-  sorted: readonly number[],
-  logs: Float64Array | null,
-  t: Transform,
-  lambda: number | null,
-): ArrayLike<number> {
-  if (t === "none") return sorted;
-  if (t === "ln" || lambda === 0) return logs!;
-  const l = lambda as number;
-  for (let i = 0; i < buffer.length; i++) buffer[i] = boxCoxOfLog(logs![i], l);
-  return buffer;
-}
-
 function tryOr<T>(f: () => T, fallback: T): T {
   try {
     return f();
@@ -177,16 +165,16 @@ function tryOr<T>(f: () => T, fallback: T): T {
  *    positive) proposes values, listed in `proposed` with the rule's statistic. With screening
  *    "propose" (the default) nothing is excluded; with "apply" they are left out and also
  *    listed in `excluded`.
- * 2. Scale ("auto"): among raw, ln and Box-Cox (the last two only when every value is
- *    positive), the one on which the data look most Gaussian: the highest Shapiro-Wilk W up
- *    to 5000 values; above that, where every test rejects trivial departures and Shapiro-Wilk
- *    is undefined, the least skewed (smallest |g1|), symmetry being what the transformation
- *    is for. Ties go to the simpler scale.
+ * 2. Scale ("auto"): raw unless a likelihood-ratio test of the Box-Cox λ = 1 against the
+ *    maximum-likelihood λ̂ on [−3, 3] rejects at 5%, then ln unless the test rejects λ = 0,
+ *    else Box-Cox with λ̂ (box-cox-lrt.ts); the tests go into `parametric.scaleChoice`. Data
+ *    with a value that is not positive stay raw, with a warning; so does a λ̂ on the edge of
+ *    its range.
  * 3. Nonparametric limits on the raw values (rank p(n + 1)), CIs from binomial ranks (n ≥ 119)
  *    or a seeded bootstrap (39–118, said in `warnings`).
  * 4. Parametric limits on the chosen scale; robust limits on the same scale for 20–119 values.
- * 5. Normality on the parametric scale: Shapiro-Wilk (3–5000 values), Anderson-Darling (≥ 8);
- *    null outside those ranges.
+ * 5. Normality, judged after the choice on the chosen scale: Shapiro-Wilk (3–5000 values),
+ *    Anderson-Darling (≥ 8); null outside those ranges.
  * 6. Method advice and warnings.
  * The same values, options and seed always give the same document; `provenance` records the
  * options, seed, bootstrap size and robust constants (the caller adds the engine's identity).
@@ -283,46 +271,40 @@ export function estimateReferenceInterval(
     for (let i = 0; i < n; i++) logs[i] = Math.log(sorted[i]);
   }
   let lambda: number | null = null;
-  const needBoxCox = transformOption === "box-cox" || (transformOption === "auto" && allPositive);
+  let transform: Transform = transformOption === "auto" ? "none" : transformOption;
+  let scaleChoice: ScaleChoice | null = null;
   if ((transformOption === "ln" || transformOption === "box-cox") && !allPositive) {
     throw new StatsInputError(`transform "${transformOption}" needs every value to be positive`);
   }
-  if (needBoxCox && distinct && logs) {
-    lambda = hornLambda ?? boxCoxFitFromTable(logTableOfSorted(sorted)).lambda;
-    if (Math.abs(lambda) === 3) warnings.push(`The Box-Cox λ reached the edge of its search range (${lambda}).`);
+  if (transformOption === "auto" && !allPositive) {
+    warnings.push("Some values are not positive, so the parametric scale stays raw: ln and Box-Cox need positive values.");
   }
-  let transform: Transform = transformOption === "auto" ? "none" : transformOption;
-  let y: number[] | null = null;
-  let shapiro: { w: number; p: number } | null = null;
-  if (transformOption === "auto" && distinct && n >= 3) {
-    const candidates: Transform[] = allPositive && lambda !== null ? ["none", "ln", "box-cox"] : ["none"];
-    let best = -Infinity;
-    if (n <= SHAPIRO_MAX_N) {
-      for (const c of candidates) {
-        const yc = scaleOf(sorted, logs, c, c === "box-cox" ? lambda : null);
-        const sw = tryOr(() => shapiroWilk(yc), null);
-        if ((sw?.w ?? -Infinity) > best) {
-          best = sw?.w ?? -Infinity;
-          transform = c;
-          y = yc;
-          shapiro = sw;
-        }
+  const needBoxCox = transformOption === "box-cox" || (transformOption === "auto" && allPositive && n >= 3);
+  if (needBoxCox && distinct && logs) {
+    const table = logTableOfSorted(sorted);
+    // From 4 kept values on, Horn's converged screen fitted its last λ̂ on exactly the values
+    // kept (its last round removed nothing), so that fit is reused.
+    const fit =
+      hornLambda === null || n < 4
+        ? boxCoxFitFromTable(table)
+        : { lambda: hornLambda, logLik: boxCoxLogLikFromTable(table, hornLambda) };
+    lambda = fit.lambda;
+    const atEdge = Math.abs(lambda) === 3;
+    if (transformOption === "auto") {
+      const chosen = chooseScaleFromTable(table, fit);
+      transform = chosen.transform;
+      scaleChoice = chosen.scaleChoice;
+      if (atEdge) {
+        warnings.push(
+          `The Box-Cox λ reached the edge of its search range (${lambda}); the likelihood-ratio tests of the scale used that edge value.`,
+        );
       }
-    } else {
-      // Large samples: each scale is scored in one reused buffer; only the chosen one is built.
-      const buffer = new Float64Array(n);
-      for (const c of candidates) {
-        const g1 = skewnessOfChecked(fillScale(buffer, sorted, logs, c, lambda));
-        const score = Number.isNaN(g1) ? -Infinity : -Math.abs(g1);
-        if (score > best) {
-          best = score;
-          transform = c;
-        }
-      }
+    } else if (atEdge) {
+      warnings.push(`The Box-Cox λ reached the edge of its search range (${lambda}).`);
     }
   }
   if (transform !== "box-cox") lambda = null;
-  if (y === null && n > 0 && (transform === "none" || logs)) y = scaleOf(sorted, logs, transform, lambda);
+  const y = n > 0 && (transform === "none" || logs) ? scaleOf(sorted, logs, transform, lambda) : null;
 
   // 3. Nonparametric, on the raw values
   const np = nonparametricLimits(sorted, { seed, replicates: BOOTSTRAP_REPLICATES });
@@ -333,10 +315,10 @@ export function estimateReferenceInterval(
   const nonparametric: LimitsWithCi = { lower: np.lower, upper: np.upper, lowerCi: np.lowerCi, upperCi: np.upperCi };
 
   // 4. Parametric and robust, on the chosen scale
-  let parametric: ParametricSection = { transform, lambda, mean: null, sd: null, ...EMPTY };
+  let parametric: ParametricSection = { transform, lambda, mean: null, sd: null, ...EMPTY, scaleChoice };
   if (y !== null && n >= 3 && distinct) {
     const p = parametricFromScale(y, transform, lambda);
-    parametric = { transform, lambda, mean: p.mean, sd: p.sd, lower: p.lower, upper: p.upper, lowerCi: p.lowerCi, upperCi: p.upperCi };
+    parametric = { transform, lambda, mean: p.mean, sd: p.sd, lower: p.lower, upper: p.upper, lowerCi: p.lowerCi, upperCi: p.upperCi, scaleChoice };
     if (p.lower === null || p.upper === null) {
       warnings.push("A parametric limit cannot be carried back from the Box-Cox scale (1 + λy ≤ 0).");
     }
@@ -360,11 +342,11 @@ export function estimateReferenceInterval(
     });
   }
 
-  // 5. Normality on the parametric scale
+  // 5. Normality, judged on the scale chosen above
   const normality: NormalitySection = { shapiroWilk: null, andersonDarling: null };
   if (y !== null && distinct) {
     const yy = y;
-    if (n >= 3 && n <= SHAPIRO_MAX_N) normality.shapiroWilk = shapiro ?? tryOr(() => shapiroWilk(yy), null);
+    if (n >= 3 && n <= SHAPIRO_MAX_N) normality.shapiroWilk = tryOr(() => shapiroWilk(yy), null);
     if (n >= 8) {
       // y is the sorted sample under an increasing transform, so it is still in order.
       const ad = tryOr(() => andersonDarlingSorted(yy), null);

@@ -4,6 +4,7 @@
 import normal from "@stdlib/stats-base-dists-normal";
 import { boxCoxFit, boxCoxInverse, boxCoxTransform } from "./box-cox";
 import { mean as meanOf, sampleSd } from "./descriptive";
+import { noncentralTQuantile } from "./noncentral-t";
 import {
   assertFiniteNumber,
   assertFiniteSample,
@@ -15,8 +16,6 @@ export type Transform = "none" | "ln" | "box-cox";
 
 /** z(0.975) = Φ⁻¹(0.975), from @stdlib: the multiplier of a central 95% interval. */
 export const Z_975 = normal.quantile(0.975, 0, 1);
-/** z(0.95) = Φ⁻¹(0.95), from @stdlib: the multiplier of a two-sided 90% CI. */
-export const Z_95 = normal.quantile(0.95, 0, 1);
 
 export interface ParametricLimits {
   transform: Transform;
@@ -69,34 +68,41 @@ export function fromScale(y: number, transform: Transform, lambda: number | null
 }
 
 /**
- * Standard error of the limit x̄ ± z·s of a Gaussian sample: s·√(1/n + z²/(2(n − 1))), from
- * Var(x̄) = σ²/n and Var(s) ≈ σ²/(2(n − 1)), with x̄ and s independent.
- * @see Harris EK, Boyd JC. Statistical Bases of Reference Values in Laboratory Medicine.
- *   Marcel Dekker, 1995; derivation in METHODS.md §2.3.
- * Complexity O(1). Throws StatsInputError when n < 2 or s is negative or not finite.
- * @example parametricLimitSe(1, 120) // 0.1557…
+ * The factors of the exact 90% CI of a Gaussian percentile μ + z·σ estimated by x̄ + z·s from
+ * n values: k_q = t′(q; ν = n − 1, δ = z·√n)/√n for q = 0.05 and 0.95, so that
+ * [x̄ + k_0.05·s, x̄ + k_0.95·s] covers μ + z·σ with probability 90%. By symmetry the lower
+ * limit x̄ − z·s has [x̄ − k_0.95·s, x̄ − k_0.05·s].
+ * @see Owen DB. A survey of properties and applications of the noncentral t-distribution.
+ *   Technometrics 1968;10:445–478 (tolerance and percentile bounds); METHODS.md §2.3.
+ * Complexity: two noncentral t quantiles.
+ * Throws StatsInputError when n is not an integer ≥ 2 or z is not finite.
+ * @example parametricCiFactors(20) // [1.4426…, 2.8095…]
  */
-export function parametricLimitSe(s: number, n: number, z = Z_975): number {
-  assertFiniteNumber(s, "sd");
-  if (s < 0) throw new StatsInputError(`sd must not be negative (got ${s})`);
+export function parametricCiFactors(n: number, z = Z_975): [number, number] {
   if (!Number.isInteger(n) || n < 2) throw new StatsInputError(`n must be an integer ≥ 2 (got ${n})`);
-  return s * Math.sqrt(1 / n + (z * z) / (2 * (n - 1)));
+  assertFiniteNumber(z, "z");
+  const root = Math.sqrt(n);
+  const delta = z * root;
+  return [noncentralTQuantile(0.05, n - 1, delta) / root, noncentralTQuantile(0.95, n - 1, delta) / root];
 }
 
-function ciOf(center: number, se: number, t: Transform, l: number | null): [number, number] | null {
-  const a = fromScale(center - Z_95 * se, t, l);
-  const b = fromScale(center + Z_95 * se, t, l);
-  return a === null || b === null ? null : [a, b];
+function ciOf(a: number, b: number, t: Transform, l: number | null): [number, number] | null {
+  const x = fromScale(a, t, l);
+  const y = fromScale(b, t, l);
+  return x === null || y === null ? null : [x, y];
 }
 
 /**
  * Parametric 95% reference limits: mean ± z(0.975)·SD on the chosen scale (raw, ln, or
  * Box-Cox with λ given or estimated), carried back to the data's unit. The 90% CI of each
- * limit is L ± z(0.95)·SE on the transformed scale, SE = s·√(1/n + z²/(2(n − 1))), with both
- * ends carried back. A limit or CI whose back-transformation is undefined is null.
+ * limit is exact for Gaussian data on the transformed scale, from the noncentral t (see
+ * {@link parametricCiFactors}): [x̄ + k_0.05·s, x̄ + k_0.95·s] for the upper limit,
+ * [x̄ − k_0.95·s, x̄ − k_0.05·s] for the lower, both ends carried back. It is asymmetric about
+ * the limit, wider on the side away from the mean. A limit, or a CI with an end, whose
+ * back-transformation is undefined is null.
  * @see Box GEP, Cox DR. J R Stat Soc B 1964;26:211–252; CLSI EP28-A3c (2010); Solberg HE
- *   (IFCC). J Clin Chem Clin Biochem 1987;25:645–656.
- * Complexity O(n), plus the λ search for Box-Cox without λ.
+ *   (IFCC). J Clin Chem Clin Biochem 1987;25:645–656; Owen DB. Technometrics 1968;10:445–478.
+ * Complexity O(n), plus the λ search for Box-Cox without λ, plus two noncentral t quantiles.
  * Throws StatsInputError on fewer than 3 values, a non-finite value, values that are all
  *   equal, or a non-positive value on the ln or Box-Cox scale.
  * @example parametricLimits([2.1, 2.9, 3.2, 3.8, 4.4, 5.0, 5.9, 7.3, 9.6, 14.2], { transform: "ln" })
@@ -130,8 +136,8 @@ export function parametricLimits(
  * As {@link parametricLimits}, for values already on the transformed scale; `transform` and
  * `lambda` name that scale so the limits can be carried back.
  * @see as parametricLimits
- * Complexity O(n). Throws StatsInputError on fewer than 3 values, a non-finite value or
- *   values that are all equal.
+ * Complexity O(n), plus two noncentral t quantiles. Throws StatsInputError on fewer than 3
+ *   values, a non-finite value or values that are all equal.
  * @example parametricFromScale([1, 2, 3], "none", null).upper // 3.9599…
  */
 export function parametricFromScale(
@@ -144,17 +150,15 @@ export function parametricFromScale(
   const m = meanOf(y);
   const s = sampleSd(y);
   if (!(s > 0)) throw new StatsInputError("parametric limits need spread: all values are equal");
-  const lo = m - Z_975 * s;
-  const hi = m + Z_975 * s;
-  const se = parametricLimitSe(s, n);
+  const [k05, k95] = parametricCiFactors(n);
   return {
     transform,
     lambda,
     mean: m,
     sd: s,
-    lower: fromScale(lo, transform, lambda),
-    upper: fromScale(hi, transform, lambda),
-    lowerCi: ciOf(lo, se, transform, lambda),
-    upperCi: ciOf(hi, se, transform, lambda),
+    lower: fromScale(m - Z_975 * s, transform, lambda),
+    upper: fromScale(m + Z_975 * s, transform, lambda),
+    lowerCi: ciOf(m - k95 * s, m - k05 * s, transform, lambda),
+    upperCi: ciOf(m + k05 * s, m + k95 * s, transform, lambda),
   };
 }

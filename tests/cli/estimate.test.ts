@@ -124,6 +124,20 @@ describe("bellwether estimate (in-process)", () => {
     expect(doc.provenance.bootstrap.replicates).toBe(1000);
   });
 
+  it("chooses the scale by the likelihood-ratio tests and prints them", async () => {
+    // R on the file's 80 values (Horn's screen keeps them all): with
+    // ll(l) = -n/2*log(mean((y - mean(y))^2)) + (l - 1)*sum(log(x)), optimize on [-3, 3] gives
+    // λ̂ = 0.03072792, 2*(ll(λ̂) - ll(1)) = 18.281 > qchisq(.95, 1) = 3.841459 (not raw) and
+    // 2*(ll(λ̂) - ll(0)) = 0.01949175 (ln kept). R's cat printed 7 significant digits; each
+    // check allows half a unit of the last one.
+    const doc = JSON.parse(await inProcess([FIX("estimate-lognormal-80.csv")]));
+    expect(doc.excluded).toEqual([]);
+    expect(doc.parametric.transform).toBe("ln");
+    expect(doc.parametric.scaleChoice.lambdaHat).toBeCloseTo(0.03072792, 6);
+    expect(doc.parametric.scaleChoice.lrtAgainstRaw.statistic).toBeCloseTo(18.281, 3);
+    expect(doc.parametric.scaleChoice.lrtAgainstLn.statistic).toBeCloseTo(0.01949175, 6);
+  });
+
   it("gives the same document in-process as the same seed twice", async () => {
     const args = [FIX("estimate-lognormal-80.csv"), "--seed", "5"];
     expect(await inProcess(args)).toBe(await inProcess(args));
