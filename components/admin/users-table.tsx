@@ -1,13 +1,14 @@
 "use client";
 
 import { createColumnHelper } from "@tanstack/react-table";
+import Link from "next/link";
 import { useMemo, useState } from "react";
-import { changeRoleAction, setActiveAction, setPasswordAction } from "@/app/(admin)/admin/users/actions";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
 import { StatusMessage } from "@/components/ui/status-message";
 import { useFormAction } from "@/components/ui/use-form-action";
+import type { FormServerAction } from "@/lib/auth/action-state";
 import { ROLE_LABELS, type Role } from "@/lib/auth/roles";
 import { ROLE_OPTIONS } from "./role-options";
 
@@ -22,8 +23,15 @@ export interface UserRow {
   isSelf: boolean;
 }
 
-function RoleCell({ row }: { row: UserRow }) {
-  const [state, onSubmit, pending] = useFormAction(changeRoleAction);
+/** The server actions the page passes in; the table never imports them itself. */
+export interface UserActions {
+  changeRole: FormServerAction;
+  setActive: FormServerAction;
+  setPassword: FormServerAction;
+}
+
+function RoleCell({ row, actions }: { row: UserRow; actions: UserActions }) {
+  const [state, onSubmit, pending] = useFormAction(actions.changeRole);
   return (
     <form onSubmit={onSubmit} className="flex items-center gap-1.5" aria-label={`Role of ${row.email}`}>
       <input type="hidden" name="id" value={row.id} />
@@ -47,9 +55,9 @@ function RoleCell({ row }: { row: UserRow }) {
   );
 }
 
-function AccountCell({ row }: { row: UserRow }) {
-  const [state, onSubmit, pending] = useFormAction(setActiveAction);
-  const [pwState, onPasswordSubmit, pwPending] = useFormAction(setPasswordAction);
+function AccountCell({ row, actions }: { row: UserRow; actions: UserActions }) {
+  const [state, onSubmit, pending] = useFormAction(actions.setActive);
+  const [pwState, onPasswordSubmit, pwPending] = useFormAction(actions.setPassword);
   const [showPassword, setShowPassword] = useState(false);
   return (
     <div className="space-y-1">
@@ -71,17 +79,24 @@ function AccountCell({ row }: { row: UserRow }) {
             </Button>
           </form>
         )}
-        <Button
-          type="button"
-          variant="secondary"
-          className="px-2 py-1 text-xs"
-          onClick={() => setShowPassword((v) => !v)}
-          aria-expanded={showPassword}
-        >
-          Set password
-        </Button>
+        {row.isSelf ? (
+          <Link href="/account" className="text-xs">
+            Change your password under Account
+          </Link>
+        ) : (
+          <Button
+            type="button"
+            variant="secondary"
+            className="px-2 py-1 text-xs"
+            onClick={() => setShowPassword((v) => !v)}
+            aria-expanded={showPassword}
+            aria-label={`Set password for ${row.email}`}
+          >
+            Set password
+          </Button>
+        )}
       </div>
-      {showPassword ? (
+      {showPassword && !row.isSelf ? (
         <form onSubmit={onPasswordSubmit} className="flex items-center gap-1.5">
           <input type="hidden" name="id" value={row.id} />
           <input
@@ -109,14 +124,14 @@ function AccountCell({ row }: { row: UserRow }) {
 
 const column = createColumnHelper<UserRow>();
 
-export function UsersTable({ rows }: { rows: UserRow[] }) {
+export function UsersTable({ rows, actions }: { rows: UserRow[]; actions: UserActions }) {
   const columns = useMemo(
     () => [
       column.accessor("name", { header: "Name", cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
       column.accessor("email", { header: "E-mail" }),
       column.accessor("role", {
         header: "Role",
-        cell: (c) => <RoleCell key={`${c.row.original.id}-${c.getValue()}`} row={c.row.original} />,
+        cell: (c) => <RoleCell key={`${c.row.original.id}-${c.getValue()}`} row={c.row.original} actions={actions} />,
         filterFn: (row, _id, value: string) => ROLE_LABELS[row.original.role].toLowerCase().includes(value.toLowerCase()),
       }),
       column.accessor("active", {
@@ -124,9 +139,9 @@ export function UsersTable({ rows }: { rows: UserRow[] }) {
         cell: (c) => (c.getValue() ? <Badge tone="ok">Active</Badge> : <Badge tone="off">Deactivated</Badge>),
       }),
       column.accessor("lastSignIn", { header: "Last sign-in" }),
-      column.display({ id: "account", header: "Account", cell: (c) => <AccountCell row={c.row.original} /> }),
+      column.display({ id: "account", header: "Account", cell: (c) => <AccountCell row={c.row.original} actions={actions} /> }),
     ],
-    [],
+    [actions],
   );
   return (
     <DataTable
