@@ -2,7 +2,7 @@
 
 import { createColumnHelper } from "@tanstack/react-table";
 import Link from "next/link";
-import { useMemo, useState } from "react";
+import { createContext, useContext, useMemo, useState } from "react";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
@@ -30,8 +30,18 @@ export interface UserActions {
   setPassword: FormServerAction;
 }
 
-function RoleCell({ row, actions }: { row: UserRow; actions: UserActions }) {
-  const [state, onSubmit, pending] = useFormAction(actions.changeRole);
+// Cells read the actions from context: the column definitions stay the same objects across
+// renders (a new cell function would remount every cell and lose what it shows).
+const ActionsContext = createContext<UserActions | null>(null);
+
+function useUserActions(): UserActions {
+  const actions = useContext(ActionsContext);
+  if (!actions) throw new Error("UsersTable's cells need the actions from UsersTable");
+  return actions;
+}
+
+function RoleCell({ row }: { row: UserRow }) {
+  const [state, onSubmit, pending] = useFormAction(useUserActions().changeRole);
   return (
     <form onSubmit={onSubmit} className="flex items-center gap-1.5" aria-label={`Role of ${row.email}`}>
       <input type="hidden" name="id" value={row.id} />
@@ -55,9 +65,10 @@ function RoleCell({ row, actions }: { row: UserRow; actions: UserActions }) {
   );
 }
 
-function AccountCell({ row, actions }: { row: UserRow; actions: UserActions }) {
+function AccountCell({ row }: { row: UserRow }) {
+  const actions = useUserActions();
   const [state, onSubmit, pending] = useFormAction(actions.setActive);
-  const [pwState, onPasswordSubmit, pwPending] = useFormAction(actions.setPassword);
+  const [pwState, onPasswordSubmit, pwPending] = useFormAction(actions.setPassword, { resetOnSuccess: true });
   const [showPassword, setShowPassword] = useState(false);
   return (
     <div className="space-y-1">
@@ -131,7 +142,7 @@ export function UsersTable({ rows, actions }: { rows: UserRow[]; actions: UserAc
       column.accessor("email", { header: "E-mail" }),
       column.accessor("role", {
         header: "Role",
-        cell: (c) => <RoleCell key={`${c.row.original.id}-${c.getValue()}`} row={c.row.original} actions={actions} />,
+        cell: (c) => <RoleCell key={`${c.row.original.id}-${c.getValue()}`} row={c.row.original} />,
         filterFn: (row, _id, value: string) => ROLE_LABELS[row.original.role].toLowerCase().includes(value.toLowerCase()),
       }),
       column.accessor("active", {
@@ -139,17 +150,19 @@ export function UsersTable({ rows, actions }: { rows: UserRow[]; actions: UserAc
         cell: (c) => (c.getValue() ? <Badge tone="ok">Active</Badge> : <Badge tone="off">Deactivated</Badge>),
       }),
       column.accessor("lastSignIn", { header: "Last sign-in" }),
-      column.display({ id: "account", header: "Account", cell: (c) => <AccountCell row={c.row.original} actions={actions} /> }),
+      column.display({ id: "account", header: "Account", cell: (c) => <AccountCell row={c.row.original} /> }),
     ],
-    [actions],
+    [],
   );
   return (
-    <DataTable
-      columns={columns}
-      data={rows}
-      filterPlaceholder="Filter by name, e-mail or role"
-      initialSorting={[{ id: "name", desc: false }]}
-      caption="Users"
-    />
+    <ActionsContext.Provider value={actions}>
+      <DataTable
+        columns={columns}
+        data={rows}
+        filterPlaceholder="Filter by name, e-mail or role"
+        initialSorting={[{ id: "name", desc: false }]}
+        caption="Users"
+      />
+    </ActionsContext.Provider>
   );
 }
