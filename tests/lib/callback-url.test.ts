@@ -41,6 +41,14 @@ describe("safeCallbackPath", () => {
     });
   }
 
+  it("does not guess what a path with a backslash or a control character meant", () => {
+    // Browsers read these leniently (a backslash as a slash, control characters dropped); rather
+    // than follow their reading, such a value is not plainly a path and leads to the overview.
+    for (const value of ["/account\\", "/audit\\..\\admin", "/audit\u0000", "/account\n", "/account%0D%0A", "/audit\u007f"]) {
+      expect(safeCallbackPath(value), JSON.stringify(value)).toBe("/");
+    }
+  });
+
   it("keeps same-site paths with their query and fragment", () => {
     expect(safeCallbackPath("/audit")).toBe("/audit");
     expect(safeCallbackPath("/audit?action=auth.locked&text=a%20b")).toBe("/audit?action=auth.locked&text=a%20b");
