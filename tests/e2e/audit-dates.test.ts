@@ -51,9 +51,11 @@ describe("the audit trail's date filters", () => {
       const pad = (n: number) => String(n).padStart(2, "0");
       return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}`;
     };
+    await page.getByLabel("Action").selectOption("demo.seeded");
     await filterByDates(page, day(-1), day(1));
     expect(await page.getByTestId("audit-date-error").count()).toBe(0);
     await page.getByRole("table").getByText("Seeded the demo laboratory").waitFor();
+    expect(await page.getByLabel("From").inputValue()).toBe(day(-1));
     await context.close();
   });
 
