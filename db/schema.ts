@@ -8,6 +8,7 @@ import {
   jsonb,
   pgEnum,
   pgTable,
+  primaryKey,
   text,
   timestamp,
   uniqueIndex,
@@ -41,6 +42,13 @@ export const users = pgTable(
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
     deactivatedAt: timestamp("deactivated_at", { withTimezone: true }),
     lastSignInAt: timestamp("last_sign_in_at", { withTimezone: true }),
+    /**
+     * Carried in the session token at sign-in and compared on every request: raising it (password
+     * change or reset, role change, deactivation) ends every session signed in before.
+     */
+    sessionVersion: integer("session_version").notNull().default(1),
+    /** Set when an administrator chose the password: the person must replace it before anything else. */
+    mustChangePassword: boolean("must_change_password").notNull().default(false),
   },
   (t) => [
     uniqueIndex("users_email_unique").on(sql`lower(${t.email})`),
@@ -48,13 +56,37 @@ export const users = pgTable(
   ],
 );
 
-/** Failed sign-ins per e-mail address, for slowing down password guessing. */
-export const signInFailures = pgTable("sign_in_failures", {
-  email: text("email").primaryKey(),
-  failures: integer("failures").notNull().default(0),
-  firstFailureAt: timestamp("first_failure_at", { withTimezone: true }).notNull().defaultNow(),
-  lockedUntil: timestamp("locked_until", { withTimezone: true }),
-});
+/**
+ * Failed sign-ins from one client address (IPv4 address or IPv6 /64), whatever the e-mail: the
+ * per-address limit against trying many accounts. `failures` counts charged attempts within the
+ * window; a successful sign-in gives its own charge back.
+ */
+export const signInAddressFailures = pgTable(
+  "sign_in_address_failures",
+  {
+    address: text("address").primaryKey(),
+    failures: integer("failures").notNull(),
+    lastFailureAt: timestamp("last_failure_at", { withTimezone: true }).notNull(),
+    blockedUntil: timestamp("blocked_until", { withTimezone: true }),
+  },
+  (t) => [index("sign_in_address_failures_last_idx").on(t.lastFailureAt)],
+);
+
+/**
+ * Failed sign-ins for one e-mail from one client address: the increasing wait. Keyed by both, so
+ * that failures from one address never keep the person out from another.
+ */
+export const signInAccountFailures = pgTable(
+  "sign_in_account_failures",
+  {
+    email: text("email").notNull(),
+    address: text("address").notNull(),
+    failures: integer("failures").notNull(),
+    lastFailureAt: timestamp("last_failure_at", { withTimezone: true }).notNull(),
+    blockedUntil: timestamp("blocked_until", { withTimezone: true }),
+  },
+  (t) => [primaryKey({ columns: [t.email, t.address] }), index("sign_in_account_failures_last_idx").on(t.lastFailureAt)],
+);
 
 /**
  * Append-only record of who did what. A trigger in the migrations rejects UPDATE, DELETE and

@@ -1,4 +1,11 @@
 import { z } from "zod";
+import { parseTrustedProxies, type IpRange } from "./api/client-address";
+
+const whole = (fallback: number, min: number) => z.coerce.number().int().min(min).default(fallback);
+
+/** Variables an older Bellwether read: refused with a pointer rather than silently ignored. */
+const replaced = (by: string) =>
+  z.never({ error: `no longer read; use ${by} (see the README's environment table)` }).optional();
 
 /**
  * The environment, validated once with zod. Read lazily so that `next build` (which imports
@@ -22,8 +29,26 @@ const schema = engineSchema.extend({
     .string({ error: "NEXTAUTH_SECRET is not set; `npm start` creates one in the data folder" })
     .min(32, "NEXTAUTH_SECRET must be at least 32 characters"),
   NEXTAUTH_URL: z.url("NEXTAUTH_URL must be a URL such as http://127.0.0.1:3000").optional(),
-  BELLWETHER_SIGN_IN_MAX_FAILURES: z.coerce.number().int().min(1).default(5),
-  BELLWETHER_SIGN_IN_LOCK_MINUTES: z.coerce.number().int().min(1).default(15),
+  // Sign-in throttling (lib/auth/sign-in-throttle.ts): per e-mail and client address, and per address.
+  BELLWETHER_SIGN_IN_FREE_FAILURES: whole(3, 0),
+  BELLWETHER_SIGN_IN_FIRST_DELAY_SECONDS: whole(30, 1),
+  BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES: whole(15, 1),
+  BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES: whole(30, 1),
+  BELLWETHER_SIGN_IN_WINDOW_MINUTES: whole(60, 1),
+  BELLWETHER_SIGN_IN_MAX_FAILURES: replaced("BELLWETHER_SIGN_IN_FREE_FAILURES and BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES"),
+  BELLWETHER_SIGN_IN_LOCK_MINUTES: replaced("BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES and BELLWETHER_SIGN_IN_WINDOW_MINUTES"),
+  /** Proxies whose X-Forwarded-For is believed (scripts/serve.ts); none by default. */
+  BELLWETHER_TRUSTED_PROXIES: z
+    .string()
+    .optional()
+    .transform((text, ctx): IpRange[] => {
+      try {
+        return parseTrustedProxies(text);
+      } catch (err) {
+        ctx.addIssue({ code: "custom", message: `${(err as Error).message}; list addresses or CIDR ranges, comma-separated` });
+        return z.NEVER;
+      }
+    }),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -1,14 +1,14 @@
 "use client";
 
-import { createUserAction } from "@/app/(admin)/admin/users/actions";
 import { Button } from "@/components/ui/button";
 import { SelectField, TextField } from "@/components/ui/field";
 import { StatusMessage } from "@/components/ui/status-message";
 import { useFormAction } from "@/components/ui/use-form-action";
+import type { FormServerAction } from "@/lib/auth/action-state";
 import { ROLE_OPTIONS } from "./role-options";
 
-export function CreateUserForm() {
-  const [state, onSubmit, pending] = useFormAction(createUserAction, { resetOnSuccess: true });
+export function CreateUserForm({ action }: { action: FormServerAction }) {
+  const [state, onSubmit, pending] = useFormAction(action, { resetOnSuccess: true });
   const errors = state.status === "error" ? state.fieldErrors ?? {} : {};
   return (
     <form onSubmit={onSubmit} className="max-w-md space-y-3" aria-label="New user">
@@ -22,7 +22,7 @@ export function CreateUserForm() {
         autoComplete="new-password"
         required
         error={errors.password}
-        hint="At least 12 characters; the person can change it under Account."
+        hint="At least 12 characters; the person must replace it with their own at the first sign-in."
       />
       <StatusMessage state={state} />
       <Button type="submit" disabled={pending}>

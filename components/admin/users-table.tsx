@@ -1,13 +1,14 @@
 "use client";
 
 import { createColumnHelper } from "@tanstack/react-table";
-import { useMemo, useState } from "react";
-import { changeRoleAction, setActiveAction, setPasswordAction } from "@/app/(admin)/admin/users/actions";
+import Link from "next/link";
+import { createContext, useContext, useMemo, useState } from "react";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
 import { StatusMessage } from "@/components/ui/status-message";
 import { useFormAction } from "@/components/ui/use-form-action";
+import type { FormServerAction } from "@/lib/auth/action-state";
 import { ROLE_LABELS, type Role } from "@/lib/auth/roles";
 import { ROLE_OPTIONS } from "./role-options";
 
@@ -22,8 +23,25 @@ export interface UserRow {
   isSelf: boolean;
 }
 
+/** The server actions the page passes in; the table never imports them itself. */
+export interface UserActions {
+  changeRole: FormServerAction;
+  setActive: FormServerAction;
+  setPassword: FormServerAction;
+}
+
+// Cells read the actions from context: the column definitions stay the same objects across
+// renders (a new cell function would remount every cell and lose what it shows).
+const ActionsContext = createContext<UserActions | null>(null);
+
+function useUserActions(): UserActions {
+  const actions = useContext(ActionsContext);
+  if (!actions) throw new Error("UsersTable's cells need the actions from UsersTable");
+  return actions;
+}
+
 function RoleCell({ row }: { row: UserRow }) {
-  const [state, onSubmit, pending] = useFormAction(changeRoleAction);
+  const [state, onSubmit, pending] = useFormAction(useUserActions().changeRole);
   return (
     <form onSubmit={onSubmit} className="flex items-center gap-1.5" aria-label={`Role of ${row.email}`}>
       <input type="hidden" name="id" value={row.id} />
@@ -48,8 +66,9 @@ function RoleCell({ row }: { row: UserRow }) {
 }
 
 function AccountCell({ row }: { row: UserRow }) {
-  const [state, onSubmit, pending] = useFormAction(setActiveAction);
-  const [pwState, onPasswordSubmit, pwPending] = useFormAction(setPasswordAction);
+  const actions = useUserActions();
+  const [state, onSubmit, pending] = useFormAction(actions.setActive);
+  const [pwState, onPasswordSubmit, pwPending] = useFormAction(actions.setPassword, { resetOnSuccess: true });
   const [showPassword, setShowPassword] = useState(false);
   return (
     <div className="space-y-1">
@@ -71,17 +90,24 @@ function AccountCell({ row }: { row: UserRow }) {
             </Button>
           </form>
         )}
-        <Button
-          type="button"
-          variant="secondary"
-          className="px-2 py-1 text-xs"
-          onClick={() => setShowPassword((v) => !v)}
-          aria-expanded={showPassword}
-        >
-          Set password
-        </Button>
+        {row.isSelf ? (
+          <Link href="/account" className="text-xs">
+            Change your password under Account
+          </Link>
+        ) : (
+          <Button
+            type="button"
+            variant="secondary"
+            className="px-2 py-1 text-xs"
+            onClick={() => setShowPassword((v) => !v)}
+            aria-expanded={showPassword}
+            aria-label={`Set password for ${row.email}`}
+          >
+            Set password
+          </Button>
+        )}
       </div>
-      {showPassword ? (
+      {showPassword && !row.isSelf ? (
         <form onSubmit={onPasswordSubmit} className="flex items-center gap-1.5">
           <input type="hidden" name="id" value={row.id} />
           <input
@@ -109,7 +135,7 @@ function AccountCell({ row }: { row: UserRow }) {
 
 const column = createColumnHelper<UserRow>();
 
-export function UsersTable({ rows }: { rows: UserRow[] }) {
+export function UsersTable({ rows, actions }: { rows: UserRow[]; actions: UserActions }) {
   const columns = useMemo(
     () => [
       column.accessor("name", { header: "Name", cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
@@ -129,12 +155,14 @@ export function UsersTable({ rows }: { rows: UserRow[] }) {
     [],
   );
   return (
-    <DataTable
-      columns={columns}
-      data={rows}
-      filterPlaceholder="Filter by name, e-mail or role"
-      initialSorting={[{ id: "name", desc: false }]}
-      caption="Users"
-    />
+    <ActionsContext.Provider value={actions}>
+      <DataTable
+        columns={columns}
+        data={rows}
+        filterPlaceholder="Filter by name, e-mail or role"
+        initialSorting={[{ id: "name", desc: false }]}
+        caption="Users"
+      />
+    </ActionsContext.Provider>
   );
 }

@@ -17,6 +17,7 @@ export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
     const result = await signIn("credentials", {
       email: String(form.get("email") ?? ""),
       password: String(form.get("password") ?? ""),
+      callbackUrl,
       redirect: false,
     });
     if (!result || result.error) {

@@ -18,6 +18,8 @@ const publicColumns = {
   updatedAt: users.updatedAt,
   deactivatedAt: users.deactivatedAt,
   lastSignInAt: users.lastSignInAt,
+  sessionVersion: users.sessionVersion,
+  mustChangePassword: users.mustChangePassword,
 };
 
 export function normaliseEmail(email: string): string {
@@ -52,6 +54,8 @@ export interface CreateUserInput {
   name: string;
   role: Role;
   password: string;
+  /** The password was chosen by someone else (an administrator, the create-admin command). */
+  mustChangePassword?: boolean;
 }
 
 export async function createUser(
@@ -65,7 +69,7 @@ export async function createUser(
     if (existing.length > 0) throw new AppError("conflict", `A user with the e-mail ${email} already exists.`);
     const [created] = await tx
       .insert(users)
-      .values({ email, name: input.name.trim(), role: input.role, passwordHash })
+      .values({ email, name: input.name.trim(), role: input.role, passwordHash, mustChangePassword: input.mustChangePassword ?? false })
       .returning(publicColumns);
     await recordAuditEvent(tx, {
       actor,
@@ -73,7 +77,7 @@ export async function createUser(
       entityType: "user",
       entityId: created.id,
       summary: `Created ${created.name} <${created.email}> as ${created.role}`,
-      details: { email: created.email, role: created.role },
+      details: { email: created.email, role: created.role, mustChangePassword: created.mustChangePassword },
     });
     return created;
   });
@@ -104,7 +108,10 @@ export async function changeUserRole(
     const user = await lockUser(tx, id);
     if (user.role === role) return;
     if (user.role === "admin" && user.active) await assertAnotherActiveAdmin(tx, id);
-    await tx.update(users).set({ role, updatedAt: new Date() }).where(eq(users.id, id));
+    await tx
+      .update(users)
+      .set({ role, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
+      .where(eq(users.id, id));
     await recordAuditEvent(tx, {
       actor,
       action: "user.role_changed",
@@ -127,7 +134,12 @@ export async function setUserActive(
     if (!active && user.role === "admin") await assertAnotherActiveAdmin(tx, id);
     await tx
       .update(users)
-      .set({ active, deactivatedAt: active ? null : new Date(), updatedAt: new Date() })
+      .set({
+        active,
+        deactivatedAt: active ? null : new Date(),
+        sessionVersion: sql`${users.sessionVersion} + 1`,
+        updatedAt: new Date(),
+      })
       .where(eq(users.id, id));
     await recordAuditEvent(tx, {
       actor,
@@ -139,20 +151,35 @@ export async function setUserActive(
   });
 }
 
+/**
+ * Sets a new password and ends every session of the user signed in before (the session version
+ * goes up). A password set by someone other than the person (an administrator's reset) must be
+ * changed at the next sign-in; one the person chose clears that demand. Returns the new session
+ * version, which the person's own session may take up through a ticket (lib/auth/session-ticket.ts).
+ */
 export async function changePassword(
   database: Database,
   { id, password, actor }: { id: string; password: string; actor: Actor },
-): Promise<void> {
+): Promise<{ sessionVersion: number }> {
   const passwordHash = await hashPassword(password);
-  await database.transaction(async (tx) => {
+  const own = actor.id === id;
+  return database.transaction(async (tx) => {
     const user = await lockUser(tx, id);
-    await tx.update(users).set({ passwordHash, updatedAt: new Date() }).where(eq(users.id, id));
+    const [updated] = await tx
+      .update(users)
+      .set({ passwordHash, mustChangePassword: !own, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
+      .where(eq(users.id, id))
+      .returning({ sessionVersion: users.sessionVersion });
     await recordAuditEvent(tx, {
       actor,
       action: "user.password_changed",
       entityType: "user",
       entityId: id,
-      summary: actor.id === id ? `${user.email} changed their password` : `Set a new password for ${user.email}`,
+      summary: own
+        ? `${user.email} changed their password`
+        : `Set a new password for ${user.email}, to be changed at the next sign-in`,
+      details: { mustChangePassword: !own },
     });
+    return updated;
   });
 }

@@ -3,26 +3,38 @@ import { z } from "zod";
 import { AppError } from "@/lib/api/errors";
 import { zodIssues } from "@/lib/api/problem";
 import { StatsInputError } from "@/lib/stats/validate";
-import { authorize, type Caller } from "./authorize";
+import { authorize, type AuthorizeOptions, type Caller } from "./authorize";
 import type { Permission } from "./roles";
-import { currentCaller } from "./session";
+import { currentSession } from "./session";
 
 import type { ActionState } from "./action-state";
 
 export type { ActionState };
 
+/** What the work of an action reports: a message, or a message and a session ticket. */
+export type ActionOutcome = string | { message: string; sessionTicket: string };
+
+/** About the request beyond the caller: this session's id (session tickets are bound to it). */
+export interface ActionContext {
+  sessionId: string | null;
+}
+
 /**
  * Every server action is a public endpoint: this checks the caller's permission on the server,
- * parses the form with zod, runs the work and turns failures into a readable status.
+ * parses the form with zod, runs the work and turns failures into a readable status. While an
+ * administrator's password awaits replacement only actions that pass
+ * `{ whilePasswordChangeRequired: true }` run (changing one's own password).
  */
 export async function runAction<S extends z.ZodType>(
   permission: Permission | null,
   schema: S,
   formData: FormData,
-  work: (caller: Caller, input: z.output<S>) => Promise<string>,
+  work: (caller: Caller, input: z.output<S>, context: ActionContext) => Promise<ActionOutcome>,
+  options: AuthorizeOptions = {},
 ): Promise<ActionState> {
   try {
-    const caller = authorize(await currentCaller(), permission ?? undefined);
+    const session = await currentSession();
+    const caller = authorize(session?.caller ?? null, permission ?? undefined, options);
     const parsed = schema.safeParse(Object.fromEntries(formData));
     if (!parsed.success) {
       const issues = zodIssues(parsed.error);
@@ -32,7 +44,8 @@ export async function runAction<S extends z.ZodType>(
         fieldErrors: Object.fromEntries(issues.map((i) => [i.path, i.message])),
       };
     }
-    return { status: "ok", message: await work(caller, parsed.data) };
+    const outcome = await work(caller, parsed.data, { sessionId: session?.sessionId ?? null });
+    return typeof outcome === "string" ? { status: "ok", message: outcome } : { status: "ok", ...outcome };
   } catch (err) {
     if (err instanceof AppError || err instanceof StatsInputError) return { status: "error", message: err.message };
     console.error("Server action failed", err);

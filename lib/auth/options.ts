@@ -1,13 +1,18 @@
 import "server-only";
+import { randomUUID } from "node:crypto";
 import type { NextAuthOptions } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { z } from "zod";
 import { db } from "@/db/client";
 import { recordAuditEvent } from "@/db/queries/audit";
-import { clearFailures, minutesLocked, recordFailure } from "@/db/queries/sign-in-failures";
+import { admitSignInAttempt, settleFailedSignIn, settleSuccessfulSignIn, type SignInAttempt } from "@/db/queries/sign-in-throttle";
 import { findUserByEmail, normaliseEmail, recordSignIn } from "@/db/queries/users";
+import { clientAddressOf, throttleBucketOf } from "@/lib/api/client-address";
 import { env } from "@/lib/env";
+import { safeRedirectUrl } from "./callback-url";
 import { verifyAgainstDecoy, verifyPassword } from "./password";
+import { verifySessionTicket } from "./session-ticket";
+import { THROTTLE_MESSAGES, type ThrottlePolicy } from "./sign-in-throttle";
 
 const credentialsSchema = z.object({
   email: z.string().trim().min(1).max(320),
@@ -18,46 +23,53 @@ const credentialsSchema = z.object({
 export const SIGN_IN_MESSAGES = {
   invalid: "The e-mail or password is not right.",
   deactivated: "This account has been deactivated. Ask your administrator.",
-  locked: (minutes: number) =>
-    `Too many failed sign-ins for this account. Try again in ${minutes} minute${minutes === 1 ? "" : "s"}.`,
 };
 
-async function authorizeCredentials(raw: unknown) {
+function throttlePolicy(): ThrottlePolicy {
+  const e = env();
+  return {
+    freeFailures: e.BELLWETHER_SIGN_IN_FREE_FAILURES,
+    firstDelaySeconds: e.BELLWETHER_SIGN_IN_FIRST_DELAY_SECONDS,
+    maxDelaySeconds: e.BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES * 60,
+    addressMaxFailures: e.BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES,
+    windowSeconds: e.BELLWETHER_SIGN_IN_WINDOW_MINUTES * 60,
+  };
+}
+
+async function authorizeCredentials(raw: unknown, headers: Record<string, string | string[] | undefined>) {
   const parsed = credentialsSchema.safeParse(raw);
   if (!parsed.success) throw new Error(SIGN_IN_MESSAGES.invalid);
-  const email = normaliseEmail(parsed.data.email);
+  const address = clientAddressOf(headers);
+  const attempt: SignInAttempt = { email: normaliseEmail(parsed.data.email), address, bucket: throttleBucketOf(address) };
+  const policy = throttlePolicy();
   const database = db();
-  const locked = await minutesLocked(database, { email });
-  if (locked > 0) throw new Error(SIGN_IN_MESSAGES.locked(locked));
 
-  const user = await findUserByEmail(database, { email });
+  const admission = await admitSignInAttempt(database, { attempt, policy });
+  if (!admission.admitted) throw new Error(THROTTLE_MESSAGES[admission.scope](admission.waitSeconds));
+
+  const user = await findUserByEmail(database, { email: attempt.email });
   const ok = user ? await verifyPassword(parsed.data.password, user.passwordHash) : await verifyAgainstDecoy(parsed.data.password);
   if (!user || !ok) {
-    const policy = { maxFailures: env().BELLWETHER_SIGN_IN_MAX_FAILURES, lockMinutes: env().BELLWETHER_SIGN_IN_LOCK_MINUTES };
-    const nowLocked = await recordFailure(database, { email, policy });
-    if (nowLocked > 0) {
-      await recordAuditEvent(database, {
-        actor: { id: null, label: email },
-        action: "auth.locked",
-        entityType: "user",
-        entityId: user?.id ?? null,
-        summary: `Sign-in for ${email} locked for ${nowLocked} minutes after repeated failures`,
-      });
-      throw new Error(SIGN_IN_MESSAGES.locked(nowLocked));
-    }
+    await settleFailedSignIn(database, { attempt, admission, userId: user?.id ?? null });
+    if (admission.address.waitSeconds > 0) throw new Error(THROTTLE_MESSAGES.address(admission.address.waitSeconds));
+    if (admission.account.waitSeconds > 0) throw new Error(THROTTLE_MESSAGES.account(admission.account.waitSeconds));
     throw new Error(SIGN_IN_MESSAGES.invalid);
   }
-  if (!user.active) throw new Error(SIGN_IN_MESSAGES.deactivated);
-  await clearFailures(database, { email });
-  await recordSignIn(database, { id: user.id });
-  await recordAuditEvent(database, {
-    actor: { id: user.id, label: user.email },
-    action: "auth.signed_in",
-    entityType: "user",
-    entityId: user.id,
-    summary: `${user.email} signed in`,
+  await database.transaction(async (tx) => {
+    await settleSuccessfulSignIn(tx, { attempt, policy });
+    if (!user.active) return;
+    await recordSignIn(tx, { id: user.id });
+    await recordAuditEvent(tx, {
+      actor: { id: user.id, label: user.email },
+      action: "auth.signed_in",
+      entityType: "user",
+      entityId: user.id,
+      summary: `${user.email} signed in`,
+      details: { address: attempt.address },
+    });
   });
-  return { id: user.id, email: user.email, name: user.name, role: user.role };
+  if (!user.active) throw new Error(SIGN_IN_MESSAGES.deactivated);
+  return { id: user.id, email: user.email, name: user.name, role: user.role, sessionVersion: user.sessionVersion };
 }
 
 export function authOptions(): NextAuthOptions {
@@ -69,17 +81,33 @@ export function authOptions(): NextAuthOptions {
       CredentialsProvider({
         name: "Bellwether",
         credentials: { email: { label: "E-mail", type: "email" }, password: { label: "Password", type: "password" } },
-        authorize: authorizeCredentials,
+        authorize: (credentials, req) => authorizeCredentials(credentials, req.headers ?? {}),
       }),
     ],
     callbacks: {
-      // The token carries only the user id and the role at sign-in; every server check reads
-      // the user afresh from the database (lib/auth/session.ts), so a role change or a
-      // deactivation takes effect on the next request.
-      jwt({ token, user }) {
+      // The token carries the user id, the user's session version at sign-in and an id for this
+      // session. Every server check reads the user afresh (lib/auth/session.ts) and refuses a
+      // token whose version is no longer the user's, so a password change or reset, a role change
+      // or a deactivation ends sessions signed in before.
+      jwt({ token, user, trigger, session }) {
         if (user) {
           token.sub = user.id;
           token.role = user.role;
+          token.sv = user.sessionVersion;
+          token.sid = randomUUID();
+        }
+        if (trigger === "update") {
+          // The only update Bellwether makes: taking up the new version after one's own password
+          // change. Without a valid ticket the request fails and next-auth clears the cookie.
+          const version = token.sub && token.sid
+            ? verifySessionTicket((session as { sessionTicket?: unknown } | undefined)?.sessionTicket, {
+                userId: token.sub,
+                sessionId: token.sid,
+                secret: env().NEXTAUTH_SECRET,
+              })
+            : null;
+          if (version === null) throw new Error("A session is renewed only with a valid ticket.");
+          token.sv = version;
         }
         return token;
       },
@@ -87,9 +115,12 @@ export function authOptions(): NextAuthOptions {
         if (session.user && token.sub) {
           session.user.id = token.sub;
           session.user.role = token.role;
+          session.user.sessionVersion = token.sv;
+          session.user.sessionId = token.sid;
         }
         return session;
       },
+      redirect: safeRedirectUrl,
     },
     events: {
       async signOut({ token }) {

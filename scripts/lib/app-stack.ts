@@ -123,9 +123,10 @@ export function buildIfNeeded(): void {
 export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; quiet?: boolean }): Promise<ChildProcess> {
   // The server checks this too (instrumentation.ts); checking first gives the message at once.
   parseEnv(opts.env);
+  // Bellwether's own server around Next (scripts/serve.ts): it resolves each client's address.
   const child = spawn(
-    path.join(ROOT, "node_modules", ".bin", "next"),
-    ["start", "-H", "127.0.0.1", "-p", String(opts.port)],
+    path.join(ROOT, "node_modules", ".bin", "tsx"),
+    [path.join(ROOT, "scripts", "serve.ts"), "--port", String(opts.port)],
     { cwd: ROOT, env: opts.env, stdio: opts.quiet ? ["ignore", "pipe", "pipe"] : "inherit" },
   );
   let log = "";

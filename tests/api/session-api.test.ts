@@ -32,12 +32,16 @@ describe("GET /api/v1/me through the real route handler", () => {
     expect(body.permissions).toEqual(["intervals:read", "scores:create"]);
   });
 
-  it("reads the role afresh: a role change applies to an existing session at once", async () => {
+  it("a role change ends the person's sessions at once; signing in again gives the new role", async () => {
     const email = uniqueEmail("fresh-role");
     const user = await createUser(database, { input: { email, name: "Fresh", role: "clinician", password: "p".repeat(14) }, actor: SYSTEM_ACTOR });
     const cookie = await signInOverHttp(email, "p".repeat(14));
     await changeUserRole(database, { id: user.id, role: "director", actor: SYSTEM_ACTOR });
-    const body = await (await fetch(`${BASE_URL}/api/v1/me`, { headers: { cookie } })).json();
+    const stale = await fetch(`${BASE_URL}/api/v1/me`, { headers: { cookie } });
+    expect(stale.status).toBe(401);
+    expect((await stale.json()).detail).toBe("Sign in to continue.");
+    const fresh = await signInOverHttp(email, "p".repeat(14));
+    const body = await (await fetch(`${BASE_URL}/api/v1/me`, { headers: { cookie: fresh } })).json();
     expect(body.role).toBe("director");
   });
 

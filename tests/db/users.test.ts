@@ -41,7 +41,7 @@ describe("users on the real database", () => {
 
     const events = await database.select().from(auditEvents).where(eq(auditEvents.entityId, user.id));
     expect(events.map((e) => e.action)).toEqual(["user.created"]);
-    expect(events[0].details).toEqual({ email: user.email, role: "scientist" });
+    expect(events[0].details).toEqual({ email: user.email, role: "scientist", mustChangePassword: false });
   });
 
   it("refuses a second user with the same e-mail in any case, and stores nothing", async () => {

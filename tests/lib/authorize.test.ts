@@ -4,13 +4,14 @@ import { authorize, type Caller } from "@/lib/auth/authorize";
 import { navigationFor } from "@/lib/auth/navigation";
 import { PERMISSIONS, ROLES, type Permission, type Role } from "@/lib/auth/roles";
 
-const caller = (role: Role, active = true): Caller => ({
+const caller = (role: Role, active = true, mustChangePassword = false): Caller => ({
   kind: "user",
   id: "00000000-0000-4000-8000-000000000001",
   email: `${role}@example.test`,
   name: role,
   role,
   active,
+  mustChangePassword,
 });
 
 function codeOf(fn: () => unknown): string | null {
@@ -82,5 +83,33 @@ describe("authorize without a permission (one's own account)", () => {
     for (const role of ROLES) expect(codeOf(() => authorize(caller(role)))).toBeNull();
     expect(codeOf(() => authorize(null))).toBe("unauthenticated");
     expect(codeOf(() => authorize(caller("clinician", false)))).toBe("unauthenticated");
+  });
+});
+
+describe("authorize while a password set by an administrator awaits replacement", () => {
+  // The requirement: until the person chooses their own password they may do nothing else, only
+  // change it (and sign out, which is next-auth's and needs no permission).
+  it("refuses every permission and the signed-in-only checks, for every role, with 403 and a message saying what to do", () => {
+    for (const role of ROLES) {
+      for (const permission of [undefined, ...(Object.keys(PERMISSIONS) as Permission[])]) {
+        try {
+          authorize(caller(role, true, true), permission);
+          expect.unreachable();
+        } catch (err) {
+          expect(err).toBeInstanceOf(AppError);
+          expect((err as AppError).status).toBe(403);
+          expect((err as AppError).message).toBe(
+            "An administrator set your password: choose your own before doing anything else. Sign in to Bellwether in a browser to change it.",
+          );
+        }
+      }
+    }
+  });
+
+  it("lets the person change their own password, and nothing beyond their role even then", () => {
+    const c = caller("clinician", true, true);
+    expect(authorize(c, undefined, { whilePasswordChangeRequired: true })).toBe(c);
+    expect(codeOf(() => authorize(c, "users:manage", { whilePasswordChangeRequired: true }))).toBe("forbidden");
+    expect(codeOf(() => authorize(caller("clinician", false, true), undefined, { whilePasswordChangeRequired: true }))).toBe("unauthenticated");
   });
 });

@@ -9,8 +9,13 @@ const valid = {
 describe("parseEnv", () => {
   it("accepts a complete environment and fills the defaults", () => {
     const env = parseEnv(valid);
-    expect(env.BELLWETHER_SIGN_IN_MAX_FAILURES).toBe(5);
-    expect(env.BELLWETHER_SIGN_IN_LOCK_MINUTES).toBe(15);
+    // The defaults the README's environment table states.
+    expect(env.BELLWETHER_SIGN_IN_FREE_FAILURES).toBe(3);
+    expect(env.BELLWETHER_SIGN_IN_FIRST_DELAY_SECONDS).toBe(30);
+    expect(env.BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES).toBe(15);
+    expect(env.BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES).toBe(30);
+    expect(env.BELLWETHER_SIGN_IN_WINDOW_MINUTES).toBe(60);
+    expect(env.BELLWETHER_TRUSTED_PROXIES).toEqual([]);
     expect(env.NODE_ENV).toBe("development");
   });
 
@@ -28,8 +33,25 @@ describe("parseEnv", () => {
   });
 
   it("reads the sign-in limits as whole numbers", () => {
-    expect(parseEnv({ ...valid, BELLWETHER_SIGN_IN_MAX_FAILURES: "3" }).BELLWETHER_SIGN_IN_MAX_FAILURES).toBe(3);
-    expect(() => parseEnv({ ...valid, BELLWETHER_SIGN_IN_LOCK_MINUTES: "0" })).toThrow("BELLWETHER_SIGN_IN_LOCK_MINUTES");
+    expect(parseEnv({ ...valid, BELLWETHER_SIGN_IN_FREE_FAILURES: "5" }).BELLWETHER_SIGN_IN_FREE_FAILURES).toBe(5);
+    expect(() => parseEnv({ ...valid, BELLWETHER_SIGN_IN_WINDOW_MINUTES: "0" })).toThrow("BELLWETHER_SIGN_IN_WINDOW_MINUTES");
+    expect(() => parseEnv({ ...valid, BELLWETHER_SIGN_IN_FIRST_DELAY_SECONDS: "2.5" })).toThrow("BELLWETHER_SIGN_IN_FIRST_DELAY_SECONDS");
+  });
+
+  it("refuses the variables of the old per-e-mail lock and names their replacements", () => {
+    expect(() => parseEnv({ ...valid, BELLWETHER_SIGN_IN_MAX_FAILURES: "5" })).toThrow(
+      "  - BELLWETHER_SIGN_IN_MAX_FAILURES: no longer read; use BELLWETHER_SIGN_IN_FREE_FAILURES and BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES (see the README's environment table)",
+    );
+    expect(() => parseEnv({ ...valid, BELLWETHER_SIGN_IN_LOCK_MINUTES: "15" })).toThrow(
+      "  - BELLWETHER_SIGN_IN_LOCK_MINUTES: no longer read; use BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES and BELLWETHER_SIGN_IN_WINDOW_MINUTES (see the README's environment table)",
+    );
+  });
+
+  it("reads the trusted proxies as addresses and ranges, and names a bad entry", () => {
+    expect(parseEnv({ ...valid, BELLWETHER_TRUSTED_PROXIES: "127.0.0.1,10.0.0.0/8" }).BELLWETHER_TRUSTED_PROXIES.map((r) => r.prefix)).toEqual([32, 8]);
+    expect(() => parseEnv({ ...valid, BELLWETHER_TRUSTED_PROXIES: "127.0.0.1, proxy.lan" })).toThrow(
+      '  - BELLWETHER_TRUSTED_PROXIES: "proxy.lan" is not an IP address or CIDR range; list addresses or CIDR ranges, comma-separated',
+    );
   });
 });
 

@@ -7,7 +7,10 @@ import { StatsInputError } from "@/lib/stats/validate";
 // runAction reads the caller from the session; here a signed-in scientist, so the test is
 // about how a failure of the work is reported.
 vi.mock("@/lib/auth/session", () => ({
-  currentCaller: async () => ({ kind: "user", id: "u1", email: "s@example.test", name: "S", role: "scientist", active: true }),
+  currentSession: async () => ({
+    caller: { kind: "user", id: "u1", email: "s@example.test", name: "S", role: "scientist", active: true, mustChangePassword: false },
+    sessionId: "s1",
+  }),
 }));
 
 describe("one error family", () => {

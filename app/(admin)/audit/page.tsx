@@ -8,17 +8,15 @@ import { db } from "@/db/client";
 import { listAuditEvents, listAuditVocabulary } from "@/db/queries/audit";
 import { formatDateTime } from "@/lib/format";
 import { requirePageCaller } from "@/lib/auth/session";
+import { parseDayRange, startOfDay, startOfNextDay } from "@/lib/date-range";
 
 export const metadata: Metadata = { title: "Audit trail" };
 
 const PAGE_SIZE = 50;
 
-const day = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}$/)
-  .optional()
-  .catch(undefined);
 const text = z.string().trim().max(200).optional().catch(undefined);
+// Days are read strictly by parseDayRange, which reports what is wrong with them.
+const day = z.string().trim().max(40).optional().catch(undefined);
 
 const filterSchema = z.object({
   actor: text,
@@ -34,18 +32,22 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
   await requirePageCaller("audit:read");
   const raw = Object.fromEntries(Object.entries(await searchParams).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v || undefined]));
   const f = filterSchema.parse(raw);
+  const range = parseDayRange({ from: f.from, to: f.to });
+  const dateErrors = Object.values(range.errors);
   const filter = {
     actor: f.actor,
     action: f.action,
     entityType: f.entityType,
     text: f.text,
-    from: f.from ? new Date(`${f.from}T00:00:00`) : undefined,
+    from: range.from ? startOfDay(range.from) : undefined,
     // "to" is the last day shown, inclusive.
-    to: f.to ? new Date(new Date(`${f.to}T00:00:00`).getTime() + 86_400_000) : undefined,
+    to: range.to ? startOfNextDay(range.to) : undefined,
   };
   const database = db();
   const [{ rows, total }, vocabulary] = await Promise.all([
-    listAuditEvents(database, { filter, limit: PAGE_SIZE, offset: (f.page - 1) * PAGE_SIZE }),
+    dateErrors.length > 0
+      ? { rows: [], total: 0 }
+      : listAuditEvents(database, { filter, limit: PAGE_SIZE, offset: (f.page - 1) * PAGE_SIZE }),
     listAuditVocabulary(database),
   ]);
   const pages = Math.max(1, Math.ceil(total / PAGE_SIZE));
@@ -61,8 +63,18 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
         lead="Every sign-in, change and signature, in the order it happened. The database refuses to alter or erase these records."
       />
       <Panel className="mb-5">
-        <AuditFilters values={f} actions={vocabulary.actions} entityTypes={vocabulary.entityTypes} />
+        <AuditFilters values={f} errors={range.errors} actions={vocabulary.actions} entityTypes={vocabulary.entityTypes} />
       </Panel>
+      {dateErrors.length > 0 ? (
+        <Panel>
+          <div role="alert" data-testid="audit-date-error" className="space-y-1 rounded-md bg-red-50 px-3 py-2 text-sm text-signal-high">
+            {dateErrors.map((message) => (
+              <p key={message}>{message}</p>
+            ))}
+            <p>Correct the dates above and apply the filters again to see events.</p>
+          </div>
+        </Panel>
+      ) : (
       <Panel title={`${total} event${total === 1 ? "" : "s"}`}>
         <AuditTable
           rows={rows.map((e) => ({
@@ -82,6 +94,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
           {f.page < pages ? <Link href={pageHref(f.page + 1)}>Older →</Link> : null}
         </nav>
       </Panel>
+      )}
     </>
   );
 }

@@ -7,6 +7,8 @@ import { AppError } from "@/lib/api/errors";
 import { runAction, type ActionState } from "@/lib/auth/action";
 import { PASSWORD_MIN_LENGTH, verifyPassword } from "@/lib/auth/password";
 import { actorOf } from "@/lib/auth/session";
+import { issueSessionTicket } from "@/lib/auth/session-ticket";
+import { env } from "@/lib/env";
 
 const schema = z
   .object({
@@ -17,14 +19,26 @@ const schema = z
   .refine((v) => v.next === v.confirm, { path: ["confirm"], message: "The two new passwords differ." })
   .refine((v) => v.next !== v.current, { path: ["next"], message: "Choose a password different from the current one." });
 
+/**
+ * Every signed-in, active user may change their own password, also (and only this) while an
+ * administrator's password awaits replacement. Every other session of the user ends; this one
+ * receives a ticket to take up the new session version (lib/auth/session-ticket.ts).
+ */
 export async function changeOwnPasswordAction(_prev: ActionState, formData: FormData): Promise<ActionState> {
-  // Every signed-in, active user may change their own password.
-  return runAction(null, schema, formData, async (caller, input) => {
-    const user = await findUserByEmail(db(), { email: caller.email });
-    if (!user || !(await verifyPassword(input.current, user.passwordHash))) {
-      throw new AppError("invalid", "Your current password is not right; nothing was changed.");
-    }
-    await changePassword(db(), { id: caller.id, password: input.next, actor: actorOf(caller) });
-    return "Your password has been changed.";
-  });
+  return runAction(
+    null,
+    schema,
+    formData,
+    async (caller, input, { sessionId }) => {
+      const user = await findUserByEmail(db(), { email: caller.email });
+      if (!user || !(await verifyPassword(input.current, user.passwordHash))) {
+        throw new AppError("invalid", "Your current password is not right; nothing was changed.");
+      }
+      const { sessionVersion } = await changePassword(db(), { id: caller.id, password: input.next, actor: actorOf(caller) });
+      if (!sessionId) return "Your password has been changed. Sign in again with the new password.";
+      const sessionTicket = issueSessionTicket({ userId: caller.id, sessionId, version: sessionVersion }, { secret: env().NEXTAUTH_SECRET });
+      return { message: "Your password has been changed. Any other session of yours has been signed out.", sessionTicket };
+    },
+    { whilePasswordChangeRequired: true },
+  );
 }

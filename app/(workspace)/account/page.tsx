@@ -3,6 +3,7 @@ import { ChangePasswordForm } from "@/components/account/change-password-form";
 import { PageHeader, Panel } from "@/components/ui/panel";
 import { requirePageCaller } from "@/lib/auth/session";
 import { ROLE_LABELS } from "@/lib/auth/roles";
+import { changeOwnPasswordAction } from "./actions";
 
 export const metadata: Metadata = { title: "Account" };
 
@@ -24,7 +25,7 @@ export default async function AccountPage() {
           <p className="mt-4 text-xs text-ink-500">Your name, e-mail and role are managed by an administrator.</p>
         </Panel>
         <Panel title="Change password">
-          <ChangePasswordForm />
+          <ChangePasswordForm action={changeOwnPasswordAction} />
         </Panel>
       </div>
     </>

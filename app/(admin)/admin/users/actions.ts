@@ -4,6 +4,7 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { db } from "@/db/client";
 import { changePassword, changeUserRole, createUser, setUserActive } from "@/db/queries/users";
+import { AppError } from "@/lib/api/errors";
 import { runAction, type ActionState } from "@/lib/auth/action";
 import { PASSWORD_MIN_LENGTH } from "@/lib/auth/password";
 import { ROLES } from "@/lib/auth/roles";
@@ -23,9 +24,10 @@ const createSchema = z.object({
 
 export async function createUserAction(_prev: ActionState, formData: FormData): Promise<ActionState> {
   return runAction("users:manage", createSchema, formData, async (caller, input) => {
-    const user = await createUser(db(), { input, actor: actorOf(caller) });
+    // The administrator chose this password, so the person replaces it at the first sign-in.
+    const user = await createUser(db(), { input: { ...input, mustChangePassword: true }, actor: actorOf(caller) });
     revalidatePath("/admin/users");
-    return `Created ${user.name} (${user.email}) as ${user.role}.`;
+    return `Created ${user.name} (${user.email}) as ${user.role}. They choose their own password at the first sign-in.`;
   });
 }
 
@@ -35,7 +37,7 @@ export async function changeRoleAction(_prev: ActionState, formData: FormData): 
   return runAction("users:manage", roleSchema, formData, async (caller, { id, role }) => {
     await changeUserRole(db(), { id, role, actor: actorOf(caller) });
     revalidatePath("/admin/users");
-    return `Role changed to ${role}.`;
+    return `Role changed to ${role}; their open sessions have ended.`;
   });
 }
 
@@ -45,7 +47,7 @@ export async function setActiveAction(_prev: ActionState, formData: FormData): P
   return runAction("users:manage", activeSchema, formData, async (caller, { id, active }) => {
     await setUserActive(db(), { id, active, actor: actorOf(caller) });
     revalidatePath("/admin/users");
-    return active ? "Account reactivated." : "Account deactivated; the person is signed out at their next request.";
+    return active ? "Account reactivated." : "Account deactivated; the person's sessions have ended.";
   });
 }
 
@@ -53,7 +55,9 @@ const passwordSchema = z.object({ id: z.uuid(), password });
 
 export async function setPasswordAction(_prev: ActionState, formData: FormData): Promise<ActionState> {
   return runAction("users:manage", passwordSchema, formData, async (caller, { id, password: pw }) => {
+    if (id === caller.id) throw new AppError("conflict", "Change your own password under Account.");
     await changePassword(db(), { id, password: pw, actor: actorOf(caller) });
-    return "New password set. Give it to the person through a safe channel.";
+    revalidatePath("/admin/users");
+    return "New password set and the person's sessions ended. Give it to them through a safe channel; they must change it at the next sign-in.";
   });
 }

@@ -6,6 +6,7 @@ import { db } from "@/db/client";
 import { listUsers } from "@/db/queries/users";
 import { formatDateTime } from "@/lib/format";
 import { requirePageCaller } from "@/lib/auth/session";
+import { changeRoleAction, createUserAction, setActiveAction, setPasswordAction } from "./actions";
 
 export const metadata: Metadata = { title: "Users" };
 
@@ -26,14 +27,14 @@ export default async function UsersPage() {
     <>
       <PageHeader
         title="Users"
-        lead="Who may use Bellwether and in which role. Deactivating an account ends its sessions at once; accounts are never deleted, so the audit trail keeps its names."
+        lead="Who may use Bellwether and in which role. Changing a role, deactivating an account or setting a password ends the person's sessions at once; accounts are never deleted, so the audit trail keeps its names."
       />
       <div className="grid items-start gap-5 2xl:grid-cols-[1fr_20rem]">
         <Panel title={`${rows.length} users`}>
-          <UsersTable rows={rows} />
+          <UsersTable rows={rows} actions={{ changeRole: changeRoleAction, setActive: setActiveAction, setPassword: setPasswordAction }} />
         </Panel>
         <Panel title="New user">
-          <CreateUserForm />
+          <CreateUserForm action={createUserAction} />
         </Panel>
       </div>
     </>
