@@ -27,7 +27,7 @@ export async function assertSafeToServe(databaseUrl: string, { demo }: { demo: b
         );
       }
     }
-    if (problems.length > 0) throw new Error(`Bellwether refuses to serve: ${problems.join("\n  ")}`);
+    if (problems.length > 0) throw new Error(`refusing to serve: ${problems.join("\n  ")}`);
   } finally {
     await client.end();
   }

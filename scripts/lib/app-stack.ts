@@ -97,6 +97,7 @@ const BUILD_INPUTS = [
   "tsconfig.json",
   "tsconfig.build.json",
   "instrumentation.ts",
+  "instrumentation-node.ts",
   "package-lock.json",
 ];
 

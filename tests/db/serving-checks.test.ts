@@ -23,7 +23,7 @@ describe("the checks before serving", () => {
 
   it("refuse the owner of the tables", async () => {
     const message = await failure(assertSafeToServe(ownerUrl(), { demo: true }));
-    expect(message).toMatch(/^Bellwether refuses to serve: DATABASE_URL connects as "bellwether_owner", which owns \(or is a member of the owner of\) [a-z_, ]*audit_events/);
+    expect(message).toMatch(/^refusing to serve: DATABASE_URL connects as "bellwether_owner", which owns \(or is a member of the owner of\) [a-z_, ]*audit_events/);
     expect(message).toContain("Connect as the app's own role (bellwether_app; README, \"Database roles\")");
   });
 
@@ -31,7 +31,7 @@ describe("the checks before serving", () => {
     const superuser = new URL(SUPERUSER_URL!);
     superuser.pathname = new URL(appUrl()).pathname;
     expect(await failure(assertSafeToServe(superuser.toString(), { demo: true }))).toBe(
-      'Bellwether refuses to serve: DATABASE_URL connects as "postgres", a PostgreSQL superuser, which could disable the triggers that keep the audit trail append-only. ' +
+      'refusing to serve: DATABASE_URL connects as "postgres", a PostgreSQL superuser, which could disable the triggers that keep the audit trail append-only. ' +
         "Connect as the app's own role (bellwether_app; README, \"Database roles\") and give the owner's connection to BELLWETHER_MIGRATION_URL.",
     );
   });

@@ -1,8 +1,8 @@
-import { spawn } from "node:child_process";
+import { spawn, type ChildProcess } from "node:child_process";
 import path from "node:path";
 import { drizzle } from "drizzle-orm/node-postgres";
 import { Client, Pool } from "pg";
-import { afterAll, describe, expect, it } from "vitest";
+import { afterAll, afterEach, describe, expect, it } from "vitest";
 import { migrateDatabase } from "@/db/migrate";
 import { SYSTEM_ACTOR } from "@/db/queries/audit";
 import { changePassword, findUserByEmail } from "@/db/queries/users";
@@ -10,7 +10,7 @@ import * as schema from "@/db/schema";
 import { seedDemo } from "@/db/seed";
 import { verifyPassword } from "@/lib/auth/password";
 import { createScratchDatabase, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
-import { runStartCommand, SPARE_PORT, TEST_DATA_DIR } from "../support/start-command";
+import { runStartCommand, SPARE_PORT, stopLeftoverStartCommands, TEST_DATA_DIR } from "../support/start-command";
 
 // The demo accounts and passwords as the README publishes them.
 const PUBLISHED = [
@@ -21,6 +21,12 @@ const PUBLISHED = [
 ];
 
 const scratch: ScratchDatabase[] = [];
+const servers: ChildProcess[] = [];
+afterEach(async () => {
+  await stopLeftoverStartCommands();
+  // A server that did not refuse as it should is still running.
+  for (const server of servers.splice(0)) if (server.exitCode === null && server.signalCode === null) server.kill("SIGKILL");
+});
 afterAll(async () => {
   for (const s of scratch) await s.drop();
 });
@@ -97,7 +103,7 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
 
     const all = await refusal({ DATABASE_URL: db.appUrl, BELLWETHER_MIGRATION_URL: db.ownerUrl });
     expect(all).toContain(
-      "Bellwether refuses to serve: these accounts still have the demo passwords published in the README: " +
+      "bellwether: refusing to serve: these accounts still have the demo passwords published in the README: " +
         "admin@harrowmere.example, clinician@harrowmere.example, director@harrowmere.example, scientist@harrowmere.example.",
     );
     expect(all).toContain("Start once with BELLWETHER_DEMO=1, sign in and give each a new password");
@@ -116,12 +122,13 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
       env: { PATH: process.env.PATH, NODE_ENV: "production", DATABASE_URL: db.appUrl, NEXTAUTH_SECRET: "s".repeat(32) },
       stdio: ["ignore", "pipe", "pipe"],
     });
+    servers.push(server);
     let log = "";
     server.stdout.on("data", (d) => (log += d));
     server.stderr.on("data", (d) => (log += d));
     const code = await new Promise((resolve) => server.on("close", resolve));
     expect(code).toBe(1);
-    expect(log).toContain("Bellwether refuses to serve: these accounts still have the demo passwords published in the README: clinician@harrowmere.example.");
+    expect(log).toContain("bellwether: refusing to serve: these accounts still have the demo passwords published in the README: clinician@harrowmere.example.");
   });
 
   it("without BELLWETHER_MIGRATION_URL changes nothing and names it when the schema is not there", async () => {
@@ -139,6 +146,6 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     const db = await scratchDatabase("owner");
     await migrateDatabase(db.ownerUrl);
     const output = await refusal({ DATABASE_URL: db.ownerUrl });
-    expect(output).toContain('Bellwether refuses to serve: DATABASE_URL connects as "bellwether_owner", which owns (or is a member of the owner of) audit_events');
+    expect(output).toContain('bellwether: refusing to serve: DATABASE_URL connects as "bellwether_owner", which owns (or is a member of the owner of) audit_events');
   });
 });

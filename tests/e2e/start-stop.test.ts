@@ -5,7 +5,16 @@ import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { stopServer } from "@/db/local-server";
 import { demoUser } from "../support/demo-users";
-import { childrenOf, processesMentioning, runStartCommand, SPARE_PG_PORT, SPARE_PORT, TEST_DATA_DIR, type StartCommand } from "../support/start-command";
+import {
+  childrenOf,
+  processesMentioning,
+  runStartCommand,
+  SPARE_PG_PORT,
+  SPARE_PORT,
+  stopLeftoverStartCommands,
+  TEST_DATA_DIR,
+  type StartCommand,
+} from "../support/start-command";
 import { launchBrowser } from "./support/browser";
 
 /**
@@ -19,14 +28,13 @@ const clusterDir = path.join(dataDir, "postgres");
 const url = `http://127.0.0.1:${SPARE_PORT}`;
 
 let browser: Browser;
-let current: StartCommand | null = null;
 beforeAll(async () => {
   browser = await launchBrowser();
 });
 afterAll(async () => {
   await browser?.close();
   // Leave nothing behind if a round failed half-way.
-  if (current && current.child.exitCode === null && current.child.signalCode === null) process.kill(-current.child.pid!, "SIGKILL");
+  await stopLeftoverStartCommands();
   stopServer({ dataDir: clusterDir });
 });
 
@@ -42,10 +50,11 @@ function postmasterPid(): number {
   return Number(fs.readFileSync(path.join(clusterDir, "postmaster.pid"), "utf8").split("\n")[0]);
 }
 
+/** Whether a process runs. A zombie (ended, not yet reaped by its new parent, init) does not. */
 function isAlive(pid: number): boolean {
   try {
-    process.kill(pid, 0);
-    return true;
+    const stat = fs.readFileSync(`/proc/${pid}/stat`, "utf8");
+    return stat.slice(stat.lastIndexOf(")") + 2, stat.lastIndexOf(")") + 3) !== "Z";
   } catch {
     return false;
   }
@@ -57,7 +66,6 @@ async function startAndBrowse(): Promise<{ run: StartCommand; postmaster: number
     { PORT: String(SPARE_PORT), BELLWETHER_PG_PORT: String(SPARE_PG_PORT), BELLWETHER_DATA_DIR: dataDir },
     { shell: true },
   );
-  current = run;
   await run.waitFor(`bellwether: serving on ${url}`);
   const context = await browser.newContext({ baseURL: url });
   const page = await context.newPage();

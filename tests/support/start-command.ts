@@ -9,6 +9,8 @@ export const SPARE_PORT = Number(process.env.BELLWETHER_TEST_SPARE_PORT ?? 3110)
 export const SPARE_PG_PORT = Number(process.env.BELLWETHER_TEST_SPARE_PG_PORT ?? 54349);
 export const TEST_DATA_DIR = process.env.BELLWETHER_TEST_DATA_DIR ?? path.join(ROOT, ".test-data");
 
+const running = new Set<StartCommand>();
+
 export interface StartCommand {
   child: ChildProcess;
   /** stdout and stderr so far, interleaved. */
@@ -43,7 +45,7 @@ export function runStartCommand(vars: Record<string, string>, { shell = false } 
   const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) => {
     child.on("close", (code, signal) => resolve({ code, signal }));
   });
-  return {
+  const run: StartCommand = {
     child,
     output: () => output,
     exited,
@@ -57,6 +59,17 @@ export function runStartCommand(vars: Record<string, string>, { shell = false } 
             });
           }),
   };
+  running.add(run);
+  void exited.then(() => running.delete(run));
+  return run;
+}
+
+/** Stops start commands that a failed test left running (SIGTERM: they stop their cluster too). */
+export async function stopLeftoverStartCommands(): Promise<void> {
+  for (const run of running) {
+    run.child.kill("SIGTERM");
+    await run.exited;
+  }
 }
 
 /** The processes whose parent is `pid` (from /proc). */
