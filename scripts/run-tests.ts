@@ -29,12 +29,15 @@ let app: ChildProcess | null = null;
 /** The vitest, tsc or eslint run in progress. */
 let running: ChildProcess | null = null;
 const lifetime = new AbortController();
+let finished: Promise<number> = Promise.resolve(0);
 
 const exit = onShutdown(
   async (reason) => {
     lifetime.abort();
     if (reason !== "done") say(`bellwether: tests interrupted (${reason}); stopping what they started`, process.stderr);
     await stopApp(running);
+    // The step in progress ends (once aborted, main starts nothing new); then what it started is stopped.
+    await finished.catch(() => undefined);
     await stopApp(app);
     if (database?.server) stopServer(database.server);
   },
@@ -115,6 +118,7 @@ async function main(): Promise<number> {
       const pgPort = Number(process.env.BELLWETHER_TEST_PG_PORT ?? 54339);
       const appPort = Number(process.env.BELLWETHER_TEST_PORT ?? 3100);
       const external = process.env.BELLWETHER_TEST_DATABASE_URL;
+      const step = () => lifetime.signal.throwIfAborted();
       database = await prepareDatabase({
         dataRoot,
         pgPort,
@@ -122,9 +126,11 @@ async function main(): Promise<number> {
         fresh: true,
         external: external ? { url: external, migrationUrl: process.env.BELLWETHER_TEST_MIGRATION_URL } : undefined,
       });
+      step();
       await prepareSchema(database);
       await seedDemoIfEmpty(database.url);
       await buildIfNeeded(lifetime.signal);
+      step();
       const baseUrl = `http://127.0.0.1:${appPort}`;
       const secret = crypto.randomBytes(32).toString("base64url");
       const appEnv: NodeJS.ProcessEnv = {
@@ -139,6 +145,7 @@ async function main(): Promise<number> {
       };
       delete appEnv.BELLWETHER_MIGRATION_URL;
       app = await serveApp({ port: appPort, env: appEnv, quiet: true });
+      step();
       const testEnv: NodeJS.ProcessEnv = {
         ...baseEnv,
         // The app's role, as the app itself connects; the owner's for the checks that need it.
@@ -167,7 +174,8 @@ async function main(): Promise<number> {
   return total.failed > 0 ? 1 : 0;
 }
 
-main().then(
+finished = main();
+finished.then(
   (code) => exit(code, "done"),
   (err: unknown) => {
     // When interrupted, the signal's stop is already under way.
