@@ -97,7 +97,7 @@ async function start(): Promise<void> {
   say(
     database.server
       ? `bellwether: private PostgreSQL on 127.0.0.1:${settings.BELLWETHER_PG_PORT} (data in ${path.relative(ROOT, database.server.dataDir) || database.server.dataDir})` +
-          (database.cluster === "taken over" ? ", found running from an earlier start and taken over" : "")
+          (database.clusterStart === "taken over" ? ", found running from an earlier start and taken over" : "")
       : `bellwether: using the database in DATABASE_URL${database.migrationUrl ? ", migrating it as BELLWETHER_MIGRATION_URL" : ""}`,
   );
   step();

@@ -24,7 +24,7 @@ export interface DatabaseHandle {
   migrationUrl: string | null;
   server: LocalServer | null;
   /** Whether the private cluster was started now or found running from an earlier start. */
-  cluster: "started" | "taken over" | null;
+  clusterStart: "started" | "taken over" | null;
 }
 
 /**
@@ -38,12 +38,13 @@ export async function prepareDatabase(opts: {
   external?: { url: string; migrationUrl?: string };
   fresh?: boolean;
 }): Promise<DatabaseHandle> {
-  if (opts.external) return { url: opts.external.url, migrationUrl: opts.external.migrationUrl ?? null, server: null, cluster: null };
+  if (opts.external) return { url: opts.external.url, migrationUrl: opts.external.migrationUrl ?? null, server: null, clusterStart: null };
   const server = ensureCluster(path.join(opts.dataRoot, "postgres"), opts.pgPort);
-  const cluster = startServer(server);
   try {
+    // Inside the try: a start that fails half-way may still have left a postmaster running.
+    const clusterStart = startServer(server);
     const { appUrl, ownerUrl } = await ensureDatabase(server, opts.database, opts.fresh);
-    return { url: appUrl, migrationUrl: ownerUrl, server, cluster };
+    return { url: appUrl, migrationUrl: ownerUrl, server, clusterStart };
   } catch (err) {
     stopServer(server);
     throw err;
