@@ -1,8 +1,13 @@
 /**
  * Runs once when the server starts: a wrong or missing environment variable stops Bellwether
- * at start-up with a message naming it, rather than failing on the first request.
+ * at start-up with a message naming it, rather than failing on the first request; and in the
+ * Node.js runtime, so does a database connection it must not serve with (instrumentation-node.ts).
  */
 export async function register() {
   const { env } = await import("./lib/env");
   env();
+  if (process.env.NEXT_RUNTIME === "nodejs") {
+    const { refuseUnsafeDatabase } = await import("./instrumentation-node");
+    await refuseUnsafeDatabase();
+  }
 }

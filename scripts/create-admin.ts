@@ -15,7 +15,7 @@ import { parseArgs } from "node:util";
 import { drizzle } from "drizzle-orm/node-postgres";
 import { Pool } from "pg";
 import { z } from "zod";
-import { connectionString, ensureCluster, isRunning, startServer, stopServer, type LocalServer } from "../db/local-server";
+import { ensureCluster, ensureDatabase, isRunning, startServer, stopServer, type LocalServer } from "../db/local-server";
 import { createUser } from "../db/queries/users";
 import * as schema from "../db/schema";
 import { AppError } from "../lib/api/errors";
@@ -53,7 +53,10 @@ async function openDatabase(): Promise<{ url: string; started: LocalServer | nul
   const server = ensureCluster(clusterDir, Number(process.env.BELLWETHER_PG_PORT ?? 54329));
   const wasRunning = isRunning(server);
   if (!wasRunning) startServer(server);
-  return { url: connectionString(server, "bellwether"), started: wasRunning ? null : server };
+  // As the app's role, like every other write of accounts (ensureDatabase only makes sure the
+  // roles exist and hands back their addresses).
+  const { appUrl } = await ensureDatabase(server, "bellwether");
+  return { url: appUrl, started: wasRunning ? null : server };
 }
 
 async function main(): Promise<number> {

@@ -1,15 +1,17 @@
 /**
  * npm test (after scripts/ensure-system.sh): unit tests, then a fresh private PostgreSQL and the
- * served app for the integration and browser tests. Stops what it started, also on failure, and
- * ends with the line "N passed, N failed". The type check and the linter count as one test each.
- * `npm test -- unit` (or integration, e2e) runs one suite.
+ * served app for the integration and browser tests. Stops what it started, also on failure and on
+ * Ctrl-C, SIGTERM or SIGHUP, and ends with the line "N passed, N failed". The type check and the
+ * linter count as one test each. `npm test -- unit` (or integration, e2e) runs one suite.
  */
-import { spawnSync, type ChildProcess } from "node:child_process";
+import { spawn, type ChildProcess } from "node:child_process";
 import crypto from "node:crypto";
 import fs from "node:fs";
+import os from "node:os";
 import path from "node:path";
-import { stopServer } from "../db/local-server";
-import { buildIfNeeded, migrateAndSeed, prepareDatabase, ROOT, serveApp, stopApp, type DatabaseHandle } from "./lib/app-stack";
+import { stopClustersUnder, stopServer, superuserUrl } from "../db/local-server";
+import { buildIfNeeded, prepareDatabase, prepareSchema, ROOT, seedDemoIfEmpty, serveApp, stopApp, type DatabaseHandle } from "./lib/app-stack";
+import { onShutdown, say } from "./lib/shutdown";
 
 const SUITES = ["unit", "integration", "e2e"] as const;
 type Suite = (typeof SUITES)[number];
@@ -22,16 +24,50 @@ interface Tally {
 
 const dataRoot = path.resolve(ROOT, process.env.BELLWETHER_TEST_DATA_DIR ?? ".test-data");
 
-function runVitest(suite: Suite, env: NodeJS.ProcessEnv): Tally {
+let database: DatabaseHandle | null = null;
+let app: ChildProcess | null = null;
+/** The vitest, tsc or eslint run in progress. */
+let running: ChildProcess | null = null;
+const lifetime = new AbortController();
+let finished: Promise<number> = Promise.resolve(0);
+
+const exit = onShutdown(
+  async (reason) => {
+    lifetime.abort();
+    if (reason !== "done") say(`bellwether: tests interrupted (${reason}); stopping what they started`, process.stderr);
+    await stopApp(running);
+    // The step in progress ends (once aborted, main starts nothing new); then what it started is stopped.
+    await finished.catch(() => undefined);
+    await stopApp(app);
+    if (database?.server) stopServer(database.server);
+  },
+  { signalExitCode: (signal) => 128 + os.constants.signals[signal] },
+);
+
+/** Runs a command to its end without blocking the event loop, so that a signal is handled at once. */
+function run(bin: string, args: string[], env?: NodeJS.ProcessEnv): Promise<number | null> {
+  lifetime.signal.throwIfAborted();
+  const child = spawn(path.join(ROOT, "node_modules", ".bin", bin), args, { cwd: ROOT, stdio: "inherit", env: env ?? process.env });
+  running = child;
+  return new Promise((resolve) => {
+    child.on("error", () => resolve(null));
+    child.on("exit", (code) => {
+      running = null;
+      resolve(code);
+    });
+  });
+}
+
+async function runVitest(suite: Suite, env: NodeJS.ProcessEnv): Promise<Tally> {
   const report = path.join(dataRoot, `${suite}-report.json`);
   fs.rmSync(report, { force: true });
-  const result = spawnSync(
-    path.join(ROOT, "node_modules", ".bin", "vitest"),
+  const status = await run(
+    "vitest",
     ["run", "--project", suite, "--reporter=default", "--reporter=json", `--outputFile.json=${report}`, "--passWithNoTests"],
-    { cwd: ROOT, stdio: "inherit", env },
+    env,
   );
   if (!fs.existsSync(report)) {
-    console.error(`bellwether: the ${suite} suite did not report (exit ${result.status}); counted as one failure`);
+    console.error(`bellwether: the ${suite} suite did not report (exit ${status}); counted as one failure`);
     return { passed: 0, failed: 1, skipped: 0 };
   }
   const json = JSON.parse(fs.readFileSync(report, "utf8")) as {
@@ -42,21 +78,23 @@ function runVitest(suite: Suite, env: NodeJS.ProcessEnv): Tally {
     numFailedTestSuites: number;
   };
   // A file that fails to load has no tests to count but is still a failure.
-  const failed = json.numFailedTests + (json.numFailedTests === 0 && result.status !== 0 ? Math.max(1, json.numFailedTestSuites) : 0);
+  const failed = json.numFailedTests + (json.numFailedTests === 0 && status !== 0 ? Math.max(1, json.numFailedTestSuites) : 0);
   return { passed: json.numPassedTests, failed, skipped: json.numPendingTests + json.numTodoTests };
 }
 
 /** A whole-tree check (types, lint) counted as one test: it passes or fails as a whole. */
-function runCheck(label: string, bin: string, args: string[]): Tally {
+async function runCheck(label: string, bin: string, args: string[]): Promise<Tally> {
   console.log(`bellwether: ${label}`);
-  const result = spawnSync(path.join(ROOT, "node_modules", ".bin", bin), args, { cwd: ROOT, stdio: "inherit" });
-  if (result.status !== 0) console.error(`bellwether: ${label} failed`);
-  return result.status === 0 ? { passed: 1, failed: 0, skipped: 0 } : { passed: 0, failed: 1, skipped: 0 };
+  const status = await run(bin, args);
+  if (status !== 0) console.error(`bellwether: ${label} failed`);
+  return status === 0 ? { passed: 1, failed: 0, skipped: 0 } : { passed: 0, failed: 1, skipped: 0 };
 }
 
 async function main(): Promise<number> {
   const wanted = process.argv.slice(2).filter((a): a is Suite => (SUITES as readonly string[]).includes(a));
   const suites: Suite[] = wanted.length ? wanted : [...SUITES];
+  // A run that was killed may have left clusters running in the folder about to be deleted.
+  stopClustersUnder(dataRoot);
   fs.rmSync(dataRoot, { recursive: true, force: true });
   fs.mkdirSync(dataRoot, { recursive: true });
 
@@ -69,27 +107,37 @@ async function main(): Promise<number> {
   const baseEnv: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "test", NEXT_TELEMETRY_DISABLED: "1", VITE_CONFIG_NATIVE_IGNORE_WARNING: "true" };
 
   if (suites.includes("unit")) {
-    add(runCheck("typecheck (tsc --noEmit)", "tsc", ["--noEmit", "-p", "."]));
-    add(runCheck("lint (eslint .)", "eslint", ["."]));
-    add(runVitest("unit", baseEnv));
+    add(await runCheck("typecheck (tsc --noEmit)", "tsc", ["--noEmit", "-p", "."]));
+    add(await runCheck("lint (eslint .)", "eslint", ["."]));
+    add(await runVitest("unit", baseEnv));
   }
 
   const needsStack = suites.some((s) => s !== "unit");
-  let database: DatabaseHandle | null = null;
-  let app: ChildProcess | null = null;
   try {
     if (needsStack) {
       const pgPort = Number(process.env.BELLWETHER_TEST_PG_PORT ?? 54339);
       const appPort = Number(process.env.BELLWETHER_TEST_PORT ?? 3100);
-      database = await prepareDatabase({ dataRoot, pgPort, database: "bellwether_test", fresh: true, external: process.env.BELLWETHER_TEST_DATABASE_URL });
-      await migrateAndSeed(database.url);
-      buildIfNeeded();
+      const external = process.env.BELLWETHER_TEST_DATABASE_URL;
+      const step = () => lifetime.signal.throwIfAborted();
+      database = await prepareDatabase({
+        dataRoot,
+        pgPort,
+        database: "bellwether_test",
+        fresh: true,
+        external: external ? { url: external, migrationUrl: process.env.BELLWETHER_TEST_MIGRATION_URL } : undefined,
+      });
+      step();
+      await prepareSchema(database);
+      await seedDemoIfEmpty(database.url);
+      await buildIfNeeded(lifetime.signal);
+      step();
       const baseUrl = `http://127.0.0.1:${appPort}`;
       const secret = crypto.randomBytes(32).toString("base64url");
-      const appEnv = {
+      const appEnv: NodeJS.ProcessEnv = {
         ...process.env,
         NODE_ENV: "production" as const,
         DATABASE_URL: database.url,
+        BELLWETHER_DEMO: "1",
         NEXTAUTH_SECRET: secret,
         NEXTAUTH_URL: baseUrl,
         // Tests simulate clients at other addresses with X-Forwarded-For, as a proxy would send it.
@@ -102,27 +150,44 @@ async function main(): Promise<number> {
         BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES: "10",
         BELLWETHER_SIGN_IN_WINDOW_MINUTES: "60",
       };
+      delete appEnv.BELLWETHER_MIGRATION_URL;
       app = await serveApp({ port: appPort, env: appEnv, quiet: true });
-      const testEnv = {
+      step();
+      const testEnv: NodeJS.ProcessEnv = {
         ...baseEnv,
+        // The app's role, as the app itself connects; the owner's for the checks that need it.
         DATABASE_URL: database.url,
         NEXTAUTH_SECRET: secret,
         BELLWETHER_BASE_URL: baseUrl,
         CHROMIUM_PATH: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
         BELLWETHER_SCREENSHOT_DIR: path.join(dataRoot, "screenshots"),
+        BELLWETHER_TEST_DATA_DIR: dataRoot,
+        // For the tests that run the start command itself, beside the app under test.
+        BELLWETHER_TEST_SPARE_PORT: String(appPort + 10),
+        BELLWETHER_TEST_SPARE_PG_PORT: String(pgPort + 10),
       };
-      for (const suite of suites.filter((s) => s !== "unit")) add(runVitest(suite, testEnv));
+      if (database.migrationUrl) testEnv.BELLWETHER_MIGRATION_URL = database.migrationUrl;
+      // Tests that create scratch databases need the cluster's superuser; only ours has one.
+      if (database.server) testEnv.BELLWETHER_TEST_SUPERUSER_URL = superuserUrl(database.server);
+      for (const suite of suites.filter((s) => s !== "unit")) add(await runVitest(suite, testEnv));
     }
   } catch (err) {
+    if (lifetime.signal.aborted) throw err;
     console.error(`bellwether: ${err instanceof Error ? err.message : String(err)}`);
     total.failed += 1;
-  } finally {
-    await stopApp(app);
-    if (database?.server) stopServer(database.server);
   }
 
   console.log(`${total.passed} passed, ${total.failed} failed${total.skipped ? `, ${total.skipped} skipped` : ""}`);
   return total.failed > 0 ? 1 : 0;
 }
 
-main().then((code) => process.exit(code));
+finished = main();
+finished.then(
+  (code) => exit(code, "done"),
+  (err: unknown) => {
+    // When interrupted, the signal's stop is already under way.
+    if (lifetime.signal.aborted) return;
+    say(`bellwether: ${err instanceof Error ? err.message : String(err)}`, process.stderr);
+    void exit(1, "error");
+  },
+);

@@ -4,4 +4,5 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 export NEXT_TELEMETRY_DISABLED=1
 bash scripts/ensure-system.sh --with-chromium
-exec node_modules/.bin/tsx --conditions=react-server scripts/run-tests.ts "$@"
+# As in start.sh: tsx in-process, so that signals reach scripts/run-tests.ts itself.
+exec node --conditions=react-server --import tsx scripts/run-tests.ts "$@"

@@ -3,14 +3,14 @@
  * migrations, the demo seed, the production build (rebuilt only when sources change) and the
  * served app.
  */
-import { spawn, spawnSync, type ChildProcess } from "node:child_process";
+import { spawn, type ChildProcess } from "node:child_process";
 import crypto from "node:crypto";
 import fs from "node:fs";
 import path from "node:path";
 import { drizzle } from "drizzle-orm/node-postgres";
 import { Pool } from "pg";
 import { ensureCluster, ensureDatabase, startServer, stopServer, type LocalServer } from "../../db/local-server";
-import { migrateDatabase } from "../../db/migrate";
+import { assertSchemaCurrent, migrateDatabase } from "../../db/migrate";
 import * as schema from "../../db/schema";
 import { seedDemo } from "../../db/seed";
 import { parseEnv } from "../../lib/env";
@@ -18,32 +18,52 @@ import { parseEnv } from "../../lib/env";
 export const ROOT = path.resolve(__dirname, "..", "..");
 
 export interface DatabaseHandle {
+  /** The app's role: what the app and the tests connect as. */
   url: string;
+  /** The owner of the schema, for migrations; null when only DATABASE_URL was given. */
+  migrationUrl: string | null;
   server: LocalServer | null;
+  /** Whether the private cluster was started now or found running from an earlier start. */
+  clusterStart: "started" | "taken over" | null;
 }
 
-/** Starts (creating on first use) the private cluster, or uses DATABASE_URL when it is set. */
+/**
+ * Starts (creating on first use) the private cluster with its two roles, or uses DATABASE_URL
+ * (the app's role) and BELLWETHER_MIGRATION_URL (the owner) when they are given.
+ */
 export async function prepareDatabase(opts: {
   dataRoot: string;
   pgPort: number;
   database: string;
-  external?: string;
+  external?: { url: string; migrationUrl?: string };
   fresh?: boolean;
 }): Promise<DatabaseHandle> {
-  if (opts.external) return { url: opts.external, server: null };
+  if (opts.external) return { url: opts.external.url, migrationUrl: opts.external.migrationUrl ?? null, server: null, clusterStart: null };
   const server = ensureCluster(path.join(opts.dataRoot, "postgres"), opts.pgPort);
-  startServer(server);
   try {
-    const url = await ensureDatabase(server, opts.database, opts.fresh);
-    return { url, server };
+    // Inside the try: a start that fails half-way may still have left a postmaster running.
+    const clusterStart = startServer(server);
+    const { appUrl, ownerUrl } = await ensureDatabase(server, opts.database, opts.fresh);
+    return { url: appUrl, migrationUrl: ownerUrl, server, clusterStart };
   } catch (err) {
     stopServer(server);
     throw err;
   }
 }
 
-export async function migrateAndSeed(url: string): Promise<{ seeded: boolean }> {
-  await migrateDatabase(url);
+/**
+ * Brings the schema up to date as its owner (migrations, then db/grants.sql) when the owner's
+ * connection is known; then checks, as the app's role, that nothing is pending. Without the
+ * owner's connection nothing is changed: a schema that is behind stops the start with a message
+ * naming BELLWETHER_MIGRATION_URL.
+ */
+export async function prepareSchema(database: DatabaseHandle): Promise<void> {
+  if (database.migrationUrl) await migrateDatabase(database.migrationUrl);
+  await assertSchemaCurrent(database.url);
+}
+
+/** Seeds the demo laboratory, as the app's role, into a database without users. */
+export async function seedDemoIfEmpty(url: string): Promise<{ seeded: boolean }> {
   const pool = new Pool({ connectionString: url, max: 2 });
   try {
     const seeded = await seedDemo(drizzle(pool, { schema }));
@@ -78,6 +98,7 @@ const BUILD_INPUTS = [
   "tsconfig.json",
   "tsconfig.build.json",
   "instrumentation.ts",
+  "instrumentation-node.ts",
   "package-lock.json",
 ];
 
@@ -97,8 +118,8 @@ function fingerprint(): string {
   return hash.digest("hex");
 }
 
-/** Runs `next build` unless the last build was made from the same sources. */
-export function buildIfNeeded(): void {
+/** Runs `next build` unless the last build was made from the same sources; `signal` stops it. */
+export async function buildIfNeeded(signal?: AbortSignal): Promise<void> {
   const stampFile = path.join(ROOT, ".next", "bellwether-sources");
   const current = fingerprint();
   const built = fs.existsSync(path.join(ROOT, ".next", "BUILD_ID")) && fs.existsSync(stampFile)
@@ -106,14 +127,23 @@ export function buildIfNeeded(): void {
     : "";
   if (built === current) return;
   console.log("bellwether: building the app (next build)…");
-  const result = spawnSync(path.join(ROOT, "node_modules", ".bin", "next"), ["build"], {
+  // Asynchronous, so that a signal arriving during the build is handled at once.
+  const child = spawn(path.join(ROOT, "node_modules", ".bin", "next"), ["build"], {
     cwd: ROOT,
     stdio: ["ignore", "pipe", "pipe"],
-    encoding: "utf8",
     env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" },
+    signal,
   });
-  if (result.status !== 0) {
-    process.stderr.write(result.stdout + result.stderr);
+  let output = "";
+  child.stdout.on("data", (d) => (output += d));
+  child.stderr.on("data", (d) => (output += d));
+  const status = await new Promise<number | null>((resolve) => {
+    child.on("error", () => undefined);
+    child.on("close", (code) => resolve(code));
+  });
+  if (signal?.aborted) throw new Error("the build was stopped");
+  if (status !== 0) {
+    process.stderr.write(output);
     throw new Error("next build failed");
   }
   fs.writeFileSync(stampFile, current);
@@ -134,7 +164,7 @@ export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; qui
   child.stderr?.on("data", (d) => (log += d));
   const deadline = Date.now() + 60_000;
   while (Date.now() < deadline) {
-    if (child.exitCode !== null) throw new Error(`the app exited during start-up:\n${log}`);
+    if (hasExited(child)) throw new Error(`the app exited during start-up:\n${log}`);
     try {
       const res = await fetch(`http://127.0.0.1:${opts.port}/api/health`);
       if (res.ok) return child;
@@ -147,8 +177,17 @@ export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; qui
   throw new Error(`the app did not answer on port ${opts.port} within 60 s:\n${log}`);
 }
 
+/**
+ * Whether a child has ended. One killed by a signal has `exitCode` null and `signalCode` set; both
+ * are set before its `exit` event, which has then already been emitted.
+ */
+export function hasExited(child: ChildProcess): boolean {
+  return child.exitCode !== null || child.signalCode !== null;
+}
+
+/** Stops the app: SIGTERM, then SIGKILL after 10 s; resolves once it has exited, however it ended. */
 export function stopApp(child: ChildProcess | null): Promise<void> {
-  if (!child || child.exitCode !== null) return Promise.resolve();
+  if (!child || hasExited(child)) return Promise.resolve();
   return new Promise((resolve) => {
     const timer = setTimeout(() => child.kill("SIGKILL"), 10_000);
     child.once("exit", () => {

@@ -1,40 +1,49 @@
-import { eq, sql } from "drizzle-orm";
+import { eq } from "drizzle-orm";
 import { afterAll, describe, expect, it } from "vitest";
 import { listAuditEvents, recordAuditEvent, SYSTEM_ACTOR } from "@/db/queries/audit";
 import { auditEvents } from "@/db/schema";
 import { testDatabase } from "../support/database";
+import { appUrl, ownerUrl, pgError } from "../support/scratch-database";
 
 const { database, pool } = testDatabase();
 afterAll(() => pool.end());
 
-/** PostgreSQL's own message (drizzle wraps the driver's error as its cause). */
-async function rejection(query: PromiseLike<unknown>): Promise<string> {
-  try {
-    await query;
-  } catch (err) {
-    const cause = (err as { cause?: { message?: string } }).cause;
-    return cause?.message ?? (err as Error).message;
-  }
-  return "no error";
+async function marker(): Promise<number> {
+  const summary = `append-only check ${Date.now()} ${Math.random()}`;
+  await recordAuditEvent(database, { actor: SYSTEM_ACTOR, action: "test.marker", entityType: "test", summary });
+  const [row] = await database.select().from(auditEvents).where(eq(auditEvents.summary, summary));
+  return row.id;
 }
 
+// PostgreSQL's messages and SQLSTATE 42501 (insufficient_privilege), as PostgreSQL 15 words them.
+const denied = (what: string) => ({ code: "42501", message: `permission denied for ${what}` });
+const notOwner = { code: "42501", message: "must be owner of table audit_events" };
+// The trigger's own message (drizzle/0001_audit-append-only.sql), also raised as 42501.
+const appendOnly = (op: string) => ({ code: "42501", message: `audit_events is append-only: ${op} is not allowed` });
+
 describe("the audit trail is append-only, enforced by PostgreSQL", () => {
-  it("accepts inserts and rejects UPDATE, DELETE and TRUNCATE", async () => {
-    const marker = `append-only check ${Date.now()}`;
-    await recordAuditEvent(database, { actor: SYSTEM_ACTOR, action: "test.marker", entityType: "test", summary: marker });
-    const [row] = await database.select().from(auditEvents).where(eq(auditEvents.summary, marker));
-    expect(row).toBeDefined();
+  it("the app's role adds and reads events, and may not change, remove or empty them", async () => {
+    const id = await marker();
+    expect(await pgError(appUrl(), `UPDATE audit_events SET summary = 'rewritten' WHERE id = ${id}`)).toEqual(denied("table audit_events"));
+    expect(await pgError(appUrl(), `DELETE FROM audit_events WHERE id = ${id}`)).toEqual(denied("table audit_events"));
+    expect(await pgError(appUrl(), "TRUNCATE audit_events")).toEqual(denied("table audit_events"));
+    const [after] = await database.select().from(auditEvents).where(eq(auditEvents.id, id));
+    expect(after.summary).toMatch(/^append-only check /);
+  });
 
-    expect(await rejection(database.update(auditEvents).set({ summary: "rewritten" }).where(eq(auditEvents.id, row.id)))).toBe(
-      "audit_events is append-only: UPDATE is not allowed",
-    );
-    expect(await rejection(database.delete(auditEvents).where(eq(auditEvents.id, row.id)))).toBe(
-      "audit_events is append-only: DELETE is not allowed",
-    );
-    expect(await rejection(database.execute(sql`truncate audit_events`))).toBe("audit_events is append-only: TRUNCATE is not allowed");
+  it("the app's role cannot switch the triggers off", async () => {
+    expect(await pgError(appUrl(), "ALTER TABLE audit_events DISABLE TRIGGER ALL")).toEqual(notOwner);
+    expect(await pgError(appUrl(), "ALTER TABLE audit_events DISABLE TRIGGER audit_events_no_update_delete")).toEqual(notOwner);
+    expect(await pgError(appUrl(), "ALTER TABLE audit_events DISABLE TRIGGER audit_events_no_truncate")).toEqual(notOwner);
+  });
 
-    const [after] = await database.select().from(auditEvents).where(eq(auditEvents.id, row.id));
-    expect(after.summary).toBe(marker);
+  it("even the owner is refused UPDATE, DELETE and TRUNCATE by the triggers", async () => {
+    const id = await marker();
+    expect(await pgError(ownerUrl(), `UPDATE audit_events SET summary = 'rewritten' WHERE id = ${id}`)).toEqual(appendOnly("UPDATE"));
+    expect(await pgError(ownerUrl(), `DELETE FROM audit_events WHERE id = ${id}`)).toEqual(appendOnly("DELETE"));
+    expect(await pgError(ownerUrl(), "TRUNCATE audit_events")).toEqual(appendOnly("TRUNCATE"));
+    const [after] = await database.select().from(auditEvents).where(eq(auditEvents.id, id));
+    expect(after.summary).toMatch(/^append-only check /);
   });
 
   it("lists events newest first with filters and a total", async () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { parseEngineEnv, parseEnv } from "@/lib/env";
+import { demoMode, parseEngineEnv, parseEnv, parseStartEnv } from "@/lib/env";
 
 const valid = {
   DATABASE_URL: "postgres://postgres:pw@127.0.0.1:54329/bellwether",
@@ -17,6 +17,9 @@ describe("parseEnv", () => {
     expect(env.BELLWETHER_SIGN_IN_WINDOW_MINUTES).toBe(60);
     expect(env.BELLWETHER_TRUSTED_PROXIES).toEqual([]);
     expect(env.NODE_ENV).toBe("development");
+    // Not a demo unless asked: the demo's published passwords are refused by default.
+    expect(env.BELLWETHER_DEMO).toBe(false);
+    expect(parseEnv({ ...valid, BELLWETHER_DEMO: "1" }).BELLWETHER_DEMO).toBe(true);
   });
 
   it("names every missing or wrong variable in one message", () => {
@@ -64,5 +67,38 @@ describe("parseEngineEnv", () => {
     );
     // The app's full environment checks it too.
     expect(() => parseEnv({ ...valid, BELLWETHER_COMMIT: "v1.0" })).toThrow("BELLWETHER_COMMIT");
+  });
+});
+
+describe("parseStartEnv and demo mode", () => {
+  const external = "postgres://bellwether_app:pw@db.example:5432/bellwether";
+  const owner = "postgres://bellwether_owner:pw@db.example:5432/bellwether";
+
+  it("uses the private PostgreSQL with the demo when nothing is given", () => {
+    const settings = parseStartEnv({});
+    expect(settings).toEqual({ PORT: 3000, BELLWETHER_DATA_DIR: ".data", BELLWETHER_PG_PORT: 54329 });
+    expect(demoMode(settings)).toBe(true);
+  });
+
+  it("seeds no demo into a database given by DATABASE_URL unless BELLWETHER_DEMO=1", () => {
+    expect(demoMode(parseStartEnv({ DATABASE_URL: external }))).toBe(false);
+    expect(demoMode(parseStartEnv({ DATABASE_URL: external, BELLWETHER_MIGRATION_URL: owner }))).toBe(false);
+    expect(demoMode(parseStartEnv({ DATABASE_URL: external, BELLWETHER_DEMO: "1" }))).toBe(true);
+    expect(demoMode(parseStartEnv({ BELLWETHER_DEMO: "0" }))).toBe(false);
+  });
+
+  it("refuses a migration URL without DATABASE_URL, and a demo flag other than 0 or 1", () => {
+    expect(() => parseStartEnv({ BELLWETHER_MIGRATION_URL: owner, BELLWETHER_DEMO: "yes" })).toThrow(
+      [
+        "Bellwether cannot start, the environment is not valid:",
+        "  - BELLWETHER_DEMO: BELLWETHER_DEMO must be 1 (demo) or 0",
+      ].join("\n"),
+    );
+    expect(() => parseStartEnv({ BELLWETHER_MIGRATION_URL: owner })).toThrow(
+      "  - BELLWETHER_MIGRATION_URL: BELLWETHER_MIGRATION_URL is set but DATABASE_URL is not; give both, or neither for the private PostgreSQL",
+    );
+    expect(() => parseStartEnv({ DATABASE_URL: external, BELLWETHER_MIGRATION_URL: "mysql://x" })).toThrow(
+      "  - BELLWETHER_MIGRATION_URL: BELLWETHER_MIGRATION_URL must be a postgres:// connection string",
+    );
   });
 });

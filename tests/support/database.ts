@@ -4,8 +4,9 @@ import * as schema from "@/db/schema";
 import type { Database } from "@/db/client";
 
 /**
- * The test database that scripts/run-tests.ts created, migrated and seeded. Each test file opens
- * its own pool and closes it in afterAll.
+ * The test database that scripts/run-tests.ts created, migrated and seeded, connected as the app's
+ * role (bellwether_app), as the app itself connects. Each test file opens its own pool and closes
+ * it in afterAll.
  */
 export function testDatabase(): { database: Database; pool: Pool } {
   const url = process.env.DATABASE_URL;
