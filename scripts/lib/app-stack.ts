@@ -154,9 +154,11 @@ export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; qui
   // The server checks this too (instrumentation.ts); checking first gives the message at once.
   parseEnv(opts.env);
   // Bellwether's own server around Next (scripts/serve.ts): it resolves each client's address.
+  // tsx loaded into node itself, not the tsx command: that one runs the script in a second
+  // process of its own, so a signal or a crash of either would leave the other behind.
   const child = spawn(
-    path.join(ROOT, "node_modules", ".bin", "tsx"),
-    [path.join(ROOT, "scripts", "serve.ts"), "--port", String(opts.port)],
+    process.execPath,
+    ["--import", "tsx", path.join(ROOT, "scripts", "serve.ts"), "--port", String(opts.port)],
     { cwd: ROOT, env: opts.env, stdio: opts.quiet ? ["ignore", "pipe", "pipe"] : "inherit" },
   );
   let log = "";

@@ -117,7 +117,7 @@ describe("npm start stops the app and its private PostgreSQL however it ends", (
 
   it("when the app crashes (SIGKILL of the app alone), with a failure exit code", async () => {
     const { run, postmaster, page } = await startAndBrowse();
-    const apps = childrenOf(run.child.pid!).filter((p) => p.command.startsWith("next-server"));
+    const apps = childrenOf(run.child.pid!).filter((p) => p.command.includes("scripts/serve.ts"));
     expect(apps).toHaveLength(1);
     process.kill(apps[0].pid, "SIGKILL");
     expect(await run.exited).toEqual({ code: 1, signal: null });
