@@ -1,35 +1,5 @@
-/**
- * One sign-in attempt over next-auth's HTTP endpoints, as a client at a chosen address: the app
- * under `npm test` trusts 127.0.0.1 as a proxy, so `X-Forwarded-For` names the simulated client.
- * Returns the session cookie on success, or the message the sign-in form would show.
- */
-import { BASE_URL } from "./http-session";
-
-export type AttemptResult = { ok: true; cookie: string } | { ok: false; status: number; message: string };
-
-function cookiesOf(res: Response): string[] {
-  return res.headers.getSetCookie().map((c) => c.split(";")[0]);
-}
-
-export async function attemptSignIn(
-  email: string,
-  password: string,
-  { from, headers = {} }: { from: string; headers?: Record<string, string> },
-): Promise<AttemptResult> {
-  const csrfRes = await fetch(`${BASE_URL}/api/auth/csrf`);
-  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
-  const jar = cookiesOf(csrfRes);
-  const res = await fetch(`${BASE_URL}/api/auth/callback/credentials`, {
-    method: "POST",
-    redirect: "manual",
-    headers: { "content-type": "application/x-www-form-urlencoded", cookie: jar.join("; "), "x-forwarded-for": from, ...headers },
-    body: new URLSearchParams({ csrfToken, email, password, json: "true" }),
-  });
-  const session = cookiesOf(res).find((c) => c.startsWith("next-auth.session-token="));
-  if (session) return { ok: true, cookie: [...jar, session].join("; ") };
-  const { url } = (await res.json()) as { url: string };
-  return { ok: false, status: res.status, message: new URL(url).searchParams.get("error") ?? "" };
-}
+/** Sign-in attempts as clients at chosen addresses (see attemptSignIn in ./http-session). */
+export { attemptSignIn, type AttemptResult } from "./http-session";
 
 const octet = () => Math.floor(Math.random() * 254) + 1;
 
