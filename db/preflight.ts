@@ -6,7 +6,7 @@
 import { Client } from "pg";
 import { verifyPassword } from "@/lib/auth/password";
 import { APP_ROLE } from "./migrate";
-import { DEMO_USERS } from "./seed";
+import { DEMO_USERS } from "./demo-accounts";
 
 const ROLES_SECTION = 'README, "Database roles"';
 

@@ -5,23 +5,17 @@
 import type { Database } from "./client";
 import { recordAuditEvent, SYSTEM_ACTOR } from "./queries/audit";
 import { countUsers, createUser } from "./queries/users";
-import { laboratory, type Role } from "./schema";
+import { DEMO_LABORATORY, DEMO_USERS } from "./demo-accounts";
+import { laboratory } from "./schema";
 
-export const DEMO_LABORATORY = "Harrowmere Regional Hospital · Clinical Chemistry";
-
-export const DEMO_USERS: { name: string; email: string; role: Role; password: string }[] = [
-  { name: "Ines Okonkwo-Hale", email: "admin@harrowmere.example", role: "admin", password: "bellwether-admin-demo" },
-  { name: "Dr Tomas Verhaegen", email: "director@harrowmere.example", role: "director", password: "bellwether-director-demo" },
-  { name: "Priya Lindqvist", email: "scientist@harrowmere.example", role: "scientist", password: "bellwether-scientist-demo" },
-  { name: "Dr Aurelio Banks", email: "clinician@harrowmere.example", role: "clinician", password: "bellwether-clinician-demo" },
-];
+export { DEMO_LABORATORY, DEMO_USERS };
 
 /** Seeds the demo into an empty database; does nothing when any user exists. Returns whether it seeded. */
 export async function seedDemo(database: Database): Promise<boolean> {
   if ((await countUsers(database)) > 0) return false;
   await database.insert(laboratory).values({ id: 1, name: DEMO_LABORATORY }).onConflictDoNothing();
   for (const u of DEMO_USERS) {
-    await createUser(database, { input: u, actor: SYSTEM_ACTOR });
+    await createUser(database, { input: u, actor: SYSTEM_ACTOR, allowPublishedPassword: true });
   }
   await recordAuditEvent(database, {
     actor: SYSTEM_ACTOR,

@@ -3,6 +3,7 @@ import { and, asc, eq, ne, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import { hashPassword } from "@/lib/auth/password";
 import type { Database, Executor } from "../client";
+import { isPublishedDemoPassword } from "../demo-accounts";
 import { users, type Role, type User } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
@@ -58,10 +59,19 @@ export interface CreateUserInput {
   mustChangePassword?: boolean;
 }
 
+export const PUBLISHED_PASSWORD_MESSAGE =
+  "That password is published in Bellwether's README for the demo accounts, so anyone could use it; choose another.";
+
+/** The demo's passwords are public: no account may be given one, except by the demo seed itself. */
+function assertNotPublished(password: string): void {
+  if (isPublishedDemoPassword(password)) throw new AppError("invalid", PUBLISHED_PASSWORD_MESSAGE);
+}
+
 export async function createUser(
   database: Database,
-  { input, actor }: { input: CreateUserInput; actor: Actor },
+  { input, actor, allowPublishedPassword = false }: { input: CreateUserInput; actor: Actor; allowPublishedPassword?: boolean },
 ): Promise<PublicUser> {
+  if (!allowPublishedPassword) assertNotPublished(input.password);
   const email = normaliseEmail(input.email);
   const passwordHash = await hashPassword(input.password);
   return database.transaction(async (tx) => {
@@ -161,6 +171,7 @@ export async function changePassword(
   database: Database,
   { id, password, actor }: { id: string; password: string; actor: Actor },
 ): Promise<{ sessionVersion: number }> {
+  assertNotPublished(password);
   const passwordHash = await hashPassword(password);
   const own = actor.id === id;
   return database.transaction(async (tx) => {

@@ -1,7 +1,7 @@
 import { eq } from "drizzle-orm";
 import { afterAll, describe, expect, it } from "vitest";
 import { SYSTEM_ACTOR } from "@/db/queries/audit";
-import { changeUserRole, createUser, findUserByEmail, setUserActive } from "@/db/queries/users";
+import { changePassword, changeUserRole, createUser, findUserByEmail, setUserActive } from "@/db/queries/users";
 import { auditEvents, users } from "@/db/schema";
 import { AppError } from "@/lib/api/errors";
 import { verifyPassword } from "@/lib/auth/password";
@@ -21,6 +21,26 @@ async function expectAppError(promise: Promise<unknown>, code: string, message: 
 }
 
 describe("users on the real database", () => {
+  it("gives no account a password the README publishes for the demo, and changes nothing", async () => {
+    // The README's demo sign-ins table, written out: anyone can read these passwords.
+    const published = ["bellwether-admin-demo", "bellwether-director-demo", "bellwether-scientist-demo", "bellwether-clinician-demo"];
+    const message = /published in Bellwether's README for the demo accounts/;
+    const email = uniqueEmail("published");
+    await expectAppError(
+      createUser(database, { input: { email, name: "Copied", role: "scientist", password: published[1] }, actor: SYSTEM_ACTOR }),
+      "invalid",
+      message,
+    );
+    expect(await findUserByEmail(database, { email })).toBeUndefined();
+    const user = await createUser(database, { input: { email, name: "Own", role: "scientist", password: "a-password-of-their-own" }, actor: SYSTEM_ACTOR });
+    for (const password of published) {
+      await expectAppError(changePassword(database, { id: user.id, password, actor: SYSTEM_ACTOR }), "invalid", message);
+    }
+    const stored = await findUserByEmail(database, { email });
+    expect(await verifyPassword("a-password-of-their-own", stored!.passwordHash)).toBe(true);
+    expect(stored!.sessionVersion).toBe(user.sessionVersion);
+  });
+
   it("creates a user with a salted slow hash and an audit event, in one transaction", async () => {
     const email = uniqueEmail("Create");
     const user = await createUser(database, {
