@@ -6,7 +6,7 @@ import { UploadError } from "./errors";
 import { collectBytes, sniffFile, type UploadInput } from "./input";
 import { resolveColumns, type ResolvedMapping } from "./mapping";
 import { readTable, type TableInfo } from "./table";
-import { cellText, exactAgeYears, isoOfDay, readDateCell, readNumberText, readSexCell, readValueCell, type DayOut, type ValueOut } from "./values";
+import { cellText, exactAgeYears, readDateCell, readNumberText, readSexCell, readValueCell, type DayOut, type ValueOut } from "./values";
 
 /** More data rows than this and the file is refused whole. */
 export const MAX_DATA_ROWS = 200_000;
@@ -134,11 +134,18 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
     if (problems.length < MAX_LISTED_PROBLEMS) problems.push({ row, column, message });
     else problemsOmitted++;
   };
+  // The row being checked, and whether it has a problem yet (one closure for all rows).
+  let currentRow = 0;
+  let ok = true;
+  const fail = (column: TemplateColumn, message: string) => {
+    ok = false;
+    problem(currentRow, column, message);
+  };
 
   const value: ValueOut = { value: 0, censor: 0 };
   const num = { value: 0 };
-  const birth: DayOut = { day: 0 };
-  const collected: DayOut = { day: 0 };
+  const birth: DayOut = { day: 0, y: 0, m: 0, d: 0, iso: "" };
+  const collected: DayOut = { day: 0, y: 0, m: 0, d: 0, iso: "" };
   const cell = (cells: readonly Cell[], i: number): Cell => (i === -1 ? null : cells[i]);
 
   const found = await readTable(file, options.sheet, {
@@ -155,11 +162,8 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
         throw new UploadError("too_many_rows", `the file has more than 200,000 data rows; split it into several uploads`);
       }
       const ix = index!;
-      let ok = true;
-      const fail = (column: TemplateColumn, message: string) => {
-        ok = false;
-        problem(row, column, message);
-      };
+      currentRow = row;
+      ok = true;
 
       const donorCode = cellText(cell(cells, ix.donor_code));
       if (donorCode === "") fail("donor_code", "donor_code is missing");
@@ -198,10 +202,10 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
         ageFrom = "dates";
         if (birthOk && collectedOk) {
           if (birth.day > collected.day) {
-            fail("birth_date", `birth_date ${isoOfDay(birth.day)} is after collected_on ${isoOfDay(collected.day)}`);
+            fail("birth_date", `birth_date ${birth.iso} is after collected_on ${collected.iso}`);
           } else {
             ageDays = collected.day - birth.day;
-            ageYears = exactAgeYears(birth.day, collected.day);
+            ageYears = exactAgeYears(birth, collected);
             if (ageYears > MAX_AGE_YEARS) fail("birth_date", `the age from birth_date and collected_on is over ${MAX_AGE_YEARS} years`);
           }
         }
@@ -257,8 +261,8 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
           ageYears,
           ageDays,
           ageFrom,
-          birthDate: birthOk ? isoOfDay(birth.day) : null,
-          collectedOn: collectedOk ? isoOfDay(collected.day) : null,
+          birthDate: birthOk ? birth.iso : null,
+          collectedOn: collectedOk ? collected.iso : null,
           value: value.value,
           censoring: CENSORING[value.censor],
           unit: analyteUnit,

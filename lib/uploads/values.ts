@@ -78,9 +78,42 @@ export function readValueCell(cell: Cell, decimalComma: boolean, out: ValueOut):
   return readNumberText(text, decimalComma, "value", out);
 }
 
-/** Days since 1970-01-01 of a calendar date (proleptic Gregorian, UTC). */
-function dayOfYmd(y: number, m: number, d: number): number {
-  return Date.UTC(y, m - 1, d) / 86_400_000;
+/**
+ * Days since 1970-01-01 of a proleptic Gregorian date, and back, in integer arithmetic (no Date
+ * object per cell).
+ * @see Hinnant H. chrono-Compatible Low-Level Date Algorithms (days_from_civil,
+ *   civil_from_days), 2013, howardhinnant.github.io/date_algorithms.html.
+ */
+export function dayOfYmd(y: number, m: number, d: number): number {
+  const yy = m <= 2 ? y - 1 : y;
+  const era = Math.floor(yy / 400);
+  const yoe = yy - era * 400;
+  const doy = Math.floor((153 * (m > 2 ? m - 3 : m + 9) + 2) / 5) + d - 1;
+  const doe = yoe * 365 + Math.floor(yoe / 4) - Math.floor(yoe / 100) + doy;
+  return era * 146097 + doe - 719468;
+}
+
+export interface DayOut {
+  day: number;
+  y: number;
+  m: number;
+  d: number;
+  /** The date as ISO 8601 text. */
+  iso: string;
+}
+
+function setCivilOfDay(day: number, out: DayOut): void {
+  const z = day + 719468;
+  const era = Math.floor(z / 146097);
+  const doe = z - era * 146097;
+  const yoe = Math.floor((doe - Math.floor(doe / 1460) + Math.floor(doe / 36524) - Math.floor(doe / 146096)) / 365);
+  const doy = doe - (365 * yoe + Math.floor(yoe / 4) - Math.floor(yoe / 100));
+  const mp = Math.floor((5 * doy + 2) / 153);
+  out.d = doy - Math.floor((153 * mp + 2) / 5) + 1;
+  out.m = mp < 10 ? mp + 3 : mp - 9;
+  out.y = yoe + era * 400 + (out.m <= 2 ? 1 : 0);
+  out.day = day;
+  out.iso = `${String(out.y).padStart(4, "0")}-${out.m < 10 ? "0" : ""}${out.m}-${out.d < 10 ? "0" : ""}${out.d}`;
 }
 
 /** The calendar day of a date cell. exceljs gives XLSX dates as UTC instants at midnight. */
@@ -90,13 +123,22 @@ export function dayOfDate(date: Date): number {
 
 /** ISO 8601 date of a day number. */
 export function isoOfDay(day: number): string {
-  return new Date(day * 86_400_000).toISOString().slice(0, 10);
+  const out: DayOut = { day: 0, y: 0, m: 0, d: 0, iso: "" };
+  setCivilOfDay(day, out);
+  return out.iso;
 }
 
-const ISO_DATE = /^(\d{4})-(\d{2})-(\d{2})$/;
+function isLeapYear(y: number): boolean {
+  return (y % 4 === 0 && y % 100 !== 0) || y % 400 === 0;
+}
 
-export interface DayOut {
-  day: number;
+const DAYS_IN_MONTH = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+
+const DATE_DIGITS = [0, 1, 2, 3, 5, 6, 8, 9];
+
+function digitAt(text: string, i: number): number {
+  const c = text.charCodeAt(i) - 48;
+  return c >= 0 && c <= 9 ? c : -1;
 }
 
 /**
@@ -105,43 +147,46 @@ export interface DayOut {
  */
 export function readDateCell(cell: Cell, column: string, out: DayOut): string | null {
   if (cell instanceof Date) {
-    out.day = dayOfDate(cell);
-    return Number.isFinite(out.day) ? null : `${column} is not a valid date`;
+    const day = dayOfDate(cell);
+    if (!Number.isFinite(day)) return `${column} is not a valid date`;
+    setCivilOfDay(day, out);
+    return null;
   }
   const text = cellText(cell);
   if (typeof cell === "number") return `${column} ${text} is a number, not a date; write it as YYYY-MM-DD or format the cell as a date`;
-  const m = ISO_DATE.exec(text);
-  if (m === null) return `${column} "${text}" is not an ISO 8601 date (YYYY-MM-DD)`;
-  const y = Number(m[1]);
-  const mo = Number(m[2]);
-  const d = Number(m[3]);
-  const day = dayOfYmd(y, mo, d);
-  // Date.UTC rolls 2024-02-31 over to 2024-03-02: a date is in the calendar when it survives the round trip.
-  if (mo < 1 || mo > 12 || d < 1 || isoOfDay(day) !== text) return `${column} "${text}" is not a date in the calendar`;
-  out.day = day;
+  let valid = text.length === 10 && text.charCodeAt(4) === 45 && text.charCodeAt(7) === 45;
+  for (let k = 0; valid && k < DATE_DIGITS.length; k++) if (digitAt(text, DATE_DIGITS[k]) === -1) valid = false;
+  if (!valid) return `${column} "${text}" is not an ISO 8601 date (YYYY-MM-DD)`;
+  const y = digitAt(text, 0) * 1000 + digitAt(text, 1) * 100 + digitAt(text, 2) * 10 + digitAt(text, 3);
+  const m = digitAt(text, 5) * 10 + digitAt(text, 6);
+  const d = digitAt(text, 8) * 10 + digitAt(text, 9);
+  if (m < 1 || m > 12 || d < 1 || d > (m === 2 && isLeapYear(y) ? 29 : DAYS_IN_MONTH[m - 1])) {
+    return `${column} "${text}" is not a date in the calendar`;
+  }
+  out.y = y;
+  out.m = m;
+  out.d = d;
+  out.day = dayOfYmd(y, m, d);
+  out.iso = text;
   return null;
 }
 
 /**
- * Exact age from birth and collection day. Days: the difference of the calendar days. Years:
+ * Exact age from birth and collection date. Days: the difference of the calendar days. Years:
  * whole years completed (birthdays passed; a 29 February birthday falls on 1 March in common
  * years) plus the fraction of the current year of age, i.e. days since the last birthday over
  * the days from that birthday to the next.
  */
-export function exactAgeYears(birthDay: number, collectedDay: number): number {
-  const birth = new Date(birthDay * 86_400_000);
-  const collected = new Date(collectedDay * 86_400_000);
-  const by = birth.getUTCFullYear();
-  const bm = birth.getUTCMonth();
-  const bd = birth.getUTCDate();
-  let years = collected.getUTCFullYear() - by;
-  let last = Date.UTC(by + years, bm, bd) / 86_400_000;
-  if (last > collectedDay) {
+export function exactAgeYears(birth: DayOut, collected: DayOut): number {
+  let years = collected.y - birth.y;
+  // dayOfYmd(y, 2, 29) in a common year is 1 March's day number, which is the convention above.
+  let last = dayOfYmd(birth.y + years, birth.m, birth.d);
+  if (last > collected.day) {
     years--;
-    last = Date.UTC(by + years, bm, bd) / 86_400_000;
+    last = dayOfYmd(birth.y + years, birth.m, birth.d);
   }
-  const next = Date.UTC(by + years + 1, bm, bd) / 86_400_000;
-  return years + (collectedDay - last) / (next - last);
+  const next = dayOfYmd(birth.y + years + 1, birth.m, birth.d);
+  return years + (collected.day - last) / (next - last);
 }
 
 /** Sex: F, M, female, male in any case. Returns "F", "M", or an error message. */
