@@ -14,6 +14,7 @@ import { Readable } from "node:stream";
 import ExcelJS from "exceljs";
 import type { Cell } from "./columns";
 import { UploadError } from "./errors";
+import { workbookInReadingOrder } from "./zip-order";
 
 const NOT_A_WORKBOOK = "the file is a ZIP archive but not a readable Excel workbook (.xlsx)";
 const CHUNK = 64 * 1024;
@@ -45,7 +46,8 @@ export interface XlsxReadCallbacks {
  * Throws UploadError "unknown_sheet" (listing the sheets) or "unreadable"; rethrows what the
  * callbacks throw.
  */
-export async function readXlsxRows(bytes: Uint8Array, sheet: string | undefined, callbacks: XlsxReadCallbacks): Promise<void> {
+export async function readXlsxRows(file: Uint8Array, sheet: string | undefined, callbacks: XlsxReadCallbacks): Promise<void> {
+  const bytes = workbookInReadingOrder(file);
   let bytesRead = 0;
   const source = Readable.from(
     (function* () {
