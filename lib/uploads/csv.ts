@@ -53,7 +53,6 @@ export function readCsvRecords(
     for (;;) {
       let field: string;
       if (text.charCodeAt(i) === QUOTE) {
-        const start = i;
         let parts = "";
         let from = i + 1;
         for (;;) {
@@ -62,7 +61,7 @@ export function readCsvRecords(
             const line = records === 0 ? "the header" : `data row ${records}`;
             throw new UploadError(
               "unreadable",
-              `the file is not readable as CSV: a quoted field opened in ${line} is never closed (character ${start + 1})`,
+              `the file is not readable as CSV: a quoted field opened in ${line} is never closed`,
             );
           }
           if (text.charCodeAt(q + 1) === QUOTE) {
