@@ -1,5 +1,6 @@
 import { readFileSync } from "node:fs";
 import path from "node:path";
+import { Readable } from "node:stream";
 import ExcelJS from "exceljs";
 import { describe, expect, it } from "vitest";
 import { checkUpload, previewUpload, templateCsv, templateXlsx, UploadError } from "@/lib/uploads";
@@ -47,6 +48,17 @@ describe("checkUpload: XLSX", () => {
     expect((refusal as UploadError).status).toBe(422);
     expect((refusal as UploadError).message).toBe('the workbook has no sheet "Results"; its sheets are "Notes", "Donors"');
     expect((refusal as UploadError).details.sheets).toEqual(["Notes", "Donors"]);
+  });
+
+  it("reads a workbook from a stream, reporting progress up to the whole file", async () => {
+    const seen: { rowsChecked: number; bytesRead: number; totalBytes: number }[] = [];
+    const report = await checkUpload(Readable.from([workbook.subarray(0, 1000), workbook.subarray(1000)]), {
+      unit: "mmol/L",
+      sheet: "Donors",
+      onProgress: (p) => seen.push({ ...p }),
+    });
+    expect(report.rows.total).toBe(5);
+    expect(seen[seen.length - 1]).toEqual({ rowsChecked: 5, bytesRead: workbook.byteLength, totalBytes: workbook.byteLength });
   });
 
   it("previews a sheet with every sheet's name", async () => {
