@@ -167,7 +167,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
 
       const donorCode = cellText(cell(cells, ix.donor_code));
       if (donorCode === "") fail("donor_code", "donor_code is missing");
-      else if (donorCode.toUpperCase() === EXAMPLE_DONOR_CODE) {
+      else if (donorCode.length === EXAMPLE_DONOR_CODE.length && donorCode.toUpperCase() === EXAMPLE_DONOR_CODE) {
         fail("donor_code", "this is the template's example row; delete it before uploading");
       } else {
         const seen = rowsOfCode.get(donorCode);
