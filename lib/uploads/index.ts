@@ -1,8 +1,9 @@
 /**
  * lib/uploads: healthy-donor uploads (CSV or XLSX bytes) → a validation report of donor
- * results. Pure apart from exceljs's temporary files: no database, no framework. A file refused
- * whole throws {@link UploadError} (code → HTTP status in UPLOAD_ERROR_STATUS); row problems are
- * listed in the report.
+ * results. No database, no framework, no files: a workbook's parts are put in reading order in
+ * memory (zip-order.ts), so exceljs never parks a sheet in a temporary file. Node only
+ * (node:stream, Buffer). A file refused whole throws {@link UploadError} (code → HTTP status in
+ * UPLOAD_ERROR_STATUS); row problems are listed in the report.
  */
 export { TEMPLATE_COLUMNS, EXAMPLE_DONOR_CODE, type TemplateColumn, type ColumnMapping } from "./columns";
 export { UploadError, UPLOAD_ERROR_STATUS, type UploadErrorCode, type UploadErrorDetails } from "./errors";
