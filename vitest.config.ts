@@ -17,7 +17,7 @@ export default defineConfig({
         extends: true,
         test: {
           name: "unit",
-          include: ["tests/stats/**/*.test.ts", "tests/scoring/**/*.test.ts", "tests/lib/**/*.test.ts", "tests/cli/**/*.test.ts"],
+          include: ["tests/stats/**/*.test.ts", "tests/scoring/**/*.test.ts", "tests/lib/**/*.test.ts", "tests/cli/**/*.test.ts", "tests/uploads/**/*.test.ts"],
           environment: "node",
         },
       },

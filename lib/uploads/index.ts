@@ -1,0 +1,27 @@
+/**
+ * lib/uploads: healthy-donor uploads (CSV or XLSX bytes) → a validation report of donor
+ * results. No database, no framework, no files: a workbook's parts are put in reading order in
+ * memory (zip-order.ts), so exceljs never parks a sheet in a temporary file. Node only
+ * (node:stream, Buffer). A file refused whole throws {@link UploadError} (code → HTTP status in
+ * UPLOAD_ERROR_STATUS); row problems are listed in the report.
+ */
+export { TEMPLATE_COLUMNS, EXAMPLE_DONOR_CODE, type TemplateColumn, type ColumnMapping } from "./columns";
+export { UploadError, UPLOAD_ERROR_STATUS, type UploadErrorCode, type UploadErrorDetails } from "./errors";
+export { MAX_UPLOAD_BYTES, type UploadInput } from "./input";
+export type { ResolvedMapping } from "./mapping";
+export {
+  checkUpload,
+  MAX_DATA_ROWS,
+  MAX_LISTED_PROBLEMS,
+  MAX_AGE_YEARS,
+  DAYS_PER_YEAR,
+  type CheckOptions,
+  type ConvertUnit,
+  type DonorRow,
+  type CensoringSide,
+  type UploadProblem,
+  type UploadProgress,
+  type ValidationReport,
+} from "./check";
+export { previewUpload, type PreviewOptions, type UploadPreview } from "./preview";
+export { templateCsv, templateXlsx, type TemplateOptions } from "./template";

@@ -1,0 +1,93 @@
+/**
+ * Which column of the file holds each template column: the template's own header (any case)
+ * unless the caller's mapping names another header. Refuses, with the file's headers in the
+ * error's details, a mapping that names an unknown template column or a header the file lacks,
+ * and a result without donor_code, sex, value or any complete age form.
+ */
+import { TEMPLATE_COLUMNS, type ColumnMapping, type TemplateColumn } from "./columns";
+import { UploadError } from "./errors";
+
+/** For each template column, the file's header that holds it, or null. */
+export type ResolvedMapping = Record<TemplateColumn, string | null>;
+
+export interface ResolvedColumns {
+  mapping: ResolvedMapping;
+  /** Index into a row's cells, −1 when unmapped. */
+  index: Record<TemplateColumn, number>;
+}
+
+function list(items: readonly string[]): string {
+  return items.map((h) => `"${h}"`).join(", ");
+}
+
+export function resolveColumns(headers: readonly string[], mapping: ColumnMapping = {}): ResolvedColumns {
+  const details = { headers: [...headers] };
+  const known = new Set<string>(TEMPLATE_COLUMNS);
+  for (const key of Object.keys(mapping)) {
+    if (!known.has(key)) {
+      throw new UploadError(
+        "mapping",
+        `the mapping names "${key}", which is not a template column (${TEMPLATE_COLUMNS.join(", ")})`,
+        details,
+      );
+    }
+  }
+  const find = (header: string): number => {
+    const exact = headers.indexOf(header);
+    if (exact !== -1) return exact;
+    const lower = header.trim().toLowerCase();
+    return headers.findIndex((h) => h.toLowerCase() === lower);
+  };
+  const index = {} as Record<TemplateColumn, number>;
+  const resolved = {} as ResolvedMapping;
+  const claimedBy = new Map<number, TemplateColumn>();
+  for (const column of TEMPLATE_COLUMNS) {
+    const wanted = mapping[column];
+    let i: number;
+    if (wanted !== undefined && wanted !== null && wanted !== "") {
+      i = find(wanted);
+      if (i === -1) {
+        throw new UploadError(
+          "mapping",
+          `the mapping gives the header "${wanted}" for ${column}, but the file has no such header (its headers: ${list(headers)})`,
+          details,
+        );
+      }
+      const other = claimedBy.get(i);
+      if (other !== undefined && mapping[other] !== undefined) {
+        throw new UploadError("mapping", `the mapping gives the header "${headers[i]}" to both ${other} and ${column}`, details);
+      }
+    } else {
+      i = find(column);
+      // A header the mapping gave to another column is not also read under its own name.
+      if (i !== -1 && claimedBy.has(i)) i = -1;
+    }
+    if (i !== -1) claimedBy.set(i, column);
+    index[column] = i;
+    resolved[column] = i === -1 ? null : headers[i];
+  }
+  // A header claimed by its own name before the mapping gave it to a later column.
+  for (const column of TEMPLATE_COLUMNS) {
+    const i = index[column];
+    if (i !== -1 && claimedBy.get(i) !== column) {
+      index[column] = -1;
+      resolved[column] = null;
+    }
+  }
+  const missing = (["donor_code", "sex", "value"] as const).filter((c) => index[c] === -1);
+  if (missing.length > 0) {
+    throw new UploadError(
+      "mapping",
+      `no column of the file is mapped to ${missing.join(", ")}; name the file's header for ${missing.length === 1 ? "it" : "each"} in the mapping (its headers: ${list(headers)})`,
+      details,
+    );
+  }
+  if (index.age_years === -1 && (index.birth_date === -1 || index.collected_on === -1)) {
+    throw new UploadError(
+      "mapping",
+      `no column of the file is mapped to the age; map age_years, or both birth_date and collected_on (its headers: ${list(headers)})`,
+      details,
+    );
+  }
+  return { mapping: resolved, index };
+}
