@@ -5,7 +5,7 @@ const config = [
   ...nextVitals,
   ...nextTypescript,
   {
-    ignores: [".next/**", "node_modules/**", ".data/**", ".test-data/**", "next-env.d.ts", "drizzle/**"],
+    ignores: [".next/**", ".cli-build/**", "node_modules/**", ".data/**", ".test-data/**", "next-env.d.ts", "drizzle/**"],
   },
   {
     rules: {

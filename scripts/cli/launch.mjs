@@ -1,0 +1,89 @@
+/**
+ * What `npm run -s bellwether -- …` runs: the command line compiled once into one JavaScript
+ * file, instead of tsx compiling the TypeScript on every run.
+ *
+ * The bundle (.cli-build/bellwether.cjs, git-ignored) is made by esbuild from
+ * scripts/bellwether.ts; beside it, manifest.json lists every source file esbuild read outside
+ * node_modules with its size and modification time, plus the package lock files (a changed
+ * dependency changes them). When any of those differ, or the bundle is missing, it is built
+ * again before it runs, so a fresh clone and an edited source need no extra step. The bundle
+ * and its manifest are written to temporary names and renamed, so two commands started at
+ * once never see half a file. esbuild is the one tsx depends on, already in node_modules.
+ *
+ * Plain JavaScript on purpose: node runs it as it is.
+ */
+import fs from "node:fs";
+import { createRequire } from "node:module";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+
+const require = createRequire(import.meta.url);
+const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
+const OUT_DIR = path.join(ROOT, ".cli-build");
+const BUNDLE = path.join(OUT_DIR, "bellwether.cjs");
+const MANIFEST = path.join(OUT_DIR, "manifest.json");
+const ENTRY = "scripts/bellwether.ts";
+/** Besides the sources: what says the installed packages changed, and this file itself. */
+const ALWAYS_WATCHED = ["package.json", "package-lock.json", "node_modules/.package-lock.json", "scripts/cli/launch.mjs"];
+
+function stamp(rel) {
+  try {
+    const s = fs.statSync(path.join(ROOT, rel));
+    return `${s.size}:${s.mtimeMs}`;
+  } catch {
+    return "missing";
+  }
+}
+
+function isFresh() {
+  let manifest;
+  try {
+    manifest = JSON.parse(fs.readFileSync(MANIFEST, "utf8"));
+  } catch {
+    return false;
+  }
+  if (!fs.existsSync(BUNDLE) || manifest.entry !== ENTRY || typeof manifest.inputs !== "object") return false;
+  for (const [rel, was] of Object.entries(manifest.inputs)) {
+    if (stamp(rel) !== was) return false;
+  }
+  return true;
+}
+
+function build() {
+  const esbuild = require("esbuild");
+  fs.mkdirSync(OUT_DIR, { recursive: true });
+  const tmp = `${BUNDLE}.${process.pid}.tmp`;
+  const result = esbuild.buildSync({
+    absWorkingDir: ROOT,
+    entryPoints: [ENTRY],
+    outfile: tmp,
+    bundle: true,
+    platform: "node",
+    format: "cjs",
+    target: "node20",
+    tsconfig: path.join(ROOT, "tsconfig.json"),
+    metafile: true,
+    logLevel: "error",
+  });
+  const inputs = {};
+  for (const rel of Object.keys(result.metafile.inputs)) {
+    if (!rel.startsWith("node_modules/") && !rel.includes("/node_modules/")) inputs[rel] = stamp(rel);
+  }
+  for (const rel of ALWAYS_WATCHED) inputs[rel] = stamp(rel);
+  const tmpManifest = `${MANIFEST}.${process.pid}.tmp`;
+  fs.writeFileSync(tmpManifest, `${JSON.stringify({ entry: ENTRY, inputs }, null, 2)}\n`);
+  fs.renameSync(tmp, BUNDLE);
+  fs.renameSync(tmpManifest, MANIFEST);
+}
+
+if (!isFresh()) {
+  try {
+    build();
+  } catch (err) {
+    process.stderr.write(
+      `bellwether: could not build the command line (${String(err && err.message ? err.message : err).split("\n")[0]}).\n`,
+    );
+    process.exit(1);
+  }
+}
+require(BUNDLE);
