@@ -68,8 +68,8 @@ export function readValuesWithPapa(body: string, file: string): number[] {
 const QUOTE = 0x22;
 /** Papa Parse guesses the line ending from the first megabyte. */
 const GUESS_SPAN = 1024 * 1024;
-/** Papa Parse guesses the delimiter from the first 10 rows (11 with the header, to be safe). */
-const GUESS_ROWS = 11;
+/** Papa Parse guesses the delimiter from the first 10 rows; a margin of two. */
+const GUESS_ROWS = 12;
 
 /** The characters String.prototype.trim removes (ECMA-262 WhiteSpace and LineTerminator). */
 function isSpace(c: number): boolean {
@@ -165,26 +165,64 @@ function endOfFirstLines(s: string, rows: number): number {
 }
 
 /**
+ * Papa Parse's guess of the line ending for a text without quotes (the first megabyte of the
+ * file): "\n" when there is no CR or an LF comes first; else "\r\n" when at least half the
+ * CRs (counting one more) are followed by an LF; else "\r".
+ */
+type LineEnding = "\n" | "\r\n" | "\r";
+
+function papaLineEnding(head: string): LineEnding {
+  const firstLf = head.indexOf("\n");
+  const firstCr = head.indexOf("\r");
+  if (firstCr < 0 || (firstLf >= 0 && firstLf < firstCr)) return "\n";
+  let cr = 0;
+  let crlf = 0;
+  for (let i = firstCr; i < head.length; i++) {
+    if (head.charCodeAt(i) === 13) {
+      cr++;
+      if (head.charCodeAt(i + 1) === 10) crlf++;
+    }
+  }
+  return crlf >= (cr + 1) / 2 ? "\r\n" : "\r";
+}
+
+/** Where the `rows`-th `newline` ends in `s`; -1 when there are fewer. */
+function endOfLines(s: string, newline: string, rows: number): number {
+  let at = 0;
+  for (let k = 0; k < rows; k++) {
+    const j = s.indexOf(newline, at);
+    if (j < 0) return -1;
+    at = j + newline.length;
+  }
+  return at;
+}
+
+/**
  * The fast reader: the values, or null when the reference reader must decide (any error, and
  * anything out of the ordinary). `body` has no byte-order mark.
  */
 export function scanValues(body: string): number[] | null {
-  // The delimiter, line ending and header names exactly as Papa Parse settles them. It decides
-  // from the first rows (and line endings from the first megabyte), so a prefix holding those
-  // rows gives the same answers; a long file whose first rows hold quotes goes to Papa whole.
-  let head = body;
-  if (body.length > GUESS_SPAN) {
-    head = body.slice(0, GUESS_SPAN);
-    if (endOfFirstLines(head, GUESS_ROWS) < 0) return null;
+  // The delimiter, line ending and header names exactly as Papa Parse settles them: the line
+  // ending from the first megabyte, the delimiter from the first 10 rows. Without quotes up
+  // there, the line ending is worked out here and Papa reads only the first lines; otherwise
+  // Papa reads the first megabyte, and a longer file whose first lines hold a quote goes to it.
+  let head = body.length > GUESS_SPAN ? body.slice(0, GUESS_SPAN) : body;
+  let newline: LineEnding | null = head.includes('"') ? null : papaLineEnding(head);
+  if (newline !== null) {
+    const end = endOfLines(head, newline, GUESS_ROWS);
+    if (end > 0) head = head.slice(0, end);
+    else if (head.length < body.length) return null;
+  } else if (head.length < body.length && endOfFirstLines(head, GUESS_ROWS) < 0) {
+    return null;
   }
   // Without `header`: Papa would warn on stderr about a duplicated name, and the reference
   // reader, which such a file goes to, warns once already.
-  const guess = Papa.parse<string[]>(head, { skipEmptyLines: "greedy", preview: 1 });
+  const guess = Papa.parse<string[]>(head, { skipEmptyLines: "greedy", preview: 1, newline: newline ?? undefined });
   const fields = (guess.data[0] ?? []).map((f) => f.trim());
-  const meta = guess.meta;
-  const delimiter = meta.delimiter;
-  const newline = meta.linebreak;
-  if (delimiter.length !== 1 || !(newline === "\n" || newline === "\r\n" || newline === "\r")) return null;
+  const delimiter = guess.meta.delimiter;
+  const found = newline ?? guess.meta.linebreak;
+  if (delimiter.length !== 1 || !(found === "\n" || found === "\r\n" || found === "\r")) return null;
+  newline = found;
   const column = fields.findIndex((f) => f.toLowerCase() === "value");
   if (column < 0) return null;
 
