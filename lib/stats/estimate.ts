@@ -238,6 +238,14 @@ function tryOr<T>(f: () => T, fallback: T): T {
 /**
  * Estimates the 95% reference interval of one partition by every applicable method.
  *
+ * Each value is a measured number or a censored value `{ value, side }` ("<0.5" is
+ * `{ value: 0.5, side: "below" }`). Censored values count in n and in the nonparametric ranks
+ * (below, or above, every measured value; see nonparametric-censored.ts), where a limit or CI end
+ * that falls on one is a bound flagged "<" or ">" in `nonparametric.lowerCensored` and the like.
+ * Everything else (the outlier screen, the scale, the parametric and robust limits, normality)
+ * uses the measured values only, with a warning giving how many were left out; `censored`
+ * counts them. Above 5% censored the advice is nonparametric. Plain number arrays work as before.
+ *
  * 1. Outliers: the chosen screen (Horn by default; Tukey on the raw scale when a value is not
  *    positive) proposes values, listed in `proposed` with the rule's statistic. With screening
  *    "propose" (the default) nothing is excluded; with "apply" they are left out and also
@@ -258,9 +266,10 @@ function tryOr<T>(f: () => T, fallback: T): T {
  * @see lib/stats/* for each method and its source; CLSI EP28-A3c (2010).
  * Complexity O(n log n): one sort; the λ search is O(n) per evaluation; bootstraps only below
  *   120 values.
- * Throws StatsInputError on an empty sample, a non-finite value, an unknown option, or ln /
- *   Box-Cox requested for data with a non-positive value.
+ * Throws StatsInputError on an empty sample, a non-finite value, a malformed censored value, an
+ *   unknown option, or ln / Box-Cox requested for data with a non-positive measured value.
  * @example estimateReferenceInterval(values, { outliers: "horn", screening: "propose", transform: "auto", seed: 1 })
+ * @example estimateReferenceInterval([{ value: 0.5, side: "below" }, 0.8, 1.1, …]).nonparametric.lowerCensored // "<" or null
  */
 export function estimateReferenceInterval(
   given: readonly DonorValue[],
