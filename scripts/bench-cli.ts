@@ -7,12 +7,14 @@
  *   npm run -s bellwether -- estimate FILE --outliers none --transform box-cox   (what users type)
  *   node scripts/cli/launch.mjs estimate FILE …                               (the same, without npm)
  *   Rscript scripts/bench/estimate.R FILE                                     (the same work in base R)
- * and prints the median and fastest wall time of each and the ratios of the medians. With
+ * and prints the median and fastest wall time of each and the ratios of the medians; where
+ * /usr/bin/time exists, also the median CPU time (user + system, the process and its children),
+ * which a busy shared machine disturbs less than the wall time. With
  * `--checkout DIR` the npm command runs in another checkout (an older commit, for a before/after
  * figure). R is skipped, with a message, where Rscript is absent. Prints figures, asserts nothing.
  */
 import { spawnSync } from "node:child_process";
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import normal from "@stdlib/stats-base-dists-normal";
@@ -47,14 +49,24 @@ interface Contender {
   args: string[];
   cwd: string;
   times: number[];
+  cpu: number[];
 }
 
-function runOnce(c: Contender): number {
+const TIME = "/usr/bin/time";
+const hasTime = existsSync(TIME);
+
+function runOnce(c: Contender, cpuFile: string): number {
+  const [command, args] = hasTime ? [TIME, ["-f", "%U %S", "-o", cpuFile, c.command, ...c.args]] : [c.command, c.args];
   const t0 = performance.now();
-  const r = spawnSync(c.command, c.args, { cwd: c.cwd, stdio: ["ignore", "ignore", "pipe"], encoding: "utf8" });
+  const r = spawnSync(command, args, { cwd: c.cwd, stdio: ["ignore", "ignore", "pipe"], encoding: "utf8" });
   const ms = performance.now() - t0;
   if (r.error || r.status !== 0) {
     throw new Error(`${c.label} failed (${r.error?.message ?? `exit ${r.status}`}): ${r.stderr?.trim() ?? ""}`);
+  }
+  c.times.push(ms);
+  if (hasTime) {
+    const [user, system] = readFileSync(cpuFile, "utf8").trim().split(/\s+/).map(Number);
+    c.cpu.push((user + system) * 1000);
   }
   return ms;
 }
@@ -70,27 +82,33 @@ try {
   writeCsv(file);
   const estimateArgs = ["estimate", file, "--outliers", "none", "--transform", "box-cox"];
   const contenders: Contender[] = [
-    { label: "npm run -s bellwether", command: "npm", args: ["run", "-s", "bellwether", "--", ...estimateArgs], cwd: checkout, times: [] },
+    { label: "npm run -s bellwether", command: "npm", args: ["run", "-s", "bellwether", "--", ...estimateArgs], cwd: checkout, times: [], cpu: [] },
   ];
   if (checkout === ROOT) {
-    contenders.push({ label: "node scripts/cli/launch.mjs", command: process.execPath, args: ["scripts/cli/launch.mjs", ...estimateArgs], cwd: ROOT, times: [] });
+    contenders.push({ label: "node scripts/cli/launch.mjs", command: process.execPath, args: ["scripts/cli/launch.mjs", ...estimateArgs], cwd: ROOT, times: [], cpu: [] });
   }
   const hasR = spawnSync("Rscript", ["--version"], { stdio: "ignore" }).error === undefined;
   if (hasR) {
-    contenders.push({ label: "Rscript scripts/bench/estimate.R", command: "Rscript", args: [path.join(ROOT, "scripts/bench/estimate.R"), file], cwd: ROOT, times: [] });
+    contenders.push({ label: "Rscript scripts/bench/estimate.R", command: "Rscript", args: [path.join(ROOT, "scripts/bench/estimate.R"), file], cwd: ROOT, times: [], cpu: [] });
   } else {
     console.log("Rscript not found: R's side is skipped (Debian: apt-get install r-base-core).");
   }
   console.log(`${n} values in ${file}; ${runs} runs each, in turn; ${os.cpus().length} cores, load ${os.loadavg()[0].toFixed(1)}`);
-  runOnce(contenders[0]); // builds the bundle if a source changed; not timed
-  for (let r = 0; r < runs; r++) for (const c of contenders) c.times.push(runOnce(c));
+  const cpuFile = path.join(dir, "cpu.txt");
+  runOnce(contenders[0], cpuFile); // builds the bundle if a source changed; not counted
+  contenders[0].times.length = 0;
+  contenders[0].cpu.length = 0;
+  for (let r = 0; r < runs; r++) for (const c of contenders) runOnce(c, cpuFile);
+  const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
   for (const c of contenders) {
-    console.log(`${c.label.padEnd(34)} median ${(median(c.times) / 1000).toFixed(2)} s   fastest ${(Math.min(...c.times) / 1000).toFixed(2)} s`);
+    const cpu = hasTime ? `   CPU median ${s(median(c.cpu))}` : "";
+    console.log(`${c.label.padEnd(34)} wall median ${s(median(c.times))}   fastest ${s(Math.min(...c.times))}${cpu}`);
   }
   const r = contenders.find((c) => c.command === "Rscript");
   if (r) {
     for (const c of contenders.filter((x) => x !== r)) {
-      console.log(`ratio ${c.label} / R: ${(median(c.times) / median(r.times)).toFixed(2)} (medians)`);
+      const cpu = hasTime ? `, CPU ${(median(c.cpu) / median(r.cpu)).toFixed(2)}` : "";
+      console.log(`ratio ${c.label} / R: wall ${(median(c.times) / median(r.times)).toFixed(2)}${cpu} (medians)`);
     }
   }
 } finally {
