@@ -10,18 +10,24 @@
  * and its manifest are written to temporary names and renamed, so two commands started at
  * once never see half a file. esbuild is the one tsx depends on, already in node_modules.
  *
+ * The bundle runs through node:vm with V8's code cache (.cli-build/bellwether.cjs.cache, written
+ * after the first run of each bundle): V8 then skips compiling what it compiled before. V8
+ * itself refuses a cache that does not match the source, and a rejected cache is written again.
+ *
  * Plain JavaScript on purpose: node runs it as it is.
  */
 import fs from "node:fs";
-import { createRequire } from "node:module";
+import Module, { createRequire } from "node:module";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
+import vm from "node:vm";
 
 const require = createRequire(import.meta.url);
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
 const OUT_DIR = path.join(ROOT, ".cli-build");
 const BUNDLE = path.join(OUT_DIR, "bellwether.cjs");
 const MANIFEST = path.join(OUT_DIR, "manifest.json");
+const CODE_CACHE = `${BUNDLE}.cache`;
 const ENTRY = "scripts/bellwether.ts";
 /** Besides the sources: what says the installed packages changed, and this file itself. */
 const ALWAYS_WATCHED = ["package.json", "package-lock.json", "node_modules/.package-lock.json", "scripts/cli/launch.mjs"];
@@ -72,8 +78,36 @@ function build() {
   for (const rel of ALWAYS_WATCHED) inputs[rel] = stamp(rel);
   const tmpManifest = `${MANIFEST}.${process.pid}.tmp`;
   fs.writeFileSync(tmpManifest, `${JSON.stringify({ entry: ENTRY, inputs }, null, 2)}\n`);
+  fs.rmSync(CODE_CACHE, { force: true });
   fs.renameSync(tmp, BUNDLE);
   fs.renameSync(tmpManifest, MANIFEST);
+}
+
+/** Runs the bundle as node would require it, with V8's code cache when there is one. */
+function runBundle() {
+  const source = fs.readFileSync(BUNDLE, "utf8");
+  let cachedData;
+  try {
+    cachedData = fs.readFileSync(CODE_CACHE);
+  } catch {
+    cachedData = undefined;
+  }
+  const script = new vm.Script(Module.wrap(source), { filename: BUNDLE, cachedData });
+  if (cachedData === undefined || script.cachedDataRejected) {
+    process.on("exit", () => {
+      try {
+        const tmp = `${CODE_CACHE}.${process.pid}.tmp`;
+        fs.writeFileSync(tmp, script.createCachedData());
+        fs.renameSync(tmp, CODE_CACHE);
+      } catch {
+        // A cache that cannot be written only costs the next run its compile time.
+      }
+    });
+  }
+  const bundleModule = { exports: {} };
+  script
+    .runInThisContext()
+    .call(bundleModule.exports, bundleModule.exports, createRequire(BUNDLE), bundleModule, BUNDLE, OUT_DIR);
 }
 
 if (!isFresh()) {
@@ -86,4 +120,4 @@ if (!isFresh()) {
     process.exit(1);
   }
 }
-require(BUNDLE);
+runBundle();
