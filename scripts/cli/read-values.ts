@@ -322,7 +322,10 @@ export function scanValues(body: string): number[] | null {
     values[count++] = value;
   }
   if (count === 0) return null;
-  return Array.from(values.subarray(0, count));
+  // A plain loop: Array.from on a typed array goes through its iterator, several times slower.
+  const out = new Array<number>(count);
+  for (let j = 0; j < count; j++) out[j] = values[j];
+  return out;
 }
 
 /** True when s[from, to) holds nothing but delimiters and white space (a line Papa skips). */
