@@ -260,11 +260,30 @@ export function scanValues(body: string): number[] | null {
 
   let values = new Float64Array(Math.max(16, Math.ceil(n / 8)));
   let count = 0;
+  // The next quote and delimiter at or after i, found by indexOf and kept until passed (-1: none
+  // left), so that each part of the text is searched once.
+  let quoteAt = s.indexOf('"', i);
+  let delimAt = s.indexOf(delimiter, i);
   while (i < n) {
     const rowStart = i;
     let field = 0;
     let value = Number.NaN;
-    for (;;) {
+    if (quoteAt !== -1 && quoteAt < i) quoteAt = s.indexOf('"', i);
+    let lineEnd = s.indexOf(newline, i);
+    if (lineEnd < 0) lineEnd = n;
+    if (quoteAt === -1 || quoteAt >= lineEnd) {
+      // A row without quotes, the usual case: its value found with indexOf, the rest skipped.
+      let start = i;
+      for (let f = 0; f < column && start >= 0; f++) {
+        if (delimAt !== -1 && delimAt < start) delimAt = s.indexOf(delimiter, start);
+        start = delimAt !== -1 && delimAt < lineEnd ? delimAt + 1 : -1;
+      }
+      if (start >= 0) {
+        if (delimAt !== -1 && delimAt < start) delimAt = s.indexOf(delimiter, start);
+        value = numberAt(s, start, delimAt !== -1 && delimAt < lineEnd ? delimAt : lineEnd);
+      }
+      i = Math.min(n, lineEnd + nlLength);
+    } else for (;;) {
       if (s.charCodeAt(i) === QUOTE) {
         // A quoted field: "" inside is one quote; the closing quote must be followed by the
         // delimiter, the line ending or the end of the file (else Papa reports or repairs it).
