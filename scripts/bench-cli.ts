@@ -5,7 +5,7 @@
  * temporary folder, runs the command line once untimed (it builds its bundle if needed), then
  * times, in turn and `--runs` times each:
  *   npm run -s bellwether -- estimate FILE --outliers none --transform box-cox   (what users type)
- *   node scripts/cli/launch.mjs estimate FILE …                               (the same, without npm)
+ *   node scripts/cli/launch.cjs estimate FILE …                               (the same, without npm)
  *   Rscript scripts/bench/estimate.R FILE                                     (the same work in base R)
  * and prints the median and fastest wall time of each and the ratios of the medians; where
  * /usr/bin/time exists, also the median CPU time (user + system, the process and its children),
@@ -85,7 +85,7 @@ try {
     { label: "npm run -s bellwether", command: "npm", args: ["run", "-s", "bellwether", "--", ...estimateArgs], cwd: checkout, times: [], cpu: [] },
   ];
   if (checkout === ROOT) {
-    contenders.push({ label: "node scripts/cli/launch.mjs", command: process.execPath, args: ["scripts/cli/launch.mjs", ...estimateArgs], cwd: ROOT, times: [], cpu: [] });
+    contenders.push({ label: "node scripts/cli/launch.cjs", command: process.execPath, args: ["scripts/cli/launch.cjs", ...estimateArgs], cwd: ROOT, times: [], cpu: [] });
   }
   const hasR = spawnSync("Rscript", ["--version"], { stdio: "ignore" }).error === undefined;
   if (hasR) {

@@ -57,11 +57,11 @@ describe.concurrent("bellwether estimate (as a process)", () => {
   }, 60_000);
 
   it("gives the same document and errors through the built command line that npm runs", async () => {
-    // package.json's "bellwether" script: scripts/cli/launch.mjs builds .cli-build/ when a
+    // package.json's "bellwether" script: scripts/cli/launch.cjs builds .cli-build/ when a
     // source changed and runs the bundle. Its output must be the TypeScript entry's, byte for byte.
     const launch = async (args: string[]) => {
       try {
-        const { stdout, stderr } = await exec(process.execPath, ["scripts/cli/launch.mjs", "estimate", ...args], { cwd: ROOT });
+        const { stdout, stderr } = await exec(process.execPath, ["scripts/cli/launch.cjs", "estimate", ...args], { cwd: ROOT });
         return { code: 0, stdout, stderr };
       } catch (e) {
         const err = e as { code: number; stdout: string; stderr: string };

@@ -14,23 +14,22 @@
  * after the first run of each bundle): V8 then skips compiling what it compiled before. V8
  * itself refuses a cache that does not match the source, and a rejected cache is written again.
  *
- * Plain JavaScript on purpose: node runs it as it is.
+ * Plain CommonJS on purpose: node runs it as it is, without the ES module loader's start-up.
  */
-import fs from "node:fs";
-import Module, { createRequire } from "node:module";
-import path from "node:path";
-import { fileURLToPath } from "node:url";
-import vm from "node:vm";
+"use strict";
+const fs = require("node:fs");
+const Module = require("node:module");
+const path = require("node:path");
+const vm = require("node:vm");
 
-const require = createRequire(import.meta.url);
-const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
+const ROOT = path.resolve(__dirname, "../..");
 const OUT_DIR = path.join(ROOT, ".cli-build");
 const BUNDLE = path.join(OUT_DIR, "bellwether.cjs");
 const MANIFEST = path.join(OUT_DIR, "manifest.json");
 const CODE_CACHE = `${BUNDLE}.cache`;
 const ENTRY = "scripts/bellwether.ts";
 /** Besides the sources: what says the installed packages changed, and this file itself. */
-const ALWAYS_WATCHED = ["package.json", "package-lock.json", "node_modules/.package-lock.json", "scripts/cli/launch.mjs"];
+const ALWAYS_WATCHED = ["package.json", "package-lock.json", "node_modules/.package-lock.json", "scripts/cli/launch.cjs"];
 
 function stamp(rel) {
   try {
@@ -107,7 +106,7 @@ function runBundle() {
   const bundleModule = { exports: {} };
   script
     .runInThisContext()
-    .call(bundleModule.exports, bundleModule.exports, createRequire(BUNDLE), bundleModule, BUNDLE, OUT_DIR);
+    .call(bundleModule.exports, bundleModule.exports, Module.createRequire(BUNDLE), bundleModule, BUNDLE, OUT_DIR);
 }
 
 if (!isFresh()) {
