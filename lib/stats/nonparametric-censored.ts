@@ -44,8 +44,9 @@ const P_HIGH = 0.975;
  *   Chem 1971;17:275–284 (binomial ranks).
  * Complexity O(m + b log b + a log a) for m measured, b below and a above values.
  * Throws StatsInputError on a non-finite value or limit, or measured values out of order.
- * @example nonparametricLimitsCensored([0.5, 0.5], [...measuredSortedAscending], [])
- *   // { lower: …, lowerCensored: "<" when 0.025·(n + 1) < 3 … }
+ * @example nonparametricLimitsCensored([0.5, 0.5], [1, 2, 3, …, 38], [])
+ *   // n = 40: rank 1.025 lies among the two "<0.5" → lower 0.5, lowerCensored "<";
+ *   // rank 39.975 → upper 37.975, upperCensored null; CIs null (n < 119)
  */
 export function nonparametricLimitsCensored(
   belowLimits: readonly number[],

@@ -283,50 +283,57 @@ export function scanValues(body: string): number[] | null {
         value = numberAt(s, start, delimAt !== -1 && delimAt < lineEnd ? delimAt : lineEnd);
       }
       i = Math.min(n, lineEnd + nlLength);
-    } else for (;;) {
-      if (s.charCodeAt(i) === QUOTE) {
-        // A quoted field: "" inside is one quote; the closing quote must be followed by the
-        // delimiter, the line ending or the end of the file (else Papa reports or repairs it).
-        let j = i + 1;
-        let q: number;
-        let escaped = false;
-        for (;;) {
-          q = s.indexOf('"', j);
-          if (q < 0) return null;
-          if (s.charCodeAt(q + 1) === QUOTE) {
-            escaped = true;
-            j = q + 2;
-            continue;
+    } else {
+      // A row with a quote: field by field, as Papa reads quoted fields.
+      for (;;) {
+        if (s.charCodeAt(i) === QUOTE) {
+          // A quoted field: "" inside is one quote; the closing quote must be followed by the
+          // delimiter, the line ending or the end of the file (else Papa reports or repairs it).
+          let j = i + 1;
+          let q: number;
+          let escaped = false;
+          for (;;) {
+            q = s.indexOf('"', j);
+            if (q < 0) return null;
+            if (s.charCodeAt(q + 1) === QUOTE) {
+              escaped = true;
+              j = q + 2;
+              continue;
+            }
+            break;
           }
-          break;
+          const after = q + 1;
+          if (after < n) {
+            const c = s.charCodeAt(after);
+            if (!(c === D || (c === NL && (!crlf || s.charCodeAt(after + 1) === 10)))) return null;
+          }
+          if (field === column) {
+            if (escaped) {
+              const text = s.slice(i + 1, q).replaceAll('""', '"');
+              value = numberAt(text, 0, text.length);
+            } else {
+              value = numberAt(s, i + 1, q);
+            }
+          }
+          i = after;
+        } else {
+          let k = i;
+          while (k < n) {
+            const c = s.charCodeAt(k);
+            if (c === D || (c === NL && (!crlf || s.charCodeAt(k + 1) === 10))) break;
+            k++;
+          }
+          if (field === column) value = numberAt(s, i, k);
+          i = k;
         }
-        const after = q + 1;
-        if (after < n) {
-          const c = s.charCodeAt(after);
-          if (!(c === D || (c === NL && (!crlf || s.charCodeAt(after + 1) === 10)))) return null;
+        if (i < n && s.charCodeAt(i) === D) {
+          i++;
+          field++;
+          continue;
         }
-        if (field === column) {
-          const text = escaped ? s.slice(i + 1, q).replaceAll('""', '"') : s;
-          value = escaped ? numberAt(text, 0, text.length) : numberAt(s, i + 1, q);
-        }
-        i = after;
-      } else {
-        let k = i;
-        while (k < n) {
-          const c = s.charCodeAt(k);
-          if (c === D || (c === NL && (!crlf || s.charCodeAt(k + 1) === 10))) break;
-          k++;
-        }
-        if (field === column) value = numberAt(s, i, k);
-        i = k;
+        i = Math.min(n, i + nlLength);
+        break;
       }
-      if (i < n && s.charCodeAt(i) === D) {
-        i++;
-        field++;
-        continue;
-      }
-      i = Math.min(n, i + nlLength);
-      break;
     }
     if (!(value === value)) {
       // A missing or unreadable value: fine on a blank line (Papa skips it), else an error.
