@@ -4,11 +4,11 @@
  *
  * The bundle (.cli-build/bellwether.cjs, git-ignored) is made by esbuild from
  * scripts/bellwether.ts; beside it, manifest.json lists every source file esbuild read outside
- * node_modules with its size and modification time, plus the package lock files (a changed
- * dependency changes them). When any of those differ, or the bundle is missing, it is built
- * again before it runs, so a fresh clone and an edited source need no extra step. The bundle
- * and its manifest are written to temporary names and renamed, so two commands started at
- * once never see half a file. esbuild is the one tsx depends on, already in node_modules.
+ * node_modules with its size and modification time, plus tsconfig.json (its paths) and the
+ * package files (a changed dependency changes the lock files). When any of those differ, or the
+ * bundle is missing, it is built again before it runs, so a fresh clone and an edited source
+ * need no extra step. The bundle and its manifest are written to temporary names and renamed,
+ * so two commands started at once never see half a file. esbuild is the one tsx depends on, already in node_modules.
  *
  * The bundle runs through node:vm with V8's code cache (.cli-build/bellwether.cjs.cache, written
  * after the first run of each bundle): V8 then skips compiling what it compiled before. V8
@@ -29,7 +29,13 @@ const MANIFEST = path.join(OUT_DIR, "manifest.json");
 const CODE_CACHE = `${BUNDLE}.cache`;
 const ENTRY = "scripts/bellwether.ts";
 /** Besides the sources: what says the installed packages changed, and this file itself. */
-const ALWAYS_WATCHED = ["package.json", "package-lock.json", "node_modules/.package-lock.json", "scripts/cli/launch.cjs"];
+const ALWAYS_WATCHED = [
+  "package.json",
+  "package-lock.json",
+  "node_modules/.package-lock.json",
+  "tsconfig.json",
+  "scripts/cli/launch.cjs",
+];
 
 function stamp(rel) {
   try {
