@@ -4,14 +4,24 @@
  * line (and the app) stamp its documents here before printing or storing them.
  */
 import { execFileSync } from "node:child_process";
-import { realpathSync } from "node:fs";
+import { existsSync, realpathSync } from "node:fs";
 import path from "node:path";
 import packageJson from "../package.json";
 import { engineEnv, type EngineEnv } from "./env";
 import type { EngineIdentity, Provenance } from "./stats/estimate";
 
-/** The repository root: the folder of package.json, one above lib/. */
-const ROOT = path.resolve(__dirname, "..");
+/**
+ * The repository root: the nearest folder holding package.json above this code, which is lib/
+ * when run from source and .cli-build/ when run from the command line's bundle.
+ */
+const ROOT = nearestPackageRoot(__dirname);
+
+function nearestPackageRoot(from: string): string {
+  for (let dir = from; ; dir = path.dirname(dir)) {
+    if (existsSync(path.join(dir, "package.json"))) return dir;
+    if (path.dirname(dir) === dir) return path.resolve(from, "..");
+  }
+}
 
 function git(root: string, args: string[]): string | null {
   try {

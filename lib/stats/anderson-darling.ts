@@ -20,7 +20,7 @@ const A_STAR_CAP = 13;
  * ("case 3"), using the modified statistic A* and the D'Agostino-Stephens p-value.
  *
  * zᵢ = (x(i) − x̄)/s with s the n − 1 SD; A² = −n − (1/n)·Σ(2i − 1)[ln Φ(zᵢ) + ln Φ(−z_{n+1−i})].
- * The log-CDF is used directly so that far-tail values do not round to ln 0.
+ * Each value's smaller tail is computed directly (ln Φ in the far tail never rounds to ln 0).
  *
  * @see Anderson TW, Darling DA. A test of goodness of fit. J Am Stat Assoc 1954;49:765–769.
  * @see D'Agostino RB, Stephens MA. Goodness-of-Fit Techniques. Marcel Dekker, 1986, Table 4.9.
@@ -62,11 +62,19 @@ function andersonDarlingOnSorted(sorted: ArrayLike<number>): AndersonDarlingResu
     throw new StatsInputError("Anderson-Darling needs spread in the values: all values are equal");
   }
 
+  // Σᵢ (2i + 1)[ln Φ(zᵢ) + ln Φ(−z_{n−1−i})] (0-based) regrouped by value: z_j enters as
+  // ln Φ(z_j) with weight 2j + 1 and as ln Φ(−z_j) with weight 2(n − j) − 1. One Φ per value:
+  // q = Φ(−|z|), the smaller tail, in full relative precision; the other is 1 − q, taken
+  // through log1p. Where q underflows, @stdlib's log-CDF, which does not.
   let sum = 0;
-  for (let i = 0; i < n; i++) {
-    const zLow = (sorted[i] - mean) / sd;
-    const zHigh = (sorted[n - 1 - i] - mean) / sd;
-    sum += (2 * i + 1) * (normal.logcdf(zLow, 0, 1) + normal.logcdf(-zHigh, 0, 1));
+  for (let j = 0; j < n; j++) {
+    const z = (sorted[j] - mean) / sd;
+    const q = normal.cdf(-Math.abs(z), 0, 1);
+    const small = q > 1e-300 ? Math.log(q) : normal.logcdf(-Math.abs(z), 0, 1);
+    const large = Math.log1p(-q);
+    const logLow = z < 0 ? small : large;
+    const logHigh = z < 0 ? large : small;
+    sum += (2 * j + 1) * logLow + (2 * (n - j) - 1) * logHigh;
   }
   const a2 = -n - sum / n;
   const a2Star = a2 * (1 + 0.75 / n + 2.25 / (n * n));

@@ -8,6 +8,7 @@ import { boxCoxFitFromTable, boxCoxLogLikFromTable, boxCoxOfLog, logTableOfSorte
 import { chooseScaleFromTable, type ScaleChoice } from "./box-cox-lrt";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
+import { nonparametricLimitsCensored, type CensoredBound } from "./nonparametric-censored";
 import { dixonReedOutliers } from "./outliers-dixon";
 import { hornProposals, hornScreenSorted } from "./outliers-horn";
 import { tukeyOutliers } from "./outliers-tukey";
@@ -25,6 +26,18 @@ import { shapiroWilk } from "./shapiro-wilk";
 import { assertFiniteSample, StatsInputError } from "./validate";
 
 export type OutlierOption = "none" | "dixon" | "tukey" | "horn";
+
+/**
+ * A donor result known only to lie beyond a limit: "<0.5" (below a limit of quantitation) is
+ * `{ value: 0.5, side: "below" }`, ">1000" is `{ value: 1000, side: "above" }`.
+ */
+export interface CensoredValue {
+  value: number;
+  side: "below" | "above";
+}
+
+/** One donor result as the estimate takes it: a measured number or a censored value. */
+export type DonorValue = number | CensoredValue;
 export type TransformOption = "auto" | Transform;
 /** "propose": the screen only proposes; "apply": its proposals are left out of the limits. */
 export type ScreeningMode = "propose" | "apply";
@@ -121,11 +134,31 @@ export interface NormalitySection {
   andersonDarling: { a2: number; p: number } | null;
 }
 
+/**
+ * The nonparametric limits and, where a rank fell on a censored value, which numbers are
+ * bounds: "<" means the true value lies below the number given, ">" above it. All null when no
+ * value is censored.
+ */
+export interface NonparametricSection extends LimitsWithCi {
+  lowerCensored: CensoredBound | null;
+  upperCensored: CensoredBound | null;
+  lowerCiCensored: [CensoredBound | null, CensoredBound | null] | null;
+  upperCiCensored: [CensoredBound | null, CensoredBound | null] | null;
+}
+
+/** How many of the values used were censored, and their share of n. */
+export interface CensoredSection {
+  below: number;
+  above: number;
+  /** (below + above)/n. */
+  fraction: number;
+}
+
 export interface ReferenceIntervalEstimate {
-  /** Values used after exclusions. */
+  /** Values used after exclusions, censored values included. */
   n: number;
   excluded: Exclusion[];
-  nonparametric: LimitsWithCi;
+  nonparametric: NonparametricSection;
   parametric: ParametricSection;
   robust: LimitsWithCi;
   normality: NormalitySection;
@@ -135,18 +168,69 @@ export interface ReferenceIntervalEstimate {
   proposed: Exclusion[];
   screening: ScreeningSection;
   provenance: Provenance;
+  /** Censored values among those used: they count in n and in the nonparametric ranks only. */
+  censored: CensoredSection;
 }
 
 const EMPTY: LimitsWithCi = { lower: null, upper: null, lowerCi: null, upperCi: null };
 
+/** A plain array of a typed array's values: Array.from goes through the iterator, far slower. */
+function plainArray(x: Float64Array): number[] {
+  const out = new Array<number>(x.length);
+  for (let i = 0; i < x.length; i++) out[i] = x[i];
+  return out;
+}
+
 function scaleOf(sorted: readonly number[], logs: Float64Array | null, t: Transform, lambda: number | null): number[] {
   if (t === "none") return sorted as number[];
-  if (t === "ln") return Array.from(logs!);
+  if (t === "ln") return plainArray(logs!);
   const l = lambda as number;
-  if (l === 0) return Array.from(logs!);
+  if (l === 0) return plainArray(logs!);
   const y = new Array<number>(sorted.length);
   for (let i = 0; i < y.length; i++) y[i] = boxCoxOfLog(logs![i], l);
   return y;
+}
+
+interface SplitSample {
+  /** The measured values: `values` itself when nothing is censored. */
+  measured: readonly number[];
+  /** Position in the values given of each measured value; null when nothing is censored. */
+  positions: number[] | null;
+  below: number[];
+  above: number[];
+}
+
+/** Separates measured from censored values, checking each. */
+function splitCensored(values: readonly DonorValue[]): SplitSample {
+  if (!Array.isArray(values)) throw new StatsInputError("values must be an array of numbers");
+  let plain = true;
+  for (let i = 0; i < values.length && plain; i++) if (typeof values[i] !== "number") plain = false;
+  if (plain) {
+    assertFiniteSample(values as readonly number[]);
+    return { measured: values as readonly number[], positions: null, below: [], above: [] };
+  }
+  const measured: number[] = [];
+  const positions: number[] = [];
+  const below: number[] = [];
+  const above: number[] = [];
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (typeof v === "number") {
+      if (!Number.isFinite(v)) throw new StatsInputError(`values[${i}] is not a finite number (${String(v)})`);
+      measured.push(v);
+      positions.push(i);
+    } else if (
+      v !== null && typeof v === "object" && typeof v.value === "number" && Number.isFinite(v.value) &&
+      (v.side === "below" || v.side === "above")
+    ) {
+      (v.side === "below" ? below : above).push(v.value);
+    } else {
+      throw new StatsInputError(
+        `values[${i}] must be a finite number or a censored value { value, side: "below" | "above" } (got ${JSON.stringify(v)})`,
+      );
+    }
+  }
+  return { measured, positions, below, above };
 }
 
 function tryOr<T>(f: () => T, fallback: T): T {
@@ -160,6 +244,14 @@ function tryOr<T>(f: () => T, fallback: T): T {
 
 /**
  * Estimates the 95% reference interval of one partition by every applicable method.
+ *
+ * Each value is a measured number or a censored value `{ value, side }` ("<0.5" is
+ * `{ value: 0.5, side: "below" }`). Censored values count in n and in the nonparametric ranks
+ * (below, or above, every measured value; see nonparametric-censored.ts), where a limit or CI end
+ * that falls on one is a bound flagged "<" or ">" in `nonparametric.lowerCensored` and the like.
+ * Everything else (the outlier screen, the scale, the parametric and robust limits, normality)
+ * uses the measured values only, with a warning giving how many were left out; `censored`
+ * counts them. Above 5% censored the advice is nonparametric. Plain number arrays work as before.
  *
  * 1. Outliers: the chosen screen (Horn by default; Tukey on the raw scale when a value is not
  *    positive) proposes values, listed in `proposed` with the rule's statistic. With screening
@@ -181,15 +273,17 @@ function tryOr<T>(f: () => T, fallback: T): T {
  * @see lib/stats/* for each method and its source; CLSI EP28-A3c (2010).
  * Complexity O(n log n): one sort; the λ search is O(n) per evaluation; bootstraps only below
  *   120 values.
- * Throws StatsInputError on an empty sample, a non-finite value, an unknown option, or ln /
- *   Box-Cox requested for data with a non-positive value.
+ * Throws StatsInputError on an empty sample, a non-finite value, a malformed censored value, an
+ *   unknown option, or ln / Box-Cox requested for data with a non-positive measured value.
  * @example estimateReferenceInterval(values, { outliers: "horn", screening: "propose", transform: "auto", seed: 1 })
+ * @example estimateReferenceInterval([{ value: 0.5, side: "below" }, 0.8, 1.1, …]).nonparametric.lowerCensored // "<" or null
  */
 export function estimateReferenceInterval(
-  values: readonly number[],
+  given: readonly DonorValue[],
   options: EstimateOptions = {},
 ): ReferenceIntervalEstimate {
-  assertFiniteSample(values);
+  const { measured: values, positions, below, above } = splitCensored(given);
+  const nCensored = below.length + above.length;
   const outlierOption = options.outliers ?? "horn";
   const screeningMode = options.screening ?? "propose";
   const transformOption = options.transform ?? "auto";
@@ -216,6 +310,7 @@ export function estimateReferenceInterval(
   let proposals: OutlierProposal[] = [];
   let rule: OutlierMethod | null = null;
   if (outlierOption === "horn" && allPositive && values.length >= 4) {
+    // The screens see the measured values only: a censored value has no number to test.
     const all = Float64Array.from(values).sort();
     const h = hornScreenSorted(all);
     rule = "horn";
@@ -226,7 +321,9 @@ export function estimateReferenceInterval(
     if (h.converged && (apply || keptAll)) hornLambda = h.lambda;
     if (!h.converged) warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
   } else {
-    if (outlierOption === "dixon") {
+    if (values.length === 0) {
+      // Every value is censored: there is nothing to screen.
+    } else if (outlierOption === "dixon") {
       rule = "dixon";
       proposals = dixonReedOutliers(values).outliers;
     } else if (outlierOption === "tukey") {
@@ -247,7 +344,7 @@ export function estimateReferenceInterval(
   const proposed: Exclusion[] = proposals.map((p) => ({
     value: p.value,
     reason: p.method,
-    index: p.index,
+    index: positions === null ? p.index : positions[p.index],
     explanation: p.reason,
     evidence: p.evidence,
   }));
@@ -259,7 +356,7 @@ export function estimateReferenceInterval(
         "they are included in these limits until an exclusion is confirmed.",
     );
   }
-  const sorted = Array.from(sortedKept);
+  const sorted = plainArray(sortedKept);
   const n = sorted.length;
   const distinct = n >= 2 && sorted[n - 1] > sorted[0];
 
@@ -306,13 +403,42 @@ export function estimateReferenceInterval(
   if (transform !== "box-cox") lambda = null;
   const y = n > 0 && (transform === "none" || logs) ? scaleOf(sorted, logs, transform, lambda) : null;
 
-  // 3. Nonparametric, on the raw values
-  const np = nonparametricLimits(sorted, { seed, replicates: BOOTSTRAP_REPLICATES });
-  if (np.ciMethod === "bootstrap") {
-    warnings.push(`Nonparametric 90% CIs are percentile-bootstrap intervals (fewer than 119 values; seed ${seed}).`);
+  // 3. Nonparametric, on the raw values; censored values take the lowest or highest ranks
+  const nAll = n + nCensored;
+  let nonparametric: NonparametricSection;
+  let npBootstrap = false;
+  if (nCensored === 0) {
+    const np = nonparametricLimits(sorted, { seed, replicates: BOOTSTRAP_REPLICATES });
+    npBootstrap = np.ciMethod === "bootstrap";
+    if (npBootstrap) {
+      warnings.push(`Nonparametric 90% CIs are percentile-bootstrap intervals (fewer than 119 values; seed ${seed}).`);
+    }
+    nonparametric = {
+      lower: np.lower, upper: np.upper, lowerCi: np.lowerCi, upperCi: np.upperCi,
+      lowerCensored: null, upperCensored: null, lowerCiCensored: null, upperCiCensored: null,
+    };
+  } else {
+    nonparametric = nonparametricLimitsCensored(below, sorted, above);
+    if (nAll >= 39 && nAll < 119) {
+      warnings.push(`Nonparametric 90% CIs are not given: with censored values they need at least 119 values (have ${nAll}).`);
+    }
+    for (const [name, flag, value] of [
+      ["lower", nonparametric.lowerCensored, nonparametric.lower],
+      ["upper", nonparametric.upperCensored, nonparametric.upper],
+    ] as const) {
+      if (flag !== null && value !== null) {
+        warnings.push(`The nonparametric ${name} limit falls on a censored value: it is only known to be ${flag} ${fmt(value)}.`);
+      }
+    }
   }
-  if (n < 39) warnings.push(`Nonparametric limits need at least 39 values (have ${n}).`);
-  const nonparametric: LimitsWithCi = { lower: np.lower, upper: np.upper, lowerCi: np.lowerCi, upperCi: np.upperCi };
+  if (nAll < 39) warnings.push(`Nonparametric limits need at least 39 values (have ${nAll}).`);
+  if (nCensored > 0) {
+    warnings.push(
+      `${nCensored} censored value${nCensored === 1 ? "" : "s"} (${below.length} below a limit, ${above.length} above) ` +
+        `${nCensored === 1 ? "is" : "are"} counted in the nonparametric ranks but left out of the parametric and robust limits, ` +
+        "the outlier screen and the normality tests.",
+    );
+  }
 
   // 4. Parametric and robust, on the chosen scale
   let parametric: ParametricSection = { transform, lambda, mean: null, sd: null, ...EMPTY, scaleChoice };
@@ -356,14 +482,15 @@ export function estimateReferenceInterval(
 
   // 6. Advice
   const advice = adviseMethod({
-    n,
+    n: nAll,
+    censoredFraction: nCensored / nAll,
     nonparametric,
     parametric: parametric.mean === null ? null : parametric,
     robust: robust.lower === null && robust.upper === null ? null : robust,
     normalityP: normality.shapiroWilk?.p ?? normality.andersonDarling?.p ?? null,
   });
   return {
-    n,
+    n: nAll,
     excluded,
     nonparametric,
     parametric,
@@ -372,7 +499,7 @@ export function estimateReferenceInterval(
     recommended: advice.recommended,
     warnings: [...warnings, ...advice.warnings],
     proposed,
-    screening: { outliers: outlierOption, rule, mode: screeningMode, applied: apply && rule !== null, valuesGiven: values.length },
+    screening: { outliers: outlierOption, rule, mode: screeningMode, applied: apply && rule !== null, valuesGiven: given.length },
     provenance: {
       options: { outliers: outlierOption, screening: screeningMode, transform: transformOption, seed },
       bootstrap: {
@@ -381,12 +508,17 @@ export function estimateReferenceInterval(
         replicates: BOOTSTRAP_REPLICATES,
         level: 0.9,
         usedFor: [
-          ...(np.ciMethod === "bootstrap" ? (["nonparametric"] as const) : []),
+          ...(npBootstrap ? (["nonparametric"] as const) : []),
           ...(robust.lowerCi !== null || robust.upperCi !== null ? (["robust"] as const) : []),
         ],
       },
       robust: { method: "Horn-Pesce-Copeland 1998, biweight", madNormal: MAD_NORMAL, cLocation: C_LOCATION, cScale: C_SCALE },
       engine: null,
     },
+    censored: { below: below.length, above: above.length, fraction: nCensored / nAll },
   };
+}
+
+function fmt(v: number): string {
+  return Number(v.toPrecision(5)).toString();
 }

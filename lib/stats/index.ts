@@ -14,6 +14,7 @@ export * from "./box-cox";
 export * from "./box-cox-lrt";
 export * from "./rank-ci";
 export * from "./nonparametric";
+export * from "./nonparametric-censored";
 export * from "./parametric";
 export * from "./robust-horn";
 export * from "./outliers";

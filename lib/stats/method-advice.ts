@@ -20,6 +20,8 @@ export interface AdviceInput {
   robust: LimitsWithCi | null;
   /** p-value of the normality test on the parametric scale (Shapiro-Wilk, else Anderson-Darling). */
   normalityP: number | null;
+  /** Share of the n values that are censored ("<LoQ", "> limit"); 0 when absent. */
+  censoredFraction?: number;
 }
 
 export interface Advice {
@@ -35,6 +37,11 @@ export const MIN_ESTABLISH_N = 20;
 export const CI_WIDTH_RATIO = 0.2;
 /** Normality is taken as not rejected at this p-value and above. */
 export const NORMALITY_ALPHA = 0.05;
+/**
+ * Above this share of censored values the parametric and robust fits, which leave them out,
+ * describe a truncated sample; only the nonparametric ranks use them.
+ */
+export const CENSORED_FRACTION_LIMIT = 0.05;
 
 const hasLimits = (l: LimitsWithCi | null): l is LimitsWithCi =>
   l !== null && l.lower !== null && l.upper !== null;
@@ -42,13 +49,15 @@ const hasLimits = (l: LimitsWithCi | null): l is LimitsWithCi =>
 /**
  * Method advice: n ≥ 120 → nonparametric (parametric shown beside it); 20 ≤ n < 120 →
  * parametric after transformation when normality is not rejected (p ≥ 0.05) on that scale,
- * else robust; n < 20 → no establishment, an adoption check instead. Adds a warning for each
- * limit of the recommended method whose 90% CI is wider than 0.2 × the interval width.
+ * else robust; n < 20 → no establishment, an adoption check instead. With more than 5%
+ * censored values (n ≥ 20) → nonparametric whatever n, or nothing when those limits cannot be
+ * estimated, with a warning saying why. Adds a warning for each limit of the recommended
+ * method whose 90% CI is wider than 0.2 × the interval width.
  * @see CLSI EP28-A3c (2010); Horn PS, Pesce AJ, Copeland BE. Clin Chem 1998;44:622–631;
  *   Braun JP et al. Vet Clin Pathol 2013 and the ASVCP guideline (Friedrichs KR et al. Vet
  *   Clin Pathol 2012;41:441–453) for the 0.2 ratio.
  * Complexity O(1).
- * Throws StatsInputError when n is not a non-negative integer.
+ * Throws StatsInputError when n is not a non-negative integer or censoredFraction lies outside [0, 1].
  * @example adviseMethod({ n: 150, nonparametric, parametric, robust: null, normalityP: 0.3 }).recommended
  *   // "nonparametric"
  */
@@ -65,7 +74,26 @@ export function adviseMethod(input: AdviceInput): Advice {
     );
     return { recommended: null, warnings };
   }
-  if (n >= ESTABLISH_N && hasLimits(input.nonparametric)) {
+  const censored = input.censoredFraction ?? 0;
+  if (!(censored >= 0 && censored <= 1)) {
+    throw new StatsInputError(`censoredFraction must lie in [0, 1] (got ${String(input.censoredFraction)})`);
+  }
+  if (censored > CENSORED_FRACTION_LIMIT) {
+    const share = `${fmt(100 * censored)}% of the values are censored (more than ${100 * CENSORED_FRACTION_LIMIT}%)`;
+    if (hasLimits(input.nonparametric)) {
+      recommended = "nonparametric";
+      warnings.push(
+        `${share}: the nonparametric method is advised, because it ranks the censored values and the ` +
+          "parametric and robust fits leave them out, which biases them.",
+      );
+    } else {
+      warnings.push(
+        `${share}: only the nonparametric method uses them, and it cannot estimate the limits from ${n} values ` +
+          "(at least 39); no method is advised.",
+      );
+      return { recommended: null, warnings };
+    }
+  } else if (n >= ESTABLISH_N && hasLimits(input.nonparametric)) {
     recommended = "nonparametric";
   } else {
     if (n < ESTABLISH_N) {

@@ -7,7 +7,6 @@
  * `screening.applied` says so); `--screening propose` only lists them, as the app does.
  */
 import { readFile } from "node:fs/promises";
-import Papa from "papaparse";
 import {
   estimateReferenceInterval,
   OUTLIER_OPTIONS,
@@ -22,6 +21,9 @@ import {
 import { engineIdentity, stampEngine } from "../../lib/engine";
 import { StatsInputError } from "../../lib/stats/validate";
 import { CliError } from "./cli-error";
+import { readValues } from "./read-values";
+
+export { readValues };
 
 interface Parsed {
   file: string;
@@ -81,46 +83,6 @@ function parseArgs(args: string[]): Parsed {
   }
   if (file === null) throw new CliError("estimate needs a CSV FILE with a value column");
   return { file, outliers, screening, transform, seed };
-}
-
-/** Values of the `value` column, with 1-based file line numbers in the error messages. */
-export function readValues(text: string, file: string): number[] {
-  const body = text.replace(/^\uFEFF/, "");
-  if (body.trim() === "") throw new CliError(`${file} is empty`);
-  const parsed = Papa.parse<Record<string, string>>(body, {
-    header: true,
-    skipEmptyLines: "greedy",
-    transformHeader: (h) => h.trim(),
-  });
-  const fields = parsed.meta.fields ?? [];
-  const column = fields.find((f) => f.toLowerCase() === "value");
-  if (column === undefined) {
-    throw new CliError(`${file} has no "value" column (columns: ${fields.join(", ") || "none"})`);
-  }
-  // Ragged rows are tolerated (a short row shows up below as a missing value), and so is a
-  // one-column file (no delimiter to detect); quoting errors are not.
-  const broken = parsed.errors.find(
-    (e) => e.type !== "FieldMismatch" && e.code !== "UndetectableDelimiter",
-  );
-  if (broken) {
-    throw new CliError(`${file}: CSV error near data row ${(broken.row ?? 0) + 1}: ${broken.message}`);
-  }
-  const values: number[] = [];
-  // File line numbers: the header is line 1; blank lines the parser skipped are counted back.
-  const lines = body.split(/\r\n|\n|\r/);
-  let line = 1;
-  for (const row of parsed.data) {
-    line++;
-    while (line <= lines.length && lines[line - 1].trim() === "") line++;
-    const raw = (row[column] ?? "").trim();
-    const v = raw === "" ? Number.NaN : Number(raw);
-    if (!Number.isFinite(v)) {
-      throw new CliError(`${file} line ${line}: value "${raw}" is not a number`);
-    }
-    values.push(v);
-  }
-  if (values.length === 0) throw new CliError(`${file} has a header but no values`);
-  return values;
 }
 
 export async function run(args: string[]): Promise<number> {

@@ -56,6 +56,26 @@ describe.concurrent("bellwether estimate (as a process)", () => {
     expect(doc.recommended).toBe("parametric");
   }, 60_000);
 
+  it("gives the same document and errors through the built command line that npm runs", async () => {
+    // package.json's "bellwether" script: scripts/cli/launch.cjs builds .cli-build/ when a
+    // source changed and runs the bundle. Its output must be the TypeScript entry's, byte for byte.
+    const launch = async (args: string[]) => {
+      try {
+        const { stdout, stderr } = await exec(process.execPath, ["scripts/cli/launch.cjs", "estimate", ...args], { cwd: ROOT });
+        return { code: 0, stdout, stderr };
+      } catch (e) {
+        const err = e as { code: number; stdout: string; stderr: string };
+        return { code: err.code, stdout: err.stdout, stderr: err.stderr };
+      }
+    };
+    const args = [FIX("estimate-lognormal-80.csv"), "--seed", "3"];
+    const [built, source] = await Promise.all([launch(args), cli(args)]);
+    expect(built).toEqual(source);
+    expect(built.code).toBe(0);
+    const bad = await launch([FIX("estimate-missing-value.csv")]);
+    expect(bad).toEqual({ code: 2, stdout: "", stderr: expect.stringMatching(/^bellwether: .*line 3: value "" is not a number\n$/) });
+  }, 120_000);
+
   it("exits 2 with one line on stderr for bad input", async () => {
     const r = await cli([FIX("estimate-missing-value.csv")]);
     expect(r.code).toBe(2);

@@ -80,16 +80,19 @@ describe("the automatic scale (R: scripts/fixtures/scale-choice.R)", () => {
 
 describe("estimateReferenceInterval", () => {
   it("has exactly the document shape of the estimate contract", () => {
-    // DESIGN.md: the contract's fields (n … warnings) stay; proposed, screening and provenance
-    // were added after them.
+    // DESIGN.md: the contract's fields (n … warnings) stay; proposed, screening, provenance and
+    // censored were added after them.
     const d = estimateReferenceInterval(set("lognormal-80").values);
     expect(Object.keys(d)).toEqual([
       "n", "excluded", "nonparametric", "parametric", "robust", "normality", "recommended", "warnings",
-      "proposed", "screening", "provenance",
+      "proposed", "screening", "provenance", "censored",
     ]);
+    expect(d.censored).toEqual({ below: 0, above: 0, fraction: 0 });
     expect(Object.keys(d.screening)).toEqual(["outliers", "rule", "mode", "applied", "valuesGiven"]);
     expect(Object.keys(d.provenance)).toEqual(["options", "bootstrap", "robust", "engine"]);
-    expect(Object.keys(d.nonparametric)).toEqual(["lower", "upper", "lowerCi", "upperCi"]);
+    expect(Object.keys(d.nonparametric)).toEqual([
+      "lower", "upper", "lowerCi", "upperCi", "lowerCensored", "upperCensored", "lowerCiCensored", "upperCiCensored",
+    ]);
     expect(Object.keys(d.parametric)).toEqual([
       "transform", "lambda", "mean", "sd", "lower", "upper", "lowerCi", "upperCi", "scaleChoice",
     ]);

@@ -38,3 +38,31 @@ describe("adviseMethod (DESIGN.md method advice)", () => {
     expect(() => adviseMethod({ n: -1, nonparametric: none, parametric: null, robust: null, normalityP: null })).toThrow(StatsInputError);
   });
 });
+
+describe("adviseMethod with censored values", () => {
+  // DESIGN.md/the estimate's rule: above 5% censored, only the nonparametric ranks use them.
+  const limits = { lower: 1, upper: 2, lowerCi: [0.9, 1.1] as [number, number], upperCi: [1.9, 2.1] as [number, number] };
+  const none = { lower: null, upper: null, lowerCi: null, upperCi: null };
+
+  it("advises no method when more than 5% are censored and the nonparametric limits are not estimable", () => {
+    const a = adviseMethod({ n: 30, nonparametric: none, parametric: limits, robust: limits, normalityP: 0.5, censoredFraction: 0.1 });
+    expect(a).toEqual({
+      recommended: null,
+      warnings: [
+        "10% of the values are censored (more than 5%): only the nonparametric method uses them, and it cannot " +
+          "estimate the limits from 30 values (at least 39); no method is advised.",
+      ],
+    });
+  });
+
+  it("keeps the usual advice at exactly 5%", () => {
+    const a = adviseMethod({ n: 60, nonparametric: limits, parametric: limits, robust: limits, normalityP: 0.5, censoredFraction: 0.05 });
+    expect(a.recommended).toBe("parametric");
+  });
+
+  it("refuses a fraction outside [0, 1]", () => {
+    expect(() => adviseMethod({ n: 60, nonparametric: limits, parametric: null, robust: null, normalityP: null, censoredFraction: 1.5 })).toThrow(
+      new StatsInputError("censoredFraction must lie in [0, 1] (got 1.5)"),
+    );
+  });
+});
