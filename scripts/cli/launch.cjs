@@ -8,7 +8,7 @@
  * package files (a changed dependency changes the lock files). When any of those differ, or the
  * bundle is missing, it is built again before it runs, so a fresh clone and an edited source
  * need no extra step. The bundle and its manifest are written to temporary names and renamed,
- * so two commands started at once never see half a file. esbuild is the one tsx depends on, already in node_modules.
+ * so two commands started at once never see half a file. esbuild is a pinned devDependency (the same version tsx uses).
  *
  * The bundle runs through node:vm with V8's code cache (.cli-build/bellwether.cjs.cache, written
  * after the first run of each bundle): V8 then skips compiling what it compiled before. V8
