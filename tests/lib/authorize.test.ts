@@ -29,6 +29,8 @@ const DESIGN_TABLE: Record<Permission, Role[]> = {
   "users:manage": ["admin"],
   "audit:read": ["admin", "director"],
   "studies:write": ["director", "scientist"],
+  // The catalogue is kept by the people who create studies ("create studies, … draft").
+  "analytes:write": ["director", "scientist"],
   "donors:read": ["director", "scientist"],
   "versions:sign": ["director"],
   "intervals:read": ["admin", "director", "scientist", "clinician"],
