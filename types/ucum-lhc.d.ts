@@ -20,6 +20,5 @@ declare module "@lhncbc/ucum-lhc" {
       options?: { molecularWeight?: number; charge?: number },
     ): UcumConversion;
   }
-  const ucum: { UcumLhcUtils: { getInstance(): UcumLhcUtils } };
-  export default ucum;
+  export const UcumLhcUtils: { getInstance(): UcumLhcUtils };
 }

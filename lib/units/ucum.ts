@@ -1,4 +1,4 @@
-import ucum from "@lhncbc/ucum-lhc";
+import { UcumLhcUtils } from "@lhncbc/ucum-lhc";
 import { AppError } from "@/lib/api/errors";
 
 /**
@@ -10,9 +10,9 @@ import { AppError } from "@/lib/api/errors";
  */
 
 // One instance per process: the library loads its unit tables when first asked.
-let utils: ReturnType<typeof ucum.UcumLhcUtils.getInstance> | undefined;
+let utils: ReturnType<typeof UcumLhcUtils.getInstance> | undefined;
 function ucumUtils() {
-  utils ??= ucum.UcumLhcUtils.getInstance();
+  utils ??= UcumLhcUtils.getInstance();
   return utils;
 }
 

@@ -74,8 +74,9 @@ describe("authorize", () => {
 describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
     expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/audit", "/account"]);
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/audit", "/account"]);
-    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/account"]);
+    // UX.md: Analytes for the scientist and the director only.
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/analytes", "/audit", "/account"]);
+    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/analytes", "/account"]);
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });
 });
