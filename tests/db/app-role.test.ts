@@ -59,11 +59,11 @@ describe("the app connects as a role with only the privileges it needs", () => {
       code: "42501",
       message: `permission denied to create temporary tables in database "${testDatabaseName()}"`,
     });
-    expect(await pgError(appUrl(), "DROP TABLE sign_in_failures")).toEqual({ code: "42501", message: "must be owner of table sign_in_failures" });
+    expect(await pgError(appUrl(), "DROP TABLE sign_in_account_failures")).toEqual({ code: "42501", message: "must be owner of table sign_in_account_failures" });
   });
 
   it("may not empty tables, move sequences or read the migration bookkeeping", async () => {
-    expect(await pgError(appUrl(), "TRUNCATE sign_in_failures")).toEqual({ code: "42501", message: "permission denied for table sign_in_failures" });
+    expect(await pgError(appUrl(), "TRUNCATE sign_in_account_failures")).toEqual({ code: "42501", message: "permission denied for table sign_in_account_failures" });
     expect(await pgError(appUrl(), "SELECT setval('audit_events_id_seq', 1)")).toEqual({
       code: "42501",
       message: "permission denied for sequence audit_events_id_seq",
@@ -80,7 +80,7 @@ describe("the app connects as a role with only the privileges it needs", () => {
       if (table === "audit_events" || table === "signatures") expect(granted, table).toBe("SELECT, INSERT");
       else expect(granted, table).toBe("SELECT, INSERT, UPDATE, DELETE");
     }
-    expect(Object.keys(privileges)).toEqual(expect.arrayContaining(["audit_events", "laboratory", "sign_in_failures", "users"]));
+    expect(Object.keys(privileges)).toEqual(expect.arrayContaining(["analytes", "audit_events", "laboratory", "sign_in_account_failures", "sign_in_address_failures", "users"]));
   });
 
   it("still does the app's normal writes, in transactions, with audit events", async () => {
