@@ -26,10 +26,14 @@ export function AnalyteCatalogue({ rows, actions }: { rows: AnalyteRow[]; action
       column.accessor("name", { header: "Name" }),
       column.accessor("unit", { header: "Unit", cell: (c) => <span className="font-mono">{c.getValue()}</span> }),
       column.accessor("decimals", { header: "Decimals" }),
-      column.accessor("loinc", { header: "LOINC", cell: (c) => c.getValue() || "—" }),
+      column.accessor("loinc", { header: "LOINC", cell: (c) => <span className="whitespace-nowrap">{c.getValue() || "—"}</span> }),
       column.accessor("specimen", { header: "Specimen" }),
-      column.accessor("criticalLimits", { header: "Critical limits", enableSorting: false }),
-      column.accessor("reviewMonths", { header: "Review", cell: (c) => `every ${c.getValue()} months` }),
+      column.accessor("criticalLimits", {
+        header: "Critical limits",
+        enableSorting: false,
+        cell: (c) => <span className="whitespace-nowrap">{c.getValue()}</span>,
+      }),
+      column.accessor("reviewMonths", { header: "Review", cell: (c) => <span className="whitespace-nowrap">every {c.getValue()} months</span> }),
       ...(actions
         ? [
             column.display({
