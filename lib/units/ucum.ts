@@ -23,6 +23,7 @@ function plainWords(message: string): string {
   return message
     .replace(/->\s*/g, '"')
     .replace(/\s*<-/g, '"')
+    .replace(/"\s+\./g, '".')
     .replace(/\s{2,}/g, " ")
     .trim();
 }
@@ -43,7 +44,13 @@ export function checkUcumUnit(unit: string): UnitCheck {
   if (result.status === "valid" && result.ucumCode) {
     return { valid: true, unit: result.ucumCode, name: result.unit?.name ?? "" };
   }
-  const detail = result.msg.map(plainWords).filter((m) => m !== "").join(" ");
+  // The library opens with "x is not a valid UCUM code." (or "unit."), which our own first
+  // sentence already says; what follows it (the part at fault, a suggestion) is kept.
+  const restated = new RegExp(`^${text.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")} is not a valid (UCUM code|unit)\\.\\s*`);
+  const detail = result.msg
+    .map((m) => plainWords(m.replace(/\s*\n\s*/g, " ").replace(restated, "")))
+    .filter((m) => m !== "")
+    .join(" ");
   const suggestion = detail.includes("No alternatives were found") ? "" : ` ${detail}`;
   return { valid: false, message: `"${text}" is not a UCUM unit.${suggestion} ${EXAMPLES}`.replace(/\s{2,}/g, " ") };
 }

@@ -83,8 +83,22 @@ describe("checkUcumUnit", () => {
     expect(check.valid).toBe(false);
     const message = check.valid ? "" : check.message;
     expect(message).toContain('"mg//dL" is not a UCUM unit.');
-    expect(message).toContain("A unit code is missing between");
+    expect(message).toContain('A unit code is missing between "/" and "/" in "//".');
     expect(message).not.toMatch(/->|<-/);
+  });
+
+  it("passes on the library's suggestion, in plain words", () => {
+    // UCUM writes the international unit as the arbitrary unit [IU] (UCUM specification; from memory,
+    // and the library says the same).
+    expect(checkUcumUnit("IU/L")).toEqual({
+      valid: false,
+      message:
+        '"IU/L" is not a UCUM unit. IU is not a valid unit expression, but [IU] is. Did you mean [IU] (international unit - arbitrary)? UCUM codes are case-sensitive, for example mg/dL, mmol/L, umol/L, U/L, 10*9/L or m[IU]/L.',
+    });
+  });
+
+  it("refuses upper-case MMOL/L: UCUM is case-sensitive", () => {
+    expect(checkUcumUnit("MMOL/L")).toMatchObject({ valid: false, message: expect.stringMatching(/^"MMOL\/L" is not a UCUM unit\./) });
   });
 
   it("asks for a unit when none is given", () => {
