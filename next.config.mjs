@@ -16,7 +16,7 @@ const nextConfig = {
   experimental: { authInterrupts: true },
   // The app build checks the app's own code; scripts and tests are checked by `npm run typecheck`.
   typescript: { tsconfigPath: "tsconfig.build.json" },
-  serverExternalPackages: ["pg", "bcryptjs", "exceljs"],
+  serverExternalPackages: ["pg", "bcryptjs", "exceljs", "@lhncbc/ucum-lhc"],
   async headers() {
     return [
       { source: "/:path*", headers: common },

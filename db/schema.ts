@@ -3,6 +3,7 @@ import {
   bigserial,
   boolean,
   check,
+  doublePrecision,
   index,
   integer,
   jsonb,
@@ -113,6 +114,49 @@ export const auditEvents = pgTable(
   ],
 );
 
+/**
+ * The analyte catalogue: what the laboratory measures, in which UCUM unit, shown with how many
+ * decimals. Our own `code` is the key the API and the LIS use. The unit and decimals lock once an
+ * interval version beyond draft exists (lib/analytes/unit-lock.ts holds that rule).
+ */
+export const analytes = pgTable(
+  "analytes",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    code: text("code").notNull(),
+    name: text("name").notNull(),
+    loinc: text("loinc"),
+    /** A UCUM code, case-sensitive as UCUM requires (mg/dL, mmol/L, 10*9/L). */
+    unit: text("unit").notNull(),
+    decimals: integer("decimals").notNull(),
+    specimen: text("specimen").notNull(),
+    /** Default critical (panic) limits in the analyte's unit; an interval version carries its own. */
+    criticalLow: doublePrecision("critical_low"),
+    criticalHigh: doublePrecision("critical_high"),
+    reviewMonths: integer("review_months").notNull().default(24),
+    /** g/mol, for mass ↔ substance conversion, with the source it was taken from (METHODS.md §11). */
+    molarMass: doublePrecision("molar_mass"),
+    molarMassSource: text("molar_mass_source"),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    updatedBy: uuid("updated_by").references(() => users.id, { onDelete: "restrict" }),
+  },
+  (t) => [
+    uniqueIndex("analytes_code_unique").on(t.code),
+    check("analytes_code_format", sql`${t.code} ~ '^[A-Z0-9]{1,16}$'`),
+    check("analytes_loinc_format", sql`${t.loinc} IS NULL OR ${t.loinc} ~ '^[0-9]{1,7}-[0-9]$'`),
+    check("analytes_decimals_range", sql`${t.decimals} BETWEEN 0 AND 6`),
+    check("analytes_review_months_range", sql`${t.reviewMonths} BETWEEN 1 AND 120`),
+    check(
+      "analytes_critical_order",
+      sql`${t.criticalLow} IS NULL OR ${t.criticalHigh} IS NULL OR ${t.criticalLow} < ${t.criticalHigh}`,
+    ),
+    check("analytes_molar_mass_positive", sql`${t.molarMass} IS NULL OR ${t.molarMass} > 0`),
+    check("analytes_molar_mass_sourced", sql`(${t.molarMass} IS NULL) = (${t.molarMassSource} IS NULL)`),
+  ],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({
   auditEvents: many(auditEvents),
 }));
@@ -125,3 +169,4 @@ export type Role = (typeof ROLES)[number];
 export type User = typeof users.$inferSelect;
 export type NewUser = typeof users.$inferInsert;
 export type AuditEvent = typeof auditEvents.$inferSelect;
+export type Analyte = typeof analytes.$inferSelect;

@@ -2,7 +2,9 @@
  * The demo: an invented regional hospital laboratory with one user per role. Every name here is
  * made up for Bellwether's demo; the passwords are listed in the README.
  */
+import { createAnalyteBody } from "@/lib/analytes/input";
 import type { Database } from "./client";
+import { createAnalyte } from "./queries/analytes";
 import { recordAuditEvent, SYSTEM_ACTOR } from "./queries/audit";
 import { countUsers, createUser } from "./queries/users";
 import { DEMO_LABORATORY, DEMO_USERS } from "./demo-accounts";
@@ -10,12 +12,47 @@ import { laboratory } from "./schema";
 
 export { DEMO_LABORATORY, DEMO_USERS };
 
+/**
+ * The demo laboratory's catalogue: common chemistry in the SI units a European laboratory reports,
+ * with their LOINC codes (METHODS.md §11 and the LOINC table) and molar masses where mass ↔
+ * substance conversion is common. The critical limits are this invented laboratory's own policy.
+ */
+export const DEMO_ANALYTES: Record<string, unknown>[] = [
+  {
+    code: "GLU", name: "Glucose", unit: "mmol/L", decimals: 1, loinc: "14749-6", specimen: "plasma",
+    criticalLow: 2.5, criticalHigh: 25, molarMass: 180.156,
+    molarMassSource: "C6H12O6; Young DS, Ann Intern Med 1987;106:114-129 (factor 0.05551 mmol/L per mg/dL)",
+  },
+  { code: "NA", name: "Sodium", unit: "mmol/L", decimals: 0, loinc: "2951-2", specimen: "serum", criticalLow: 120, criticalHigh: 160 },
+  { code: "K", name: "Potassium", unit: "mmol/L", decimals: 1, loinc: "2823-3", specimen: "serum", criticalLow: 2.8, criticalHigh: 6.2 },
+  {
+    code: "CREA", name: "Creatinine", unit: "umol/L", decimals: 0, loinc: "14682-9", specimen: "serum", molarMass: 113.12,
+    molarMassSource: "C4H7N3O; Young DS, Ann Intern Med 1987;106:114-129 (factor 88.4 umol/L per mg/dL)",
+  },
+  {
+    code: "UREA", name: "Urea", unit: "mmol/L", decimals: 1, loinc: "22664-7", specimen: "serum", molarMass: 60.056,
+    molarMassSource: "CH4N2O; Young DS, Ann Intern Med 1987;106:114-129 (factor 0.1665 mmol/L per mg/dL)",
+  },
+  {
+    code: "CA", name: "Calcium", unit: "mmol/L", decimals: 2, loinc: "2000-8", specimen: "serum", criticalLow: 1.6, criticalHigh: 3.5,
+    molarMass: 40.078, molarMassSource: "Ca; Young DS, Ann Intern Med 1987;106:114-129 (factor 0.2495 mmol/L per mg/dL)",
+  },
+  { code: "ALT", name: "Alanine aminotransferase", unit: "U/L", decimals: 0, loinc: "1742-6", specimen: "serum" },
+  { code: "ALP", name: "Alkaline phosphatase", unit: "U/L", decimals: 0, loinc: "6768-6", specimen: "serum" },
+  { code: "TSH", name: "Thyrotropin (TSH)", unit: "m[IU]/L", decimals: 2, loinc: "3016-3", specimen: "serum", reviewMonths: 36 },
+  { code: "HGB", name: "Haemoglobin", unit: "g/L", decimals: 0, loinc: "718-7", specimen: "whole blood", criticalLow: 70, criticalHigh: 200 },
+];
+
 /** Seeds the demo into an empty database; does nothing when any user exists. Returns whether it seeded. */
 export async function seedDemo(database: Database): Promise<boolean> {
   if ((await countUsers(database)) > 0) return false;
   await database.insert(laboratory).values({ id: 1, name: DEMO_LABORATORY }).onConflictDoNothing();
   for (const u of DEMO_USERS) {
     await createUser(database, { input: u, actor: SYSTEM_ACTOR, allowPublishedPassword: true });
+  }
+  for (const a of DEMO_ANALYTES) {
+    // Through the API's own schema, so the demo's codes and units pass the checks a person's would.
+    await createAnalyte(database, { input: createAnalyteBody.parse(a), actor: SYSTEM_ACTOR });
   }
   await recordAuditEvent(database, {
     actor: SYSTEM_ACTOR,

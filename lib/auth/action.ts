@@ -47,6 +47,12 @@ export async function runAction<S extends z.ZodType>(
     const outcome = await work(caller, parsed.data, { sessionId: session?.sessionId ?? null });
     return typeof outcome === "string" ? { status: "ok", message: outcome } : { status: "ok", ...outcome };
   } catch (err) {
+    if (err instanceof AppError && Array.isArray(err.details?.errors)) {
+      // A rule the database layer checks (a duplicate code, limits in the wrong order) names its
+      // fields, so the form can mark them as it marks the schema's.
+      const errors = err.details.errors as { path: string; message: string }[];
+      return { status: "error", message: err.message, fieldErrors: Object.fromEntries(errors.map((e) => [e.path, e.message])) };
+    }
     if (err instanceof AppError || err instanceof StatsInputError) return { status: "error", message: err.message };
     console.error("Server action failed", err);
     return { status: "error", message: "Something went wrong on our side; nothing was changed." };

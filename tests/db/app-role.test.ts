@@ -80,7 +80,7 @@ describe("the app connects as a role with only the privileges it needs", () => {
       if (table === "audit_events" || table === "signatures") expect(granted, table).toBe("SELECT, INSERT");
       else expect(granted, table).toBe("SELECT, INSERT, UPDATE, DELETE");
     }
-    expect(Object.keys(privileges)).toEqual(expect.arrayContaining(["audit_events", "laboratory", "sign_in_account_failures", "users"]));
+    expect(Object.keys(privileges)).toEqual(expect.arrayContaining(["analytes", "audit_events", "laboratory", "sign_in_account_failures", "sign_in_address_failures", "users"]));
   });
 
   it("still does the app's normal writes, in transactions, with audit events", async () => {

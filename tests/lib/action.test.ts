@@ -60,3 +60,15 @@ describe("server actions while a password set by an administrator awaits replace
     expect(await runAction(null, z.object({}), form({}), async () => "done")).toEqual({ status: "error", message: "Sign in to continue." });
   });
 });
+
+describe("server actions whose work refuses named fields", () => {
+  it("mark those fields, as the schema's own errors are marked", async () => {
+    session.current = { caller: admin(false), sessionId: "session-3" };
+    const { AppError } = await import("@/lib/api/errors");
+    const message = "An analyte with the code GLU already exists; edit it, or choose another code.";
+    const state = await runAction("users:manage", z.object({}), form({}), async () => {
+      throw new AppError("conflict", message, { errors: [{ path: "code", message }] });
+    });
+    expect(state).toEqual({ status: "error", message, fieldErrors: { code: message } });
+  });
+});

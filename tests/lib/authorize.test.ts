@@ -29,6 +29,8 @@ const DESIGN_TABLE: Record<Permission, Role[]> = {
   "users:manage": ["admin"],
   "audit:read": ["admin", "director"],
   "studies:write": ["director", "scientist"],
+  // The catalogue is kept by the people who create studies ("create studies, … draft").
+  "analytes:write": ["director", "scientist"],
   "donors:read": ["director", "scientist"],
   "versions:sign": ["director"],
   "intervals:read": ["admin", "director", "scientist", "clinician"],
@@ -72,8 +74,9 @@ describe("authorize", () => {
 describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
     expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/audit", "/account"]);
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/audit", "/account"]);
-    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/account"]);
+    // UX.md: Analytes for the scientist and the director only.
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/analytes", "/audit", "/account"]);
+    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/analytes", "/account"]);
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });
 });
