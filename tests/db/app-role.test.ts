@@ -1,5 +1,4 @@
 import { eq } from "drizzle-orm";
-import { Client } from "pg";
 import { afterAll, describe, expect, it } from "vitest";
 import { migrateDatabase } from "@/db/migrate";
 import { SYSTEM_ACTOR } from "@/db/queries/audit";
@@ -7,7 +6,7 @@ import { changeUserRole, createUser } from "@/db/queries/users";
 import { admitSignInAttempt, settleSuccessfulSignIn } from "@/db/queries/sign-in-throttle";
 import { auditEvents, users } from "@/db/schema";
 import { testDatabase, uniqueEmail } from "../support/database";
-import { appUrl, createScratchDatabase, pgError, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
+import { appUrl, createScratchDatabase, pgError, queryRows, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
 
 const { database, pool } = testDatabase();
 const scratch: ScratchDatabase[] = [];
@@ -18,19 +17,9 @@ afterAll(async () => {
 
 const testDatabaseName = () => new URL(appUrl()).pathname.slice(1);
 
-async function query<T>(url: string, sql: string): Promise<T[]> {
-  const client = new Client({ connectionString: url });
-  await client.connect();
-  try {
-    return (await client.query(sql)).rows as T[];
-  } finally {
-    await client.end();
-  }
-}
-
 /** The privileges the app's role holds on each table of the schema public, e.g. "SELECT, INSERT". */
 async function tablePrivileges(url: string): Promise<Record<string, string>> {
-  const rows = await query<{ table_name: string; privileges: string }>(
+  const rows = await queryRows<{ table_name: string; privileges: string }>(
     url,
     `SELECT c.relname AS table_name,
             array_to_string(ARRAY(SELECT p FROM unnest(ARRAY['SELECT', 'INSERT', 'UPDATE', 'DELETE', 'TRUNCATE', 'REFERENCES', 'TRIGGER']) AS p
@@ -43,7 +32,7 @@ async function tablePrivileges(url: string): Promise<Record<string, string>> {
 
 describe("the app connects as a role with only the privileges it needs", () => {
   it("is neither a superuser nor the owner of anything", async () => {
-    const [me] = await query<{ role: string; rolsuper: boolean; owned: number }>(
+    const [me] = await queryRows<{ role: string; rolsuper: boolean; owned: number }>(
       appUrl(),
       `SELECT current_user AS role, rolsuper,
               (SELECT count(*)::int FROM pg_class WHERE pg_has_role(current_user, relowner, 'USAGE')) AS owned
@@ -107,7 +96,7 @@ describe.skipIf(!SUPERUSER_URL)("db/grants.sql is applied after every migration 
     scratch.push(s);
     await migrateDatabase(s.ownerUrl);
     // As a later migration would, as the owner: one ordinary table, and the signatures table.
-    await query(s.ownerUrl, "CREATE TABLE later_domain_table (id int); CREATE TABLE IF NOT EXISTS signatures (id int)");
+    await queryRows(s.ownerUrl, "CREATE TABLE later_domain_table (id int); CREATE TABLE IF NOT EXISTS signatures (id int)");
     expect((await tablePrivileges(s.appUrl)).later_domain_table).toBe("");
     await migrateDatabase(s.ownerUrl);
     const privileges = await tablePrivileges(s.appUrl);

@@ -1,7 +1,7 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import path from "node:path";
 import { drizzle } from "drizzle-orm/node-postgres";
-import { Client, Pool } from "pg";
+import { Pool } from "pg";
 import { afterAll, afterEach, describe, expect, it } from "vitest";
 import { migrateDatabase } from "@/db/migrate";
 import { SYSTEM_ACTOR } from "@/db/queries/audit";
@@ -9,7 +9,7 @@ import { changePassword, findUserByEmail } from "@/db/queries/users";
 import * as schema from "@/db/schema";
 import { seedDemo } from "@/db/seed";
 import { verifyPassword } from "@/lib/auth/password";
-import { createScratchDatabase, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
+import { createScratchDatabase, queryRows, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
 import { runStartCommand, SPARE_PORT, stopLeftoverStartCommands, TEST_DATA_DIR } from "../support/start-command";
 
 // The demo accounts and passwords as the README publishes them.
@@ -35,16 +35,6 @@ async function scratchDatabase(tag: string): Promise<ScratchDatabase> {
   const s = await createScratchDatabase(tag);
   scratch.push(s);
   return s;
-}
-
-async function rows<T>(url: string, sql: string): Promise<T[]> {
-  const client = new Client({ connectionString: url });
-  await client.connect();
-  try {
-    return (await client.query(sql)).rows as T[];
-  } finally {
-    await client.end();
-  }
 }
 
 function start(vars: Record<string, string>) {
@@ -79,15 +69,15 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     const db = await scratchDatabase("plain");
     const output = await startAndStop({ DATABASE_URL: db.appUrl, BELLWETHER_MIGRATION_URL: db.ownerUrl });
     expect(output).toContain("bellwether: database ready (not a demo: nothing seeded)");
-    expect(await rows(db.appUrl, "SELECT count(*)::int AS n FROM users")).toEqual([{ n: 0 }]);
-    expect(await rows(db.appUrl, "SELECT count(*)::int AS n FROM audit_events")).toEqual([{ n: 0 }]);
+    expect(await queryRows(db.appUrl, "SELECT count(*)::int AS n FROM users")).toEqual([{ n: 0 }]);
+    expect(await queryRows(db.appUrl, "SELECT count(*)::int AS n FROM audit_events")).toEqual([{ n: 0 }]);
   });
 
   it("seeds the demo with BELLWETHER_DEMO=1, with the passwords the README publishes", async () => {
     const db = await scratchDatabase("demo");
     const output = await startAndStop({ DATABASE_URL: db.appUrl, BELLWETHER_MIGRATION_URL: db.ownerUrl, BELLWETHER_DEMO: "1" });
     expect(output).toContain("bellwether: seeded the demo laboratory");
-    const users = await rows<{ email: string; password_hash: string }>(db.appUrl, "SELECT email, password_hash FROM users ORDER BY email");
+    const users = await queryRows<{ email: string; password_hash: string }>(db.appUrl, "SELECT email, password_hash FROM users ORDER BY email");
     expect(users.map((u) => u.email)).toEqual(PUBLISHED.map((p) => p.email).sort());
     for (const p of PUBLISHED) {
       expect(await verifyPassword(p.password, users.find((u) => u.email === p.email)!.password_hash), p.email).toBe(true);
@@ -136,10 +126,10 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     const output = await refusal({ DATABASE_URL: db.appUrl });
     expect(output).toContain("the database in DATABASE_URL has not been prepared for Bellwether");
     expect(output).toContain("set BELLWETHER_MIGRATION_URL to a connection string for the role that owns the database");
-    expect(await rows(db.superuserUrl, "SELECT nspname FROM pg_namespace WHERE nspname IN ('public', 'drizzle') ORDER BY 1")).toEqual([
+    expect(await queryRows(db.superuserUrl, "SELECT nspname FROM pg_namespace WHERE nspname IN ('public', 'drizzle') ORDER BY 1")).toEqual([
       { nspname: "public" },
     ]);
-    expect(await rows(db.superuserUrl, "SELECT count(*)::int AS n FROM pg_tables WHERE schemaname = 'public'")).toEqual([{ n: 0 }]);
+    expect(await queryRows(db.superuserUrl, "SELECT count(*)::int AS n FROM pg_tables WHERE schemaname = 'public'")).toEqual([{ n: 0 }]);
   });
 
   it("refuses to serve as the owner of the tables", async () => {

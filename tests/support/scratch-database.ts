@@ -71,3 +71,14 @@ export async function pgError(url: string, sql: string): Promise<{ code: string;
     await client.end();
   }
 }
+
+/** Runs one statement on its own connection and returns its rows. */
+export async function queryRows<T>(url: string, sql: string): Promise<T[]> {
+  const client = new Client({ connectionString: url });
+  await client.connect();
+  try {
+    return (await client.query(sql)).rows as T[];
+  } finally {
+    await client.end();
+  }
+}
