@@ -157,6 +157,105 @@ export const analytes = pgTable(
   ],
 );
 
+export const STUDY_STATUSES = ["open", "closed"] as const;
+export const studyStatusEnum = pgEnum("study_status", STUDY_STATUSES);
+
+/** One collection of healthy-donor results for one analyte, method and specimen. */
+export const studies = pgTable(
+  "studies",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    analyteId: uuid("analyte_id")
+      .notNull()
+      .references(() => analytes.id, { onDelete: "restrict" }),
+    title: text("title").notNull(),
+    method: text("method"),
+    specimen: text("specimen"),
+    /** The reference individuals and the exclusion criteria used when recruiting them. */
+    criteria: text("criteria"),
+    collectedFrom: text("collected_from"),
+    collectedTo: text("collected_to"),
+    status: studyStatusEnum("status").notNull().default("open"),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+  },
+  (t) => [index("studies_analyte_idx").on(t.analyteId), index("studies_created_idx").on(t.createdAt)],
+);
+
+export const UPLOAD_STATUSES = ["pending", "committed", "cancelled"] as const;
+export const uploadStatusEnum = pgEnum("upload_status", UPLOAD_STATUSES);
+
+/**
+ * One uploaded file of a study. While pending, `pendingRows` holds the validated donor rows (so
+ * that any instance can commit them); commit or cancel empties it.
+ */
+export const uploads = pgTable(
+  "uploads",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "restrict" }),
+    fileName: text("file_name").notNull(),
+    sha256: text("sha256").notNull(),
+    sizeBytes: integer("size_bytes").notNull(),
+    format: text("format").notNull(),
+    status: uploadStatusEnum("status").notNull().default("pending"),
+    rowsTotal: integer("rows_total").notNull(),
+    rowsValid: integer("rows_valid").notNull(),
+    rowsInvalid: integer("rows_invalid").notNull(),
+    /** The validation report without the rows: problems, mapping, headers. */
+    report: jsonb("report").$type<Record<string, unknown>>().notNull(),
+    pendingRows: jsonb("pending_rows").$type<unknown[]>(),
+    storedRows: integer("stored_rows"),
+    uploadedBy: uuid("uploaded_by").references(() => users.id, { onDelete: "restrict" }),
+    uploadedAt: timestamp("uploaded_at", { withTimezone: true }).notNull().defaultNow(),
+    decidedBy: uuid("decided_by").references(() => users.id, { onDelete: "restrict" }),
+    decidedAt: timestamp("decided_at", { withTimezone: true }),
+  },
+  (t) => [
+    index("uploads_study_idx").on(t.studyId, t.uploadedAt),
+    uniqueIndex("uploads_committed_sha_unique").on(t.studyId, t.sha256).where(sql`${t.status} = 'committed'`),
+    check("uploads_sha256_format", sql`${t.sha256} ~ '^[0-9a-f]{64}$'`),
+  ],
+);
+
+export const CENSORING_SIDES = ["below", "above"] as const;
+export const censoringSideEnum = pgEnum("censoring_side", CENSORING_SIDES);
+
+/** One stored healthy-donor result, from a committed upload. Values are in the analyte's unit. */
+export const donorResults = pgTable(
+  "donor_results",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "restrict" }),
+    uploadId: uuid("upload_id")
+      .notNull()
+      .references(() => uploads.id, { onDelete: "restrict" }),
+    /** Data row in the file, from 1. */
+    rowNumber: integer("row_number").notNull(),
+    donorCode: text("donor_code").notNull(),
+    sex: text("sex").notNull(),
+    ageYears: doublePrecision("age_years").notNull(),
+    ageDays: integer("age_days").notNull(),
+    birthDate: text("birth_date"),
+    collectedOn: text("collected_on"),
+    value: doublePrecision("value").notNull(),
+    censoringSide: censoringSideEnum("censoring_side"),
+    censoringInclusive: boolean("censoring_inclusive"),
+    originalValue: doublePrecision("original_value"),
+    originalUnit: text("original_unit"),
+  },
+  (t) => [
+    index("donor_results_study_idx").on(t.studyId, t.id),
+    index("donor_results_upload_idx").on(t.uploadId),
+    check("donor_results_sex", sql`${t.sex} IN ('F', 'M')`),
+    check("donor_results_censoring", sql`(${t.censoringSide} IS NULL) = (${t.censoringInclusive} IS NULL)`),
+  ],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({
   auditEvents: many(auditEvents),
 }));
@@ -170,3 +269,6 @@ export type User = typeof users.$inferSelect;
 export type NewUser = typeof users.$inferInsert;
 export type AuditEvent = typeof auditEvents.$inferSelect;
 export type Analyte = typeof analytes.$inferSelect;
+export type Study = typeof studies.$inferSelect;
+export type Upload = typeof uploads.$inferSelect;
+export type DonorResult = typeof donorResults.$inferSelect;

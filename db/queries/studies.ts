@@ -1,0 +1,103 @@
+import "server-only";
+import { desc, eq, sql } from "drizzle-orm";
+import { AppError } from "@/lib/api/errors";
+import type { NewStudyInput } from "@/lib/studies/input";
+import type { Database, Executor } from "../client";
+import { analytes, donorResults, studies, uploads, type Study } from "../schema";
+import { recordAuditEvent, type Actor } from "./audit";
+
+export type { Study };
+
+export interface StudySummary extends Study {
+  analyteCode: string;
+  uploadCount: number;
+  donorResultCount: number;
+}
+
+/** Creates a study for the analyte with the given code; 422 when no such analyte exists. */
+export async function createStudy(database: Database, { input, actor }: { input: NewStudyInput; actor: Actor }): Promise<Study> {
+  return database.transaction(async (tx) => {
+    const [analyte] = await tx.select().from(analytes).where(eq(analytes.code, input.analyte)).limit(1);
+    if (!analyte) {
+      const message = `There is no analyte with the code ${input.analyte}.`;
+      throw new AppError("invalid", message, { errors: [{ path: "analyte", message }] });
+    }
+    const [created] = await tx
+      .insert(studies)
+      .values({
+        analyteId: analyte.id,
+        title: input.title,
+        method: input.method ?? null,
+        specimen: input.specimen ?? analyte.specimen,
+        criteria: input.criteria ?? null,
+        collectedFrom: input.collectedFrom ?? null,
+        collectedTo: input.collectedTo ?? null,
+        createdBy: actor.id,
+      })
+      .returning();
+    await recordAuditEvent(tx, {
+      actor,
+      action: "study.created",
+      entityType: "study",
+      entityId: created.id,
+      summary: `Opened the study "${created.title}" for ${analyte.code}`,
+      details: { analyte: analyte.code, title: created.title, method: created.method, specimen: created.specimen },
+    });
+    return created;
+  });
+}
+
+const uploadCount = sql<number>`(SELECT count(*)::int FROM ${uploads} WHERE ${uploads.studyId} = ${studies.id})`;
+const donorResultCount = sql<number>`(SELECT count(*)::int FROM ${donorResults} WHERE ${donorResults.studyId} = ${studies.id})`;
+
+/** Every study, newest first, with its analyte's code and counts. */
+export async function listStudies(executor: Executor): Promise<StudySummary[]> {
+  const rows = await executor
+    .select({ study: studies, analyteCode: analytes.code, uploadCount, donorResultCount })
+    .from(studies)
+    .innerJoin(analytes, eq(analytes.id, studies.analyteId))
+    .orderBy(desc(studies.createdAt), desc(studies.id));
+  return rows.map((r) => ({ ...r.study, analyteCode: r.analyteCode, uploadCount: r.uploadCount, donorResultCount: r.donorResultCount }));
+}
+
+export async function findStudy(executor: Executor, { id }: { id: string }): Promise<Study | undefined> {
+  const [row] = await executor.select().from(studies).where(eq(studies.id, id)).limit(1);
+  return row;
+}
+
+/** The study with its analyte, its uploads (without their rows) and the number of donor results. */
+export async function studyDetail(executor: Executor, { id }: { id: string }) {
+  const [row] = await executor
+    .select({ study: studies, analyte: analytes, donorResultCount })
+    .from(studies)
+    .innerJoin(analytes, eq(analytes.id, studies.analyteId))
+    .where(eq(studies.id, id))
+    .limit(1);
+  if (!row) throw new AppError("not_found", `There is no study with the id ${id}.`);
+  const uploadRows = await executor
+    .select({
+      id: uploads.id,
+      fileName: uploads.fileName,
+      sha256: uploads.sha256,
+      sizeBytes: uploads.sizeBytes,
+      format: uploads.format,
+      status: uploads.status,
+      rowsTotal: uploads.rowsTotal,
+      rowsValid: uploads.rowsValid,
+      rowsInvalid: uploads.rowsInvalid,
+      storedRows: uploads.storedRows,
+      uploadedBy: uploads.uploadedBy,
+      uploadedAt: uploads.uploadedAt,
+      decidedAt: uploads.decidedAt,
+    })
+    .from(uploads)
+    .where(eq(uploads.studyId, id))
+    .orderBy(desc(uploads.uploadedAt), desc(uploads.id));
+  return {
+    ...row.study,
+    analyteCode: row.analyte.code,
+    analyte: row.analyte,
+    uploads: uploadRows.map((u) => ({ ...u, rows: { total: u.rowsTotal, valid: u.rowsValid, invalid: u.rowsInvalid } })),
+    donorResultCount: row.donorResultCount,
+  };
+}

@@ -1,0 +1,22 @@
+import { z } from "zod";
+
+const optionalText = (max: number) => z.string().trim().min(1).max(max).optional();
+
+/** A new study: the analyte by its code, a title, and what the laboratory records about recruitment. */
+export const createStudyBody = z
+  .object({
+    analyte: z.string().trim().min(1, "Give the analyte's code.").max(16),
+    title: z.string().trim().min(1, "Give the study a title.").max(200),
+    method: optionalText(200),
+    specimen: optionalText(100),
+    criteria: optionalText(10_000),
+    collectedFrom: z.iso.date().optional(),
+    collectedTo: z.iso.date().optional(),
+  })
+  .strict();
+
+export type NewStudyInput = z.output<typeof createStudyBody>;
+
+export const studyIdParams = z.object({ id: z.uuid("The study id must be a UUID.") });
+
+export const uploadIdParams = studyIdParams.extend({ uploadId: z.uuid("The upload id must be a UUID.") });
