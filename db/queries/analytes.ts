@@ -45,6 +45,11 @@ export async function findAnalyteByCode(executor: Executor, { code }: { code: st
   return row;
 }
 
+export async function findAnalyteById(executor: Executor, { id }: { id: string }): Promise<Analyte | undefined> {
+  const [row] = await executor.select().from(analytes).where(eq(analytes.id, id)).limit(1);
+  return row;
+}
+
 export async function createAnalyte(
   database: Database,
   { input, actor }: { input: NewAnalyteInput; actor: Actor },

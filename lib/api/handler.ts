@@ -15,6 +15,11 @@ interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodT
   body?: B;
   /** Largest accepted request body in bytes (default 1 MiB). */
   maxBodyBytes?: number;
+  /**
+   * Reads the body as multipart/form-data of at most this many bytes (the whole request, files
+   * and fields) into `form`; another content type is answered 415, a larger body 413.
+   */
+  multipart?: { maxBytes: number };
 }
 
 interface RouteInput<P, Q, B> {
@@ -22,6 +27,8 @@ interface RouteInput<P, Q, B> {
   params: P;
   query: Q;
   body: B;
+  /** The parsed form, for routes with the `multipart` option; otherwise null. */
+  form: FormData | null;
   request: Request;
 }
 
@@ -46,6 +53,37 @@ async function readJson(request: Request, maxBytes: number): Promise<unknown> {
   }
 }
 
+/** Reads a multipart/form-data body, refusing another type (415) or more than `maxBytes` (413). */
+async function readMultipart(request: Request, maxBytes: number): Promise<FormData> {
+  const type = request.headers.get("content-type") ?? "";
+  if (!type.toLowerCase().startsWith("multipart/form-data")) {
+    throw new AppError("unsupported_media_type", "Send the request body as multipart/form-data.");
+  }
+  const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${maxBytes} bytes.`);
+  const declared = Number(request.headers.get("content-length"));
+  if (Number.isFinite(declared) && declared > maxBytes) throw tooLarge();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  if (request.body) {
+    const reader = request.body.getReader();
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) break;
+      total += value.byteLength;
+      if (total > maxBytes) {
+        await reader.cancel();
+        throw tooLarge();
+      }
+      chunks.push(value);
+    }
+  }
+  try {
+    return await new Response(Buffer.concat(chunks, total), { headers: { "content-type": type } }).formData();
+  } catch {
+    throw new AppError("bad_request", "The request body is not valid multipart/form-data.");
+  }
+}
+
 /**
  * The one wrapper for every route handler: resolves the caller, checks the permission, parses
  * params, query and body with zod, runs the handler, and answers every error as
@@ -66,7 +104,8 @@ export function apiRoute<
       const params = config.params ? config.params.parse(await context.params) : {};
       const query = config.query ? config.query.parse(Object.fromEntries(url.searchParams)) : {};
       const body = config.body ? config.body.parse(await readJson(request, config.maxBodyBytes ?? 1 << 20)) : undefined;
-      const result = await handler({ caller, params, query, body, request } as RouteInput<
+      const form = config.multipart ? await readMultipart(request, config.multipart.maxBytes) : null;
+      const result = await handler({ caller, params, query, body, form, request } as RouteInput<
         z.output<P>,
         z.output<Q>,
         z.output<B>

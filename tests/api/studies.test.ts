@@ -117,3 +117,218 @@ describe("GET /api/v1/studies and /api/v1/studies/{id}", () => {
     expect((await bad.json()).detail).toBe("id: The study id must be a UUID.");
   });
 });
+
+function upload(studyId: string, role: Role, file: string | Uint8Array<ArrayBuffer>, fields: Record<string, string> = {}, name = "donors.csv") {
+  const form = new FormData();
+  form.set("file", new Blob([file]), name);
+  for (const [k, v] of Object.entries(fields)) form.set(k, v);
+  return fetch(`${BASE_URL}/api/v1/studies/${studyId}/uploads`, { method: "POST", headers: { cookie: cookies[role] }, body: form });
+}
+
+async function openStudy(title: string): Promise<string> {
+  const res = await send("POST", "/api/v1/studies", "scientist", newStudy(title));
+  expect(res.status).toBe(201);
+  return (await res.json()).id;
+}
+
+const HEADER = "donor_code,sex,age_years,birth_date,collected_on,value,unit";
+/** Four rows: two valid in the analyte's unit, one in mg/dL (converted with glucose's molar mass), one bad value. */
+const GOOD_AND_BAD = [HEADER, "D1,F,34,,2026-01-05,5.1,", "D2,M,51,,2026-01-06,<2.0,mmol/L", "D3,F,29,,2026-01-07,90,mg/dL", "D4,M,40,,2026-01-08,abc,"].join("\n");
+
+describe("uploads: check, then commit or cancel", () => {
+  let studyId: string;
+  beforeAll(async () => {
+    studyId = await openStudy("Uploads");
+  });
+
+  for (const role of ["admin", "clinician"] as const) {
+    it(`refuses the ${role} an upload, a commit and a cancel with 403, changing nothing`, async () => {
+      const before = await counts();
+      const res = await upload(studyId, role, GOOD_AND_BAD);
+      expect(res.status).toBe(403);
+      expect((await res.json()).detail).toBe(`Your role (${role}) may not do this.`);
+      const someId = "00000000-0000-4000-8000-000000000000";
+      for (const action of ["commit", "cancel"]) {
+        const r = await send("POST", `/api/v1/studies/${studyId}/uploads/${someId}/${action}`, role);
+        expect(r.status).toBe(403);
+      }
+      expect(await counts()).toEqual(before);
+    });
+  }
+
+  it("checks a file and keeps it pending, storing no donor result; commit stores the valid rows once", async () => {
+    const before = await counts();
+    const res = await upload(studyId, "scientist", GOOD_AND_BAD);
+    expect(res.status).toBe(201);
+    const report = await res.json();
+    expect(report).toMatchObject({
+      status: "pending",
+      rows: { total: 4, valid: 3, invalid: 1 },
+      problems: [{ row: 4, column: "value", message: 'value "abc" is not a number' }],
+      fileName: "donors.csv",
+      sizeBytes: Buffer.byteLength(GOOD_AND_BAD),
+    });
+    expect(report.sha256).toMatch(/^[0-9a-f]{64}$/);
+    expect(await counts()).toEqual({ ...before, uploads: before.uploads + 1, audit_events: before.audit_events + 1 });
+
+    const committed = await send("POST", `/api/v1/studies/${studyId}/uploads/${report.id}/commit`, "director");
+    expect(committed.status).toBe(200);
+    expect(await committed.json()).toEqual({ status: "committed", stored: 3 });
+    expect(await counts()).toEqual({
+      ...before,
+      uploads: before.uploads + 1,
+      donor_results: before.donor_results + 3,
+      audit_events: before.audit_events + 2,
+    });
+    const rows = (
+      await pool.query(
+        "SELECT row_number, donor_code, sex, age_years, age_days, collected_on, value, censoring_side, censoring_inclusive, original_value, original_unit FROM donor_results WHERE upload_id = $1 ORDER BY row_number",
+        [report.id],
+      )
+    ).rows;
+    expect(rows.map((r) => [r.row_number, r.donor_code, r.sex, r.censoring_side, r.censoring_inclusive, r.original_unit])).toEqual([
+      [1, "D1", "F", null, null, null],
+      [2, "D2", "M", "below", false, null],
+      [3, "D3", "F", null, null, "mg/dL"],
+    ]);
+    expect(rows[2].value).toBeCloseTo(90 / 18.0156, 6);
+    expect(rows[2].original_value).toBe(90);
+
+    const again = await send("POST", `/api/v1/studies/${studyId}/uploads/${report.id}/commit`, "scientist");
+    expect(again.status).toBe(409);
+    expect((await again.json()).detail).toBe("The upload is committed, not pending.");
+    const cancelLate = await send("POST", `/api/v1/studies/${studyId}/uploads/${report.id}/cancel`, "scientist");
+    expect(cancelLate.status).toBe(409);
+
+    const beforeDuplicate = await counts();
+    const duplicate = await upload(studyId, "director", GOOD_AND_BAD, {}, "renamed.csv");
+    expect(duplicate.status).toBe(409);
+    expect((await duplicate.json()).detail).toBe(
+      "The same file (renamed.csv, by its SHA-256) is already committed in this study; it was not stored again.",
+    );
+    expect(await counts()).toEqual(beforeDuplicate);
+
+    const detail = await (await send("GET", `/api/v1/studies/${studyId}`, "scientist")).json();
+    expect(detail.donorResultCount).toBe(3);
+    expect(detail.uploads).toMatchObject([{ id: report.id, status: "committed", rows: { total: 4, valid: 3, invalid: 1 }, storedRows: 3 }]);
+  });
+
+  it("cancels a pending upload: its rows are discarded, the upload stays on record", async () => {
+    const res = await upload(studyId, "director", [HEADER, "C1,F,30,,,4.4,"].join("\n"));
+    expect(res.status).toBe(201);
+    const { id } = await res.json();
+    const before = await counts();
+    const cancelled = await send("POST", `/api/v1/studies/${studyId}/uploads/${id}/cancel`, "scientist");
+    expect(cancelled.status).toBe(200);
+    expect(await cancelled.json()).toEqual({ status: "cancelled" });
+    expect(await counts()).toEqual({ ...before, audit_events: before.audit_events + 1 });
+    const [row] = (await pool.query("SELECT status, pending_rows FROM uploads WHERE id = $1", [id])).rows;
+    expect(row).toEqual({ status: "cancelled", pending_rows: null });
+    const commit = await send("POST", `/api/v1/studies/${studyId}/uploads/${id}/commit`, "scientist");
+    expect(commit.status).toBe(409);
+    expect((await commit.json()).detail).toBe("The upload is cancelled, not pending.");
+  });
+
+  it("reads a mapping and decimal commas", async () => {
+    const csv = ["Code;Gender;Age;Result", "M1;F;33;5,2"].join("\n");
+    const res = await upload(studyId, "scientist", csv, {
+      mapping: JSON.stringify({ donor_code: "Code", sex: "Gender", age_years: "Age", value: "Result" }),
+      decimalComma: "true",
+    });
+    expect(res.status).toBe(201);
+    expect(await res.json()).toMatchObject({ status: "pending", rows: { total: 1, valid: 1, invalid: 0 }, problems: [] });
+  });
+
+  const refused: [string, () => Promise<Response>, number, string][] = [
+    ["an empty file", () => upload(studyId, "scientist", ""), 422, "the file is empty"],
+    ["a binary file", () => upload(studyId, "scientist", new Uint8Array([0, 1, 2, 3, 4])), 415, "the file is neither CSV text nor an Excel workbook (.xlsx)"],
+    ["a header without rows", () => upload(studyId, "scientist", HEADER), 422, "the file has a header row but no data rows"],
+    ["a mapping that is not JSON", () => upload(studyId, "scientist", GOOD_AND_BAD, { mapping: "{" }), 422, "mapping: The mapping is not valid JSON."],
+    ["a decimalComma that is not true or false", () => upload(studyId, "scientist", GOOD_AND_BAD, { decimalComma: "yes" }), 422, 'decimalComma: decimalComma is "true" or "false".'],
+    ["a JSON body", () => send("POST", `/api/v1/studies/${studyId}/uploads`, "scientist", {}), 415, "Send the request body as multipart/form-data."],
+    [
+      "a form without a file",
+      () => {
+        const form = new FormData();
+        form.set("decimalComma", "false");
+        return fetch(`${BASE_URL}/api/v1/studies/${studyId}/uploads`, { method: "POST", headers: { cookie: cookies.scientist }, body: form });
+      },
+      422,
+      "file: Attach the file (CSV or XLSX) in the field named file.",
+    ],
+    ["a file over 20 MB", () => upload(studyId, "scientist", new Uint8Array(21 * 1024 * 1024).fill(65)), 413, `The request body is larger than ${20 * 1024 * 1024 + 256 * 1024} bytes.`],
+  ];
+  for (const [what, request, status, message] of refused) {
+    it(`refuses ${what} with ${status}, storing no donor result and no upload`, async () => {
+      const before = await counts();
+      const res = await request();
+      expect(res.status).toBe(status);
+      expect(res.headers.get("content-type")).toBe("application/problem+json");
+      const detail = (await res.json()).detail;
+      expect(detail).toBe(message);
+      const after = await counts();
+      // Only the audit trail may grow (a refusal of a file is recorded there).
+      expect({ ...after, audit_events: 0 }).toEqual({ ...before, audit_events: 0 });
+      expect(after.audit_events).toBeGreaterThanOrEqual(before.audit_events);
+    });
+  }
+
+  it("refuses uploads to a closed study with 409", async () => {
+    const closedId = await openStudy("Closed");
+    await pool.query("UPDATE studies SET status = 'closed' WHERE id = $1", [closedId]);
+    const before = await counts();
+    const res = await upload(closedId, "scientist", GOOD_AND_BAD);
+    expect(res.status).toBe(409);
+    expect((await res.json()).detail).toBe("The study is closed: it takes no more uploads.");
+    expect(await counts()).toEqual(before);
+  });
+});
+
+describe("GET /api/v1/studies/{id}/donor-results", () => {
+  let studyId: string;
+  beforeAll(async () => {
+    studyId = await openStudy("Listing");
+    const rows = [HEADER, "A,F,20,,,5.0,", "B,M,30,,,4.0,", "C,F,40,,,6.0,", "D,M,50,,,5.5,"].join("\n");
+    const { id } = await (await upload(studyId, "scientist", rows)).json();
+    expect((await send("POST", `/api/v1/studies/${studyId}/uploads/${id}/commit`, "scientist")).status).toBe(200);
+  });
+
+  for (const role of ROLES) {
+    it(`${MAY_WORK[role] ? "lists" : "refuses"} donor results for the ${role}`, async () => {
+      const res = await send("GET", `/api/v1/studies/${studyId}/donor-results`, role);
+      if (MAY_WORK[role]) {
+        expect(res.status).toBe(200);
+        const body = await res.json();
+        expect(body).toMatchObject({ total: 4, page: 1, pageSize: 100 });
+        expect(body.items.map((i: { donorCode: string }) => i.donorCode)).toEqual(["A", "B", "C", "D"]);
+        expect(body.items[0]).toMatchObject({ donorCode: "A", sex: "F", ageYears: 20, value: 5, excluded: false, rowNumber: 1 });
+      } else {
+        expect(res.status).toBe(403);
+        expect((await res.json()).detail).toBe(`Your role (${role}) may not do this.`);
+      }
+    });
+  }
+
+  it("sorts, filters and pages", async () => {
+    const get = async (q: string) => (await send("GET", `/api/v1/studies/${studyId}/donor-results?${q}`, "director")).json();
+    expect((await get("sort=-value")).items.map((i: { donorCode: string }) => i.donorCode)).toEqual(["C", "D", "A", "B"]);
+    expect(await get("sex=M&pageSize=1&page=2&sort=ageYears")).toMatchObject({ total: 2, page: 2, pageSize: 1, items: [{ donorCode: "D" }] });
+    expect((await get("ageFrom=25&ageTo=45")).items.map((i: { donorCode: string }) => i.donorCode)).toEqual(["B", "C"]);
+    expect(await get("excluded=true")).toMatchObject({ total: 0, items: [] });
+    expect((await get("excluded=false")).total).toBe(4);
+  });
+
+  const bad: [string, string][] = [
+    ["pageSize=501", "pageSize: pageSize is a whole number from 1 to 500."],
+    ["sort=birthDate; DROP", "sort: sort is one of rowNumber, donorCode, sex, ageYears, ageDays, collectedOn, value, id, with - in front for descending."],
+    ["sex=X", "sex: sex is F or M."],
+    ["excluded=maybe", 'excluded: Use "true" or "false".'],
+  ];
+  for (const [q, message] of bad) {
+    it(`answers 422 for ${q}`, async () => {
+      const res = await send("GET", `/api/v1/studies/${studyId}/donor-results?${q}`, "scientist");
+      expect(res.status).toBe(422);
+      expect((await res.json()).detail).toBe(message);
+    });
+  }
+});

@@ -1,0 +1,52 @@
+import { z } from "zod";
+import { AppError } from "@/lib/api/errors";
+import { TEMPLATE_COLUMNS, type ColumnMapping } from "@/lib/uploads";
+
+/** The multipart request's size limit: the 20 MB file plus room for the other fields and the boundaries. */
+export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
+
+const mappingSchema = z.partialRecord(z.enum(TEMPLATE_COLUMNS), z.string().trim().min(1).max(200));
+
+function invalid(path: string, message: string): AppError {
+  return new AppError("invalid", `${path}: ${message}`, { errors: [{ path, message }] });
+}
+
+export interface UploadForm {
+  file: File;
+  mapping?: ColumnMapping;
+  decimalComma: boolean;
+  sheet?: string;
+}
+
+/** Reads the upload form's fields: `file`, and the optional `mapping` (JSON), `decimalComma` and `sheet`. */
+export function readUploadForm(form: FormData): UploadForm {
+  const file = form.get("file");
+  if (!(file instanceof File)) throw invalid("file", "Attach the file (CSV or XLSX) in the field named file.");
+
+  let mapping: ColumnMapping | undefined;
+  const mappingText = form.get("mapping");
+  if (typeof mappingText === "string" && mappingText.trim() !== "") {
+    let parsed: unknown;
+    try {
+      parsed = JSON.parse(mappingText);
+    } catch {
+      throw invalid("mapping", "The mapping is not valid JSON.");
+    }
+    const result = mappingSchema.safeParse(parsed);
+    if (!result.success) {
+      throw invalid("mapping", `The mapping must be a JSON object from template columns (${TEMPLATE_COLUMNS.join(", ")}) to the file's headers.`);
+    }
+    mapping = result.data;
+  }
+
+  const decimalCommaText = form.get("decimalComma");
+  let decimalComma = false;
+  if (decimalCommaText !== null && decimalCommaText !== "") {
+    if (decimalCommaText !== "true" && decimalCommaText !== "false") throw invalid("decimalComma", 'decimalComma is "true" or "false".');
+    decimalComma = decimalCommaText === "true";
+  }
+
+  const sheetText = form.get("sheet");
+  const sheet = typeof sheetText === "string" && sheetText.trim() !== "" ? sheetText : undefined;
+  return { file, mapping, decimalComma, sheet };
+}
