@@ -1,12 +1,12 @@
 import "server-only";
-import { and, eq } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import type { DonorRow, ValidationReport } from "@/lib/uploads";
 import type { Database, Executor } from "../client";
 import { donorResults, studies, uploads, type Study, type Upload } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
-/** Rows per multi-row INSERT when an upload is committed (15 parameters each, well under PostgreSQL's 65,535). */
+/** Rows per multi-row INSERT when an upload is committed. */
 export const COMMIT_BATCH_ROWS = 1_000;
 
 export interface UploadedFile {
@@ -104,23 +104,25 @@ async function lockPendingUpload(executor: Executor, { studyId, uploadId }: { st
   return upload;
 }
 
-function donorResultOf(studyId: string, uploadId: string, row: DonorRow): typeof donorResults.$inferInsert {
-  return {
-    studyId,
-    uploadId,
-    rowNumber: row.row,
-    donorCode: row.donorCode,
-    sex: row.sex,
-    ageYears: row.ageYears,
-    ageDays: row.ageDays,
-    birthDate: row.birthDate,
-    collectedOn: row.collectedOn,
-    value: row.value,
-    censoringSide: row.censoring?.side ?? null,
-    censoringInclusive: row.censoring?.inclusive ?? null,
-    originalValue: row.conversion?.value ?? null,
-    originalUnit: row.conversion?.fromUnit ?? null,
-  };
+/**
+ * Inserts donor rows in one multi-row statement: each column travels as one array parameter
+ * and `unnest` turns them back into rows (14 parameters whatever the batch size).
+ */
+async function insertDonorRows(executor: Executor, { studyId, uploadId, rows }: { studyId: string; uploadId: string; rows: DonorRow[] }) {
+  const column = <T>(pick: (row: DonorRow) => T) => sql.param(rows.map(pick));
+  await executor.execute(sql`
+    INSERT INTO ${donorResults} (study_id, upload_id, row_number, donor_code, sex, age_years, age_days, birth_date,
+      collected_on, value, censoring_side, censoring_inclusive, original_value, original_unit)
+    SELECT ${studyId}::uuid, ${uploadId}::uuid, r.row_number, r.donor_code, r.sex, r.age_years, r.age_days, r.birth_date,
+      r.collected_on, r.value, r.censoring_side::censoring_side, r.censoring_inclusive, r.original_value, r.original_unit
+    FROM unnest(
+      ${column((r) => r.row)}::int[], ${column((r) => r.donorCode)}::text[], ${column((r) => r.sex)}::text[],
+      ${column((r) => r.ageYears)}::float8[], ${column((r) => r.ageDays)}::int[], ${column((r) => r.birthDate)}::text[],
+      ${column((r) => r.collectedOn)}::text[], ${column((r) => r.value)}::float8[],
+      ${column((r) => r.censoring?.side ?? null)}::text[], ${column((r) => r.censoring?.inclusive ?? null)}::bool[],
+      ${column((r) => r.conversion?.value ?? null)}::float8[], ${column((r) => r.conversion?.fromUnit ?? null)}::text[]
+    ) AS r(row_number, donor_code, sex, age_years, age_days, birth_date, collected_on, value, censoring_side,
+      censoring_inclusive, original_value, original_unit)`);
 }
 
 /**
@@ -132,6 +134,27 @@ export async function commitUpload(
   database: Database,
   { studyId, uploadId, actor }: { studyId: string; uploadId: string; actor: Actor },
 ): Promise<{ status: "committed"; stored: number }> {
+  try {
+    return await commitPendingRows(database, { studyId, uploadId, actor });
+  } catch (err) {
+    // The same file committed at the same moment through another upload: the partial unique index decides.
+    if (isUniqueViolation(err)) throw new AppError("conflict", "The same file (by its SHA-256) is already committed in this study.");
+    throw err;
+  }
+}
+
+/** PostgreSQL's unique_violation, also when drizzle wraps the driver's error. */
+function isUniqueViolation(err: unknown): boolean {
+  for (let e: unknown = err; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
+    if ((e as { code?: unknown }).code === "23505") return true;
+  }
+  return false;
+}
+
+async function commitPendingRows(
+  database: Database,
+  { studyId, uploadId, actor }: { studyId: string; uploadId: string; actor: Actor },
+): Promise<{ status: "committed"; stored: number }> {
   return database.transaction(async (tx) => {
     const [study] = await tx.select().from(studies).where(eq(studies.id, studyId)).for("update");
     if (!study) throw new AppError("not_found", `There is no study with the id ${studyId}.`);
@@ -139,8 +162,7 @@ export async function commitUpload(
     await assertStudyTakesFile(tx, { study, file: { name: upload.fileName, sha256: upload.sha256, sizeBytes: upload.sizeBytes } });
     const rows = (upload.pendingRows ?? []) as DonorRow[];
     for (let start = 0; start < rows.length; start += COMMIT_BATCH_ROWS) {
-      const batch = rows.slice(start, start + COMMIT_BATCH_ROWS).map((row) => donorResultOf(studyId, uploadId, row));
-      await tx.insert(donorResults).values(batch);
+      await insertDonorRows(tx, { studyId, uploadId, rows: rows.slice(start, start + COMMIT_BATCH_ROWS) });
     }
     await tx
       .update(uploads)
