@@ -1,5 +1,6 @@
 import { relations, sql } from "drizzle-orm";
 import {
+  bigint,
   bigserial,
   boolean,
   check,
@@ -176,8 +177,15 @@ export const studies = pgTable(
     collectedFrom: text("collected_from"),
     collectedTo: text("collected_to"),
     status: studyStatusEnum("status").notNull().default("open"),
+    /**
+     * The partitions the scientist chose after assessing them: `{sex: boolean, ageBands:
+     * [[from, to), …] in years or null}`; null until chosen (one partition of everyone).
+     */
+    partitionPlan: jsonb("partition_plan").$type<{ sex: boolean; ageBands: [number, number][] | null }>(),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    closedAt: timestamp("closed_at", { withTimezone: true }),
+    closedBy: uuid("closed_by").references(() => users.id, { onDelete: "restrict" }),
   },
   (t) => [index("studies_analyte_idx").on(t.analyteId), index("studies_created_idx").on(t.createdAt)],
 );
@@ -256,6 +264,227 @@ export const donorResults = pgTable(
   ],
 );
 
+export const EXCLUSION_SOURCES = ["manual", "outlier"] as const;
+export const exclusionSourceEnum = pgEnum("exclusion_source", EXCLUSION_SOURCES);
+
+/**
+ * A donor result set aside, always with a reason and who did it: by hand ("manual") or by
+ * confirming an outlier proposal ("outlier", with the rule that proposed it). Undoing sets
+ * `undoneAt` instead of deleting, so the record of what was once excluded stays; at most one
+ * exclusion of a donor result is in effect at a time.
+ */
+export const exclusions = pgTable(
+  "exclusions",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "restrict" }),
+    donorResultId: bigint("donor_result_id", { mode: "number" })
+      .notNull()
+      .references(() => donorResults.id, { onDelete: "restrict" }),
+    source: exclusionSourceEnum("source").notNull(),
+    /** The screen that proposed it ("horn", "dixon", "tukey"), for source "outlier". */
+    rule: text("rule"),
+    reason: text("reason").notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    undoneBy: uuid("undone_by").references(() => users.id, { onDelete: "restrict" }),
+    undoneAt: timestamp("undone_at", { withTimezone: true }),
+  },
+  (t) => [
+    index("exclusions_study_idx").on(t.studyId, t.createdAt),
+    uniqueIndex("exclusions_active_unique").on(t.donorResultId).where(sql`${t.undoneAt} IS NULL`),
+    check("exclusions_reason_given", sql`length(btrim(${t.reason})) > 0`),
+    check("exclusions_rule_for_outlier", sql`(${t.source} = 'outlier') = (${t.rule} IS NOT NULL)`),
+    check("exclusions_undone_pair", sql`(${t.undoneAt} IS NULL) = (${t.undoneBy} IS NULL)`),
+  ],
+);
+
+export const OUTLIER_DECISIONS = ["exclude", "keep"] as const;
+export const outlierDecisionEnum = pgEnum("outlier_decision", OUTLIER_DECISIONS);
+
+/**
+ * The scientist's answer to one outlier proposal: "exclude" (which also creates an exclusion,
+ * linked here) or "keep", each with a reason and the screen's evidence as it stood. Undone like
+ * an exclusion; at most one decision per donor result is in effect.
+ */
+export const outlierDecisions = pgTable(
+  "outlier_decisions",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "restrict" }),
+    donorResultId: bigint("donor_result_id", { mode: "number" })
+      .notNull()
+      .references(() => donorResults.id, { onDelete: "restrict" }),
+    decision: outlierDecisionEnum("decision").notNull(),
+    rule: text("rule").notNull(),
+    reason: text("reason").notNull(),
+    /** The screen's statistic and explanation when the decision was taken. */
+    evidence: jsonb("evidence").$type<Record<string, unknown>>().notNull().default({}),
+    exclusionId: uuid("exclusion_id").references(() => exclusions.id, { onDelete: "restrict" }),
+    decidedBy: uuid("decided_by").references(() => users.id, { onDelete: "restrict" }),
+    decidedAt: timestamp("decided_at", { withTimezone: true }).notNull().defaultNow(),
+    undoneBy: uuid("undone_by").references(() => users.id, { onDelete: "restrict" }),
+    undoneAt: timestamp("undone_at", { withTimezone: true }),
+  },
+  (t) => [
+    index("outlier_decisions_study_idx").on(t.studyId, t.decidedAt),
+    uniqueIndex("outlier_decisions_active_unique").on(t.donorResultId).where(sql`${t.undoneAt} IS NULL`),
+    check("outlier_decisions_reason_given", sql`length(btrim(${t.reason})) > 0`),
+    check("outlier_decisions_exclusion_link", sql`(${t.decision} = 'exclude') = (${t.exclusionId} IS NOT NULL)`),
+    check("outlier_decisions_undone_pair", sql`(${t.undoneAt} IS NULL) = (${t.undoneBy} IS NULL)`),
+  ],
+);
+
+/**
+ * One run of the partition tests (Harris-Boyd and Lahti) over a study, kept so that the
+ * dossier shows what the scientist saw when choosing partitions.
+ */
+export const partitionAssessments = pgTable(
+  "partition_assessments",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "restrict" }),
+    /** The request: `{by: "sex"}` or `{by: "age", bands: [[0, 18], [18, 120]]}`. */
+    request: jsonb("request").$type<Record<string, unknown>>().notNull(),
+    result: jsonb("result").$type<Record<string, unknown>>().notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("partition_assessments_study_idx").on(t.studyId, t.createdAt)],
+);
+
+/**
+ * The output of the methods for one partition of one study: the estimate document exactly as
+ * the engine returned it, with what is needed to compute it again (the partition, the options
+ * and seed, the exclusions in effect and the committed uploads' SHA-256).
+ */
+export const estimates = pgTable(
+  "estimates",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    studyId: uuid("study_id")
+      .notNull()
+      .references(() => studies.id, { onDelete: "restrict" }),
+    /** F, M or null for both. */
+    sex: text("sex"),
+    /** Half-open age band in years, [ageFrom, ageTo); null for no bound. */
+    ageFrom: doublePrecision("age_from"),
+    ageTo: doublePrecision("age_to"),
+    /** The options as given: `{outliers, transform, seed}`. */
+    options: jsonb("options").$type<Record<string, unknown>>().notNull(),
+    seed: integer("seed").notNull(),
+    n: integer("n").notNull(),
+    document: jsonb("document").$type<Record<string, unknown>>().notNull(),
+    /** Ids of the exclusions in effect when the estimate was made. */
+    exclusionIds: jsonb("exclusion_ids").$type<string[]>().notNull(),
+    /** SHA-256 of every committed upload of the study at the time. */
+    uploadHashes: jsonb("upload_hashes").$type<string[]>().notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("estimates_study_idx").on(t.studyId, t.createdAt),
+    check("estimates_sex", sql`${t.sex} IS NULL OR ${t.sex} IN ('F', 'M')`),
+    check("estimates_age_order", sql`${t.ageFrom} IS NULL OR ${t.ageTo} IS NULL OR ${t.ageFrom} < ${t.ageTo}`),
+  ],
+);
+
+export const VERSION_STATES = ["draft", "awaiting_signoff", "in_force", "superseded", "withdrawn"] as const;
+export const versionStateEnum = pgEnum("version_state", VERSION_STATES);
+
+/**
+ * The unit of sign-off: numbered per analyte, one or more partitions, its own critical limits.
+ * Only a draft is editable. At most one version of an analyte is in force (a unique index, so
+ * that two signings at the same moment cannot both succeed).
+ */
+export const intervalVersions = pgTable(
+  "interval_versions",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    analyteId: uuid("analyte_id")
+      .notNull()
+      .references(() => analytes.id, { onDelete: "restrict" }),
+    number: integer("number").notNull(),
+    state: versionStateEnum("state").notNull().default("draft"),
+    studyId: uuid("study_id").references(() => studies.id, { onDelete: "restrict" }),
+    /** The analyte's unit and decimals when drafted; the limits are in this unit. */
+    unit: text("unit").notNull(),
+    decimals: integer("decimals").notNull(),
+    criticalLow: doublePrecision("critical_low"),
+    criticalHigh: doublePrecision("critical_high"),
+    note: text("note"),
+    /** The director's comment when the version was last returned to draft. */
+    returnComment: text("return_comment"),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedBy: uuid("updated_by").references(() => users.id, { onDelete: "restrict" }),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    submittedBy: uuid("submitted_by").references(() => users.id, { onDelete: "restrict" }),
+    submittedAt: timestamp("submitted_at", { withTimezone: true }),
+    effectiveFrom: timestamp("effective_from", { withTimezone: true }),
+    effectiveTo: timestamp("effective_to", { withTimezone: true }),
+  },
+  (t) => [
+    uniqueIndex("interval_versions_number_unique").on(t.analyteId, t.number),
+    uniqueIndex("interval_versions_one_in_force").on(t.analyteId).where(sql`${t.state} = 'in_force'`),
+    index("interval_versions_state_idx").on(t.state, t.analyteId),
+    check("interval_versions_number_positive", sql`${t.number} > 0`),
+    check(
+      "interval_versions_critical_order",
+      sql`${t.criticalLow} IS NULL OR ${t.criticalHigh} IS NULL OR ${t.criticalLow} < ${t.criticalHigh}`,
+    ),
+  ],
+);
+
+export const PARTITION_METHODS = ["nonparametric", "parametric", "robust"] as const;
+
+/**
+ * One partition of an interval version: who it applies to (sex, half-open age range in days),
+ * the limits with their 90% CIs, the method, n, and the scoring model (lib/scoring/model.ts).
+ */
+export const intervalPartitions = pgTable(
+  "interval_partitions",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => intervalVersions.id, { onDelete: "restrict" }),
+    position: integer("position").notNull(),
+    sex: text("sex"),
+    /** [ageFromDays, ageToDays); null for no bound. */
+    ageFromDays: integer("age_from_days"),
+    ageToDays: integer("age_to_days"),
+    low: doublePrecision("low"),
+    high: doublePrecision("high"),
+    lowCiLower: doublePrecision("low_ci_lower"),
+    lowCiUpper: doublePrecision("low_ci_upper"),
+    highCiLower: doublePrecision("high_ci_lower"),
+    highCiUpper: doublePrecision("high_ci_upper"),
+    method: text("method").notNull(),
+    n: integer("n").notNull(),
+    model: jsonb("model").$type<Record<string, unknown>>().notNull(),
+    estimateId: uuid("estimate_id").references(() => estimates.id, { onDelete: "restrict" }),
+  },
+  (t) => [
+    uniqueIndex("interval_partitions_position_unique").on(t.versionId, t.position),
+    check("interval_partitions_sex", sql`${t.sex} IS NULL OR ${t.sex} IN ('F', 'M')`),
+    check(
+      "interval_partitions_age_order",
+      sql`${t.ageFromDays} IS NULL OR ${t.ageToDays} IS NULL OR ${t.ageFromDays} < ${t.ageToDays}`,
+    ),
+    check("interval_partitions_has_limit", sql`${t.low} IS NOT NULL OR ${t.high} IS NOT NULL`),
+    check("interval_partitions_limit_order", sql`${t.low} IS NULL OR ${t.high} IS NULL OR ${t.low} <= ${t.high}`),
+    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust')`),
+    check("interval_partitions_n_positive", sql`${t.n} > 0`),
+  ],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({
   auditEvents: many(auditEvents),
 }));
@@ -272,3 +501,10 @@ export type Analyte = typeof analytes.$inferSelect;
 export type Study = typeof studies.$inferSelect;
 export type Upload = typeof uploads.$inferSelect;
 export type DonorResult = typeof donorResults.$inferSelect;
+export type Exclusion = typeof exclusions.$inferSelect;
+export type OutlierDecision = typeof outlierDecisions.$inferSelect;
+export type PartitionAssessment = typeof partitionAssessments.$inferSelect;
+export type Estimate = typeof estimates.$inferSelect;
+export type IntervalVersion = typeof intervalVersions.$inferSelect;
+export type IntervalPartition = typeof intervalPartitions.$inferSelect;
+export type VersionState = (typeof VERSION_STATES)[number];
