@@ -1,0 +1,131 @@
+import { drizzle } from "drizzle-orm/node-postgres";
+import { Pool } from "pg";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { migrateDatabase } from "@/db/migrate";
+import * as schema from "@/db/schema";
+import { seedDemo } from "@/db/seed";
+import { createScratchDatabase, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
+
+/** Every table the seed may write, to show that a second run adds nothing. */
+const TABLES = [
+  "laboratory", "users", "analytes", "studies", "uploads", "donor_results", "exclusions", "outlier_decisions",
+  "partition_assessments", "estimates", "interval_versions", "interval_partitions", "audit_events",
+];
+
+/** The demo's studies and the donor results each holds (db/demo-studies.ts, written out). */
+const DONORS_PER_STUDY: Record<string, number> = {
+  "Sodium: Harrowmere reference interval study 2024": 240,
+  "Potassium: Harrowmere reference interval study 2024": 240,
+  "Calcium: Harrowmere reference interval study 2024": 240,
+  "Glucose: Harrowmere reference interval study 2024": 240,
+  "Urea: Harrowmere reference interval study 2024": 220,
+  "ALT: Harrowmere reference interval study 2024": 240,
+  "TSH: Harrowmere reference interval study 2024": 240,
+  "Creatinine: Harrowmere reference interval study 2024": 300,
+  "Haemoglobin: Harrowmere reference interval study 2024": 300,
+  "Alkaline phosphatase: children and adults 2025-26": 310,
+  "Sodium: verification after the AX-400 electrode change": 200,
+  "ALT: 2026 re-establishment with pyridoxal phosphate": 240,
+  "Haemoglobin: Hemavue 7 introduction": 300,
+  "Potassium: 2026 study with the new tube supplier": 240,
+  "Urea: second analyser (AX-400 #2) comparison": 200,
+};
+
+// Needs the cluster's superuser for a scratch database: skipped against an external test database.
+describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database", () => {
+  let db: ScratchDatabase;
+  let pool: Pool;
+  let firstRun: boolean;
+  const rows = async <T>(text: string, values: unknown[] = []) => (await pool.query(text, values)).rows as T[];
+  const counts = async () => {
+    const out: Record<string, number> = {};
+    for (const t of TABLES) out[t] = (await rows<{ n: number }>(`SELECT count(*)::int AS n FROM ${t}`))[0].n;
+    return out;
+  };
+
+  beforeAll(async () => {
+    db = await createScratchDatabase("demo_seed");
+    await migrateDatabase(db.ownerUrl);
+    // As the app's role, as the start command seeds.
+    pool = new Pool({ connectionString: db.appUrl, max: 2 });
+    firstRun = await seedDemo(drizzle(pool, { schema }));
+  }, 120_000);
+
+  afterAll(async () => {
+    await pool?.end();
+    await db?.drop();
+  });
+
+  it("seeds the accounts, the ten analytes and fifteen studies, each study's file committed", async () => {
+    expect(firstRun).toBe(true);
+    expect((await counts()).users).toBe(4);
+    expect((await rows<{ code: string }>("SELECT code FROM analytes ORDER BY code")).map((a) => a.code)).toEqual([
+      "ALP", "ALT", "CA", "CREA", "GLU", "HGB", "K", "NA", "TSH", "UREA",
+    ]);
+    const studies = await rows<{ title: string; uploads: number; committed: number; stored: number; donors: number }>(`
+      SELECT s.title,
+        (SELECT count(*)::int FROM uploads u WHERE u.study_id = s.id) AS uploads,
+        (SELECT count(*)::int FROM uploads u WHERE u.study_id = s.id AND u.status = 'committed') AS committed,
+        (SELECT sum(u.stored_rows)::int FROM uploads u WHERE u.study_id = s.id) AS stored,
+        (SELECT count(*)::int FROM donor_results d WHERE d.study_id = s.id) AS donors
+      FROM studies s`);
+    expect(Object.fromEntries(studies.map((s) => [s.title, s.donors]))).toEqual(DONORS_PER_STUDY);
+    for (const s of studies) expect(s, s.title).toMatchObject({ uploads: 1, committed: 1, stored: s.donors });
+    // Committed as the demo scientist, through the upload queries: each commit is on the audit trail.
+    const [{ n }] = await rows<{ n: number }>(
+      "SELECT count(*)::int AS n FROM audit_events WHERE action = 'upload.committed' AND actor_label = 'scientist@harrowmere.example'",
+    );
+    expect(n).toBe(15);
+    const [{ pending }] = await rows<{ pending: number }>("SELECT count(*)::int AS pending FROM uploads WHERE pending_rows IS NOT NULL");
+    expect(pending).toBe(0);
+  });
+
+  it("gives the cohorts their shapes: haemoglobin by sex, alkaline phosphatase by age, gross potassium errors", async () => {
+    // The cohorts' design (db/demo-donors.ts): men's haemoglobin 149 g/L against women's 134; ALP's
+    // median 215 U/L in children against 72 in adults; four gross potassium errors from 6.9 to 9.6.
+    const hgb = await rows<{ sex: string; mean: number }>(`
+      SELECT d.sex, avg(d.value) AS mean FROM donor_results d JOIN studies s ON s.id = d.study_id
+      WHERE s.title = 'Haemoglobin: Harrowmere reference interval study 2024' GROUP BY d.sex ORDER BY d.sex`);
+    expect(hgb.map((h) => h.sex)).toEqual(["F", "M"]);
+    expect(hgb[1].mean - hgb[0].mean).toBeGreaterThan(10);
+    const alp = await rows<{ child: boolean; median: number }>(`
+      SELECT d.age_years < 18 AS child, percentile_cont(0.5) WITHIN GROUP (ORDER BY d.value) AS median
+      FROM donor_results d JOIN studies s ON s.id = d.study_id
+      WHERE s.title = 'Alkaline phosphatase: children and adults 2025-26' GROUP BY 1 ORDER BY 1`);
+    expect(alp[1].median / alp[0].median).toBeGreaterThan(2);
+    const gross = await rows<{ donor_code: string; value: number }>(`
+      SELECT d.donor_code, d.value FROM donor_results d JOIN studies s ON s.id = d.study_id
+      WHERE s.title = 'Potassium: 2026 study with the new tube supplier' AND d.value > 6 ORDER BY d.value`);
+    expect(gross).toEqual([
+      { donor_code: "HRW-K26-0017", value: 6.9 },
+      { donor_code: "HRW-K26-0088", value: 7.4 },
+      { donor_code: "HRW-K26-0152", value: 8.1 },
+      { donor_code: "HRW-K26-0203", value: 9.6 },
+    ]);
+  });
+
+  it("changes nothing when it runs again", async () => {
+    const before = await counts();
+    expect(await seedDemo(drizzle(pool, { schema }))).toBe(false);
+    expect(await counts()).toEqual(before);
+  });
+
+  it("leaves a database whose users are not the demo's alone", async () => {
+    const other = await createScratchDatabase("not_demo");
+    const otherPool = new Pool({ connectionString: other.appUrl, max: 1 });
+    try {
+      await migrateDatabase(other.ownerUrl);
+      await otherPool.query(
+        "INSERT INTO users (email, name, role, password_hash) VALUES ('head@lab.example', 'Head of laboratory', 'director', 'x')",
+      );
+      expect(await seedDemo(drizzle(otherPool, { schema }))).toBe(false);
+      const [{ studies, analytes }] = (
+        await otherPool.query("SELECT (SELECT count(*)::int FROM studies) AS studies, (SELECT count(*)::int FROM analytes) AS analytes")
+      ).rows;
+      expect({ studies, analytes }).toEqual({ studies: 0, analytes: 0 });
+    } finally {
+      await otherPool.end();
+      await other.drop();
+    }
+  });
+});
