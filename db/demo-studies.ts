@@ -3,7 +3,7 @@
  * each has come. Data only; db/demo-seed-studies.ts carries them out through the same queries the
  * API uses. Everything here is made up for Bellwether's demo.
  */
-import { DEMO_COHORTS, type DemoCohort, type Sex } from "./demo-donors";
+import { DEMO_COHORTS, type DemoCohort } from "./demo-donors";
 
 /**
  * How far a study has come, each stage including the ones before it: results uploaded;
@@ -12,13 +12,6 @@ import { DEMO_COHORTS, type DemoCohort, type Sex } from "./demo-donors";
  */
 export const DEMO_STAGES = ["uploaded", "screened", "partitioned", "estimated", "draft", "awaiting_signoff", "in_force"] as const;
 export type DemoStage = (typeof DEMO_STAGES)[number];
-
-/** One partition of a study: sex and a half-open age band in years, as the API's partition objects. */
-export interface DemoPartition {
-  sex?: Sex;
-  ageFrom?: number;
-  ageTo?: number;
-}
 
 export interface DemoStudy {
   analyte: string;
@@ -48,17 +41,23 @@ const ADULT_CRITERIA =
 
 const ESTABLISHED = "Harrowmere reference interval study 2024";
 
-/** Every demo study, oldest first. The in-force ones were established in 2024; the others are this year's work. */
+/**
+ * Every demo study, oldest first. The in-force ones were established in 2024; the others are this
+ * year's work. The seeds of the nonparametric in-force cohorts are ones whose values have no tie
+ * on the ranks of the limits: lib/scoring scores a tied value at its mid-rank, which would put
+ * such a limit a little off percentile 2.5 or 97.5 (at 2.70 for a tie of two at ranks 6 and 7 of
+ * 240), and the demo's versions in force are to show limits exactly at 2.5 and 97.5.
+ */
 export const DEMO_STUDIES: readonly DemoStudy[] = [
   // Established in 2024 and in force since 2025.
   {
     analyte: "NA", title: `Sodium: ${ESTABLISHED}`, method: "Indirect ISE, Corvel AX-400", criteria: ADULT_CRITERIA,
-    cohort: DEMO_COHORTS.sodium("HRW-NA24", 2401, 240), fileName: "sodium-2024.csv", stage: "in_force",
+    cohort: DEMO_COHORTS.sodium("HRW-NA24", 2601, 240), fileName: "sodium-2024.csv", stage: "in_force",
     chosenMethod: "nonparametric", effectiveFrom: "2025-01-06",
   },
   {
     analyte: "K", title: `Potassium: ${ESTABLISHED}`, method: "Indirect ISE, Corvel AX-400", criteria: ADULT_CRITERIA,
-    cohort: DEMO_COHORTS.potassium("HRW-K24", 2402, 240), fileName: "potassium-2024.csv", stage: "in_force",
+    cohort: DEMO_COHORTS.potassium("HRW-K24", 2502, 240), fileName: "potassium-2024.csv", stage: "in_force",
     chosenMethod: "nonparametric", effectiveFrom: "2025-01-06",
   },
   {
@@ -68,7 +67,7 @@ export const DEMO_STUDIES: readonly DemoStudy[] = [
   },
   {
     analyte: "GLU", title: `Glucose: ${ESTABLISHED}`, method: "Hexokinase, Corvel AX-400", criteria: ADULT_CRITERIA,
-    cohort: DEMO_COHORTS.glucose("HRW-GLU24", 2404, 240), fileName: "glucose-2024.csv", stage: "in_force",
+    cohort: DEMO_COHORTS.glucose("HRW-GLU24", 3404, 240), fileName: "glucose-2024.csv", stage: "in_force",
     chosenMethod: "nonparametric", effectiveFrom: "2025-01-06",
   },
   {
@@ -83,12 +82,12 @@ export const DEMO_STUDIES: readonly DemoStudy[] = [
   },
   {
     analyte: "TSH", title: `TSH: ${ESTABLISHED}`, method: "Sandwich chemiluminescence, Lumora i20", criteria: ADULT_CRITERIA,
-    cohort: DEMO_COHORTS.tsh("HRW-TSH24", 2407, 240), fileName: "tsh-2024.csv", stage: "in_force",
+    cohort: DEMO_COHORTS.tsh("HRW-TSH24", 2507, 240), fileName: "tsh-2024.csv", stage: "in_force",
     chosenMethod: "nonparametric", effectiveFrom: "2025-02-03",
   },
   {
     analyte: "CREA", title: `Creatinine: ${ESTABLISHED}`, method: "Enzymatic, Corvel AX-400", criteria: ADULT_CRITERIA,
-    cohort: DEMO_COHORTS.creatinine("HRW-CR24", 2408, 300), fileName: "creatinine-2024.csv", stage: "in_force",
+    cohort: DEMO_COHORTS.creatinine("HRW-CR24", 2508, 300), fileName: "creatinine-2024.csv", stage: "in_force",
     assessment: { by: "sex" }, plan: { sex: true, ageBands: null }, chosenMethod: "nonparametric", effectiveFrom: "2025-01-06",
   },
   {
