@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, count, desc, eq, gte, isNotNull, isNull, lt, lte, sql, type SQL } from "drizzle-orm";
+import { and, asc, count, desc, eq, gte, isNull, lt, lte, sql, type SQL } from "drizzle-orm";
 import type { DonorResultSortField, DonorResultsQuery } from "@/lib/studies/donor-results-query";
 import type { Partition } from "@/lib/studies/partitions";
 import type { Executor } from "../client";
@@ -18,6 +18,8 @@ const SORT_COLUMNS = {
 
 /** The join that finds a donor result's exclusion in effect (through exclusions_active_unique). */
 const activeExclusion = and(eq(exclusions.donorResultId, donorResults.id), isNull(exclusions.undoneAt));
+/** The same, as a subquery for EXISTS (at most one row: the partial unique index). */
+const hasActiveExclusion = sql`(SELECT 1 FROM ${exclusions} WHERE ${exclusions.donorResultId} = ${donorResults.id} AND ${exclusions.undoneAt} IS NULL)`;
 
 export interface DonorResultItem extends DonorResult {
   excluded: boolean;
@@ -36,20 +38,16 @@ export async function listDonorResults(
   if (query.sex) parts.push(eq(donorResults.sex, query.sex));
   if (query.ageFrom !== undefined) parts.push(gte(donorResults.ageYears, query.ageFrom));
   if (query.ageTo !== undefined) parts.push(lte(donorResults.ageYears, query.ageTo));
-  if (query.excluded === true) parts.push(isNotNull(exclusions.id));
-  if (query.excluded === false) parts.push(isNull(exclusions.id));
+  // EXISTS / NOT EXISTS rather than a test on the joined row: PostgreSQL plans them as semi and
+  // anti joins through exclusions_active_unique, with row estimates that keep the page's plan right.
+  if (query.excluded === true) parts.push(sql`EXISTS ${hasActiveExclusion}`);
+  if (query.excluded === false) parts.push(sql`NOT EXISTS ${hasActiveExclusion}`);
   const where = and(...parts);
 
   const descending = query.sort.startsWith("-");
   const column = SORT_COLUMNS[query.sort.replace(/^-/, "") as DonorResultSortField];
-  // Without the excluded filter the count needs no join: every donor result has at most one
-  // exclusion in effect.
-  const counted =
-    query.excluded === undefined
-      ? executor.select({ total: count() }).from(donorResults).where(where)
-      : executor.select({ total: count() }).from(donorResults).leftJoin(exclusions, activeExclusion).where(where);
   const [[{ total }], rows] = await Promise.all([
-    counted,
+    executor.select({ total: count() }).from(donorResults).where(where),
     executor
       .select({
         donorResult: donorResults,
@@ -117,7 +115,7 @@ export async function listIncludedDonorValues(
       and(
         eq(donorResults.studyId, studyId),
         ...partitionConditions(partition),
-        sql`NOT EXISTS (SELECT 1 FROM ${exclusions} WHERE ${exclusions.donorResultId} = ${donorResults.id} AND ${exclusions.undoneAt} IS NULL)`,
+        sql`NOT EXISTS ${hasActiveExclusion}`,
       ),
     )
     .orderBy(asc(donorResults.id));
