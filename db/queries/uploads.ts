@@ -7,6 +7,7 @@ import { from as copyFrom } from "pg-copy-streams";
 import { AppError } from "@/lib/api/errors";
 import type { CensoringSide, DonorRow, ValidationReport } from "@/lib/uploads";
 import { transactionWithClient, type Database, type Executor } from "../client";
+import { uniqueViolationOf } from "../errors";
 import { studies, uploads, type Study, type Upload } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
@@ -201,18 +202,11 @@ export async function commitUpload(
     return result;
   } catch (err) {
     // The same file committed at the same moment through another upload: the partial unique index decides.
-    if (isUniqueViolation(err)) throw new AppError("conflict", "The same file (by its SHA-256) is already committed in this study.");
+    if (uniqueViolationOf(err) !== null) throw new AppError("conflict", "The same file (by its SHA-256) is already committed in this study.");
     throw err;
   }
 }
 
-/** PostgreSQL's unique_violation, also when drizzle wraps the driver's error. */
-function isUniqueViolation(err: unknown): boolean {
-  for (let e: unknown = err; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
-    if ((e as { code?: unknown }).code === "23505") return true;
-  }
-  return false;
-}
 
 async function commitPendingRows(
   tx: Executor,
