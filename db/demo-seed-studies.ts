@@ -5,7 +5,7 @@
  * nothing, and a seed stopped half-way finishes on the next start.
  */
 import { createHash } from "node:crypto";
-import { and, eq } from "drizzle-orm";
+import { and, asc, count, eq, inArray } from "drizzle-orm";
 import { convertUnit } from "@/lib/units/ucum";
 import { checkUpload } from "@/lib/uploads";
 import type { Database } from "./client";
@@ -13,9 +13,21 @@ import { cohortCsv } from "./demo-donors";
 import { DEMO_STAGES, DEMO_STUDIES, type DemoStage, type DemoStudy } from "./demo-studies";
 import { findAnalyteByCode } from "./queries/analytes";
 import type { Actor } from "./queries/audit";
-import { createStudy } from "./queries/studies";
+import { createExclusions } from "./queries/exclusions";
+import { createOutlierDecision } from "./queries/outlier-decisions";
+import { createPartitionAssessment } from "./queries/partition-assessments";
+import { screenEvidenceOf, screenStudy } from "./queries/screens";
+import { createStudy, setPartitionPlan } from "./queries/studies";
 import { commitUpload, createPendingUpload } from "./queries/uploads";
-import { analytes, studies, uploads, type Study } from "./schema";
+import {
+  analytes,
+  auditEvents,
+  donorResults,
+  partitionAssessments,
+  studies,
+  uploads,
+  type Study,
+} from "./schema";
 
 /** The demo's people as the audit trail names them: the scientist does the work, the director signs. */
 export interface DemoActors {
@@ -74,6 +86,67 @@ async function ensureDonorResults(database: Database, spec: DemoStudy, study: St
   return true;
 }
 
+const donorCode = (spec: DemoStudy, donor: number) => `${spec.cohort.codePrefix}-${String(donor).padStart(4, "0")}`;
+
+const KEEP_REASON = "Reviewed against the sample log: no pre-analytical error, within what healthy donors show. Kept.";
+
+/**
+ * Screens with Horn's method and answers every proposal as the scientist would: the file's
+ * gross errors are excluded (with the study's reason), the other proposals kept; then the
+ * manual exclusion. Skipped when the study was screened already.
+ */
+async function ensureScreened(database: Database, spec: DemoStudy, study: Study, actor: Actor): Promise<boolean> {
+  // A screen stores nothing but its audit event: that event says the study was screened.
+  const [{ screened }] = await database
+    .select({ screened: count() })
+    .from(auditEvents)
+    .where(and(eq(auditEvents.action, "study.screened"), eq(auditEvents.entityType, "study"), eq(auditEvents.entityId, study.id)));
+  if (screened > 0) return false;
+  const gross = new Set((spec.cohort.grossErrors ?? []).map((g) => donorCode(spec, g.donor)));
+  const screen = await screenStudy(database, { studyId: study.id, rule: "horn", actor });
+  for (const proposal of screen.proposals) {
+    const exclude = gross.has(proposal.donorCode);
+    // As the outlier-decisions route does: the server's own screen gives the evidence kept with the decision.
+    const { rule, evidence } = await screenEvidenceOf(database, { studyId: study.id, donorResultId: proposal.donorResultId, rule: "horn" });
+    await createOutlierDecision(database, {
+      studyId: study.id,
+      donorResultId: proposal.donorResultId,
+      decision: exclude ? "exclude" : "keep",
+      rule,
+      reason: exclude ? spec.outlierReason! : KEEP_REASON,
+      evidence,
+      actor,
+    });
+  }
+  if (spec.manualExclusion) {
+    const codes = spec.manualExclusion.donors.map((d) => donorCode(spec, d));
+    const rows = await database
+      .select({ id: donorResults.id })
+      .from(donorResults)
+      .where(and(eq(donorResults.studyId, study.id), inArray(donorResults.donorCode, codes)))
+      .orderBy(asc(donorResults.id));
+    await createExclusions(database, { studyId: study.id, donorResultIds: rows.map((r) => r.id), reason: spec.manualExclusion.reason, actor });
+  }
+  return true;
+}
+
+/** Runs the study's partition tests and stores the plan chosen from them, unless done. */
+async function ensurePartitioned(database: Database, spec: DemoStudy, study: Study, actor: Actor): Promise<boolean> {
+  let added = false;
+  if (spec.assessment) {
+    const [{ n }] = await database.select({ n: count() }).from(partitionAssessments).where(eq(partitionAssessments.studyId, study.id));
+    if (n === 0) {
+      await createPartitionAssessment(database, { studyId: study.id, input: spec.assessment, actor });
+      added = true;
+    }
+  }
+  if (spec.plan && !study.partitionPlan) {
+    await setPartitionPlan(database, { id: study.id, plan: spec.plan, actor });
+    added = true;
+  }
+  return added;
+}
+
 /** Seeds every demo study as far as its stage; returns whether it added anything. */
 export async function seedDemoStudies(database: Database, actors: DemoActors): Promise<boolean> {
   let added = false;
@@ -81,6 +154,8 @@ export async function seedDemoStudies(database: Database, actors: DemoActors): P
     const { study, added: opened } = await ensureStudy(database, spec, actors.scientist);
     const uploaded = await ensureDonorResults(database, spec, study, actors.scientist);
     added ||= opened || uploaded;
+    if (reached(spec, "screened")) added = (await ensureScreened(database, spec, study, actors.scientist)) || added;
+    if (reached(spec, "partitioned")) added = (await ensurePartitioned(database, spec, study, actors.scientist)) || added;
   }
   return added;
 }

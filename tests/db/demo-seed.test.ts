@@ -104,6 +104,31 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     ]);
   });
 
+  it("keeps the screened study's exclusions with their reasons: four confirmed outliers and a manual exclusion of two", async () => {
+    const excluded = await rows<{ donor_code: string; source: string; rule: string | null; reason: string; decision: string | null }>(`
+      SELECT d.donor_code, e.source, e.rule, e.reason, o.decision
+      FROM exclusions e JOIN donor_results d ON d.id = e.donor_result_id JOIN studies s ON s.id = e.study_id
+      LEFT JOIN outlier_decisions o ON o.exclusion_id = e.id
+      WHERE e.undone_at IS NULL ORDER BY d.donor_code`);
+    const outlier = "Haemolysed or EDTA-contaminated on the sample log: not a healthy-donor value.";
+    const manual = "Donors disclosed a potassium supplement after sampling (recruitment criterion).";
+    expect(excluded).toEqual([
+      { donor_code: "HRW-K26-0017", source: "outlier", rule: "horn", reason: outlier, decision: "exclude" },
+      { donor_code: "HRW-K26-0041", source: "manual", rule: null, reason: manual, decision: null },
+      { donor_code: "HRW-K26-0042", source: "manual", rule: null, reason: manual, decision: null },
+      { donor_code: "HRW-K26-0088", source: "outlier", rule: "horn", reason: outlier, decision: "exclude" },
+      { donor_code: "HRW-K26-0152", source: "outlier", rule: "horn", reason: outlier, decision: "exclude" },
+      { donor_code: "HRW-K26-0203", source: "outlier", rule: "horn", reason: outlier, decision: "exclude" },
+    ]);
+    // Every other proposal of the screens was answered "keep", with a reason, by the demo scientist.
+    const kept = await rows<{ reason: string; decided_by: string }>(
+      "SELECT DISTINCT o.reason, u.email AS decided_by FROM outlier_decisions o JOIN users u ON u.id = o.decided_by WHERE o.decision = 'keep'",
+    );
+    expect(kept).toEqual([
+      { reason: "Reviewed against the sample log: no pre-analytical error, within what healthy donors show. Kept.", decided_by: "scientist@harrowmere.example" },
+    ]);
+  });
+
   it("changes nothing when it runs again", async () => {
     const before = await counts();
     expect(await seedDemo(drizzle(pool, { schema }))).toBe(false);
