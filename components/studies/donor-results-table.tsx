@@ -49,9 +49,12 @@ export interface DonorFilters {
 const PAGE_SIZES = [25, 50, 100];
 const NO_FILTERS: DonorFilters = { sex: "", ageFrom: "", ageTo: "", excluded: "" };
 
-/** `<0.5`, `<=0.5`, `>1000` for censored values; the value itself otherwise, in the analyte's decimals. */
-export function formatDonorValue(item: Pick<DonorResultItem, "value" | "censoringSide" | "censoringInclusive">, decimals: number): string {
-  const number = item.value.toFixed(decimals);
+/**
+ * `<0.5`, `<=0.5`, `>1000` for censored values; the value itself otherwise, in the analyte's
+ * decimals (null: as the file wrote it, for the value before conversion).
+ */
+export function formatDonorValue(item: Pick<DonorResultItem, "value" | "censoringSide" | "censoringInclusive">, decimals: number | null): string {
+  const number = decimals === null ? String(item.value) : item.value.toFixed(decimals);
   if (!item.censoringSide) return number;
   const sign = item.censoringSide === "below" ? "<" : ">";
   return `${sign}${item.censoringInclusive ? "=" : ""}${number}`;
@@ -102,7 +105,7 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
           if (r.originalUnit === null || r.originalValue === null) return <span className="text-ink-400">same</span>;
           return (
             <span className="whitespace-nowrap text-ink-600">
-              {formatDonorValue({ ...r, value: r.originalValue }, Math.max(analyte.decimals, 1))} {r.originalUnit}
+              {formatDonorValue({ ...r, value: r.originalValue }, null)} {r.originalUnit}
             </span>
           );
         },
@@ -131,6 +134,8 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
     manualFiltering: true,
     rowCount: data?.total ?? 0,
     enableSortingRemoval: false,
+    // A first click sorts ascending for every column (TanStack's default starts numbers descending).
+    sortDescFirst: false,
     onPaginationChange: setPagination,
     onSortingChange: (updater) => {
       setSorting(updater);
@@ -155,55 +160,58 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
   const first = total === 0 ? 0 : pagination.pageIndex * pagination.pageSize + 1;
   const last = Math.min(total, (pagination.pageIndex + 1) * pagination.pageSize);
 
+  const nothingStored = data !== undefined && total === 0 && !filtered;
   return (
     <div className="space-y-3" data-testid="donor-results">
-      <form onSubmit={applyFilters} className="flex flex-wrap items-end gap-3 text-sm" aria-label="Filter the donor results">
-        <div className="space-y-0.5">
-          <label htmlFor="filter-sex" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
-            Sex
-          </label>
-          <select id="filter-sex" className={control} value={draft.sex} onChange={(e) => setDraft({ ...draft, sex: e.target.value as DonorFilters["sex"] })}>
-            <option value="">Both</option>
-            <option value="F">F</option>
-            <option value="M">M</option>
-          </select>
-        </div>
-        <div className="space-y-0.5">
-          <label htmlFor="filter-age-from" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
-            Age from
-          </label>
-          <input id="filter-age-from" className={`${control} w-20`} inputMode="decimal" value={draft.ageFrom} onChange={(e) => setDraft({ ...draft, ageFrom: e.target.value })} />
-        </div>
-        <div className="space-y-0.5">
-          <label htmlFor="filter-age-to" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
-            Age to
-          </label>
-          <input id="filter-age-to" className={`${control} w-20`} inputMode="decimal" value={draft.ageTo} onChange={(e) => setDraft({ ...draft, ageTo: e.target.value })} />
-        </div>
-        <div className="space-y-0.5">
-          <label htmlFor="filter-excluded" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
-            Exclusion
-          </label>
-          <select
-            id="filter-excluded"
-            className={control}
-            value={draft.excluded}
-            onChange={(e) => setDraft({ ...draft, excluded: e.target.value as DonorFilters["excluded"] })}
-          >
-            <option value="">All</option>
-            <option value="false">Not excluded</option>
-            <option value="true">Excluded</option>
-          </select>
-        </div>
-        <Button type="submit" variant="secondary">
-          Apply filters
-        </Button>
-        {filtered ? (
-          <Button type="button" variant="secondary" onClick={clearFilters}>
-            Clear filters
+      {nothingStored ? null : (
+        <form onSubmit={applyFilters} className="flex flex-wrap items-end gap-3 text-sm" aria-label="Filter the donor results">
+          <div className="space-y-0.5">
+            <label htmlFor="filter-sex" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
+              Sex
+            </label>
+            <select id="filter-sex" className={control} value={draft.sex} onChange={(e) => setDraft({ ...draft, sex: e.target.value as DonorFilters["sex"] })}>
+              <option value="">Both</option>
+              <option value="F">F</option>
+              <option value="M">M</option>
+            </select>
+          </div>
+          <div className="space-y-0.5">
+            <label htmlFor="filter-age-from" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
+              Age from
+            </label>
+            <input id="filter-age-from" className={`${control} w-20`} inputMode="decimal" value={draft.ageFrom} onChange={(e) => setDraft({ ...draft, ageFrom: e.target.value })} />
+          </div>
+          <div className="space-y-0.5">
+            <label htmlFor="filter-age-to" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
+              Age to
+            </label>
+            <input id="filter-age-to" className={`${control} w-20`} inputMode="decimal" value={draft.ageTo} onChange={(e) => setDraft({ ...draft, ageTo: e.target.value })} />
+          </div>
+          <div className="space-y-0.5">
+            <label htmlFor="filter-excluded" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
+              Exclusion
+            </label>
+            <select
+              id="filter-excluded"
+              className={control}
+              value={draft.excluded}
+              onChange={(e) => setDraft({ ...draft, excluded: e.target.value as DonorFilters["excluded"] })}
+            >
+              <option value="">All</option>
+              <option value="false">Not excluded</option>
+              <option value="true">Excluded</option>
+            </select>
+          </div>
+          <Button type="submit" variant="secondary">
+            Apply filters
           </Button>
-        ) : null}
-      </form>
+          {filtered ? (
+            <Button type="button" variant="secondary" onClick={clearFilters}>
+              Clear filters
+            </Button>
+          ) : null}
+        </form>
+      )}
 
       {error ? (
         <div role="alert" className="space-y-2 rounded-md bg-red-50 px-3 py-2 text-sm text-signal-high" data-testid="donor-results-error">

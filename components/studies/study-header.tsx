@@ -49,7 +49,7 @@ export function StudyHeader({ study, analyte, actions }: { study: StudyView; ana
       ) : null}
       <dl className="grid grid-cols-2 gap-2 sm:grid-cols-4">
         <Count label="Donor results" value={study.counts.donorResults} testId="count-donor-results" />
-        <Count label="Uploads" value={study.counts.uploads} testId="count-uploads" />
+        <Count label="Uploads committed" value={study.counts.uploads} testId="count-uploads" />
         <Count label="Exclusions" value={study.counts.exclusions} testId="count-exclusions" />
         <Count label="Awaiting commit" value={study.counts.pendingUploads} testId="count-pending" />
       </dl>

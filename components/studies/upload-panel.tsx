@@ -11,6 +11,9 @@ import { mappingGap, TEMPLATE_COLUMNS, type ColumnMapping, type PendingUploadAns
 import { ValidationReport } from "./validation-report";
 import type { StudyAnalyte } from "./types";
 
+/** lib/uploads' MAX_UPLOAD_BYTES (20 MiB). */
+const MAX_FILE_BYTES = 20 * 1024 * 1024;
+
 type Stage = "choose" | "previewing" | "preview" | "checking" | "report" | "deciding";
 
 /** The example files in public/examples/ (scripts/examples.ts writes them). */
@@ -81,6 +84,14 @@ export function UploadPanel({ studyId, analyte, onDecided }: { studyId: string; 
       setFile(chosen);
       setUpload(null);
       setSheet("");
+      if (chosen.size > MAX_FILE_BYTES) {
+        // The server would refuse it too (413); say so before sending 20 MB for nothing.
+        setPreview(null);
+        setNotice(null);
+        setRefusal({ status: 413, uploadError: "too_large", detail: "the file is larger than 20 MB" });
+        setStage("preview");
+        return;
+      }
       void runPreview(chosen, "");
     },
     [runPreview],
