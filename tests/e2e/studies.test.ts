@@ -153,6 +153,7 @@ describe("a scientist opens a study and loads its donor results", () => {
     const row = page.getByRole("row").filter({ hasText: title });
     expect(await row.textContent()).toContain("Closed: no more changes");
     expect(await row.textContent()).toContain("143");
+    await shots(page, "studies-list-filled");
     await context.close();
 
     // Roles without studies get the forbidden page, on the list and on the study itself.
