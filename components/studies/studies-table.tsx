@@ -27,10 +27,14 @@ const columns = [
   }),
   column.accessor("status", {
     header: "Status",
-    cell: (c) => <Badge tone={c.getValue() === "open" ? "ok" : "neutral"}>{STUDY_STATUS_WORDS[c.getValue()]}</Badge>,
+    cell: (c) => (
+      <span className="whitespace-nowrap">
+        <Badge tone={c.getValue() === "open" ? "ok" : "neutral"}>{STUDY_STATUS_WORDS[c.getValue()]}</Badge>
+      </span>
+    ),
   }),
   column.accessor("donorResults", { header: "Donor results", cell: (c) => c.getValue().toLocaleString("en") }),
-  column.accessor("uploads", { header: "Uploads" }),
+  column.accessor("uploads", { header: "Uploads committed" }),
   column.accessor("openedOn", { header: "Opened on", cell: (c) => <span className="whitespace-nowrap">{c.getValue()}</span> }),
 ];
 

@@ -11,6 +11,8 @@ export type { Study };
 export interface StudySummary extends Study {
   analyteCode: string;
   uploadCount: number;
+  /** Uploads whose rows are stored (not pending, not cancelled). */
+  committedUploadCount: number;
   donorResultCount: number;
 }
 
@@ -48,16 +50,23 @@ export async function createStudy(database: Database, { input, actor }: { input:
 }
 
 const uploadCount = sql<number>`(SELECT count(*)::int FROM ${uploads} WHERE ${uploads.studyId} = ${studies.id})`;
+const committedUploadCount = sql<number>`(SELECT count(*)::int FROM ${uploads} WHERE ${uploads.studyId} = ${studies.id} AND ${uploads.status} = 'committed')`;
 const donorResultCount = sql<number>`(SELECT count(*)::int FROM ${donorResults} WHERE ${donorResults.studyId} = ${studies.id})`;
 
 /** Every study, newest first, with its analyte's code and counts. */
 export async function listStudies(executor: Executor): Promise<StudySummary[]> {
   const rows = await executor
-    .select({ study: studies, analyteCode: analytes.code, uploadCount, donorResultCount })
+    .select({ study: studies, analyteCode: analytes.code, uploadCount, committedUploadCount, donorResultCount })
     .from(studies)
     .innerJoin(analytes, eq(analytes.id, studies.analyteId))
     .orderBy(desc(studies.createdAt), desc(studies.id));
-  return rows.map((r) => ({ ...r.study, analyteCode: r.analyteCode, uploadCount: r.uploadCount, donorResultCount: r.donorResultCount }));
+  return rows.map((r) => ({
+    ...r.study,
+    analyteCode: r.analyteCode,
+    uploadCount: r.uploadCount,
+    committedUploadCount: r.committedUploadCount,
+    donorResultCount: r.donorResultCount,
+  }));
 }
 
 export async function findStudy(executor: Executor, { id }: { id: string }): Promise<Study | undefined> {

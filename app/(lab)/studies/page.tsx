@@ -25,7 +25,7 @@ export default async function StudiesPage() {
     title: s.title,
     status: s.status,
     donorResults: s.donorResultCount,
-    uploads: s.uploadCount,
+    uploads: s.committedUploadCount,
     openedOn: formatDate(s.createdAt),
   }));
   const choices = analytes.map((a) => ({ code: a.code, name: a.name, unit: a.unit, decimals: a.decimals, specimen: a.specimen }));
@@ -35,7 +35,7 @@ export default async function StudiesPage() {
         title="Studies"
         lead="A study gathers healthy-donor results for one analyte, method and specimen. Open one, upload its results, screen them, assess partitions and estimate the limits, then draft an interval version."
       />
-      <div className="grid items-start gap-5 xl:grid-cols-[1fr_24rem]">
+      <div className="grid items-start gap-5 2xl:grid-cols-[1fr_24rem]">
         <Panel title={rows.length === 1 ? "1 study" : `${rows.length} studies`}>
           {rows.length === 0 ? (
             <div className="space-y-2 py-4 text-sm text-ink-600" data-testid="studies-empty">
