@@ -12,7 +12,7 @@ export const partitionSchema = z
   .object({
     sex: z.enum(["F", "M"], "sex is F or M.").optional(),
     ageFrom: z.number("ageFrom is an age in years.").min(0, "ageFrom is an age in years from 0.").max(130, "ageFrom is at most 130 years.").optional(),
-    ageTo: z.number("ageTo is an age in years.").gt(0, "ageTo is an age in years above 0.").max(200, "ageTo is at most 200 years.").optional(),
+    ageTo: z.number("ageTo is an age in years.").gt(0, "ageTo is an age in years above 0.").max(130, "ageTo is at most 130 years.").optional(),
   })
   .strict()
   .refine((p) => p.ageFrom === undefined || p.ageTo === undefined || p.ageFrom < p.ageTo, {
