@@ -8,6 +8,7 @@
  * donor code such as `=cmd|' /C calc'!A0`, `+1`, `-x` or `@SUM(…)` stays text even when someone
  * edits the cell in a spreadsheet program. Donor codes keep their exact characters.
  */
+import { PassThrough } from "node:stream";
 import ExcelJS from "exceljs";
 import type { ReferenceIntervalEstimate } from "@/lib/stats/estimate";
 import { partitionLabel, partitionOut } from "./estimate-input";
@@ -74,19 +75,28 @@ export interface StudyExportData {
 
 const TEXT_FORMAT = "@";
 
-/** Adds a row, marking every text cell as Text so that it can never be taken for a formula. */
-function addRow(sheet: ExcelJS.Worksheet, values: readonly CellValue[]): ExcelJS.Row {
-  const row = sheet.addRow(values.map((v) => (v === null ? null : v)));
-  row.eachCell((cell) => {
-    if (typeof cell.value === "string") cell.numFmt = TEXT_FORMAT;
-  });
-  return row;
+/**
+ * Adds a row and commits it (the workbook is streamed, so a 200,000-row study never sits in
+ * memory as cells), marking every text cell as Text so that it can never be taken for a formula.
+ */
+function addRow(sheet: ExcelJS.Worksheet, values: readonly CellValue[], bold = false): void {
+  const row = sheet.addRow(values as CellValue[]);
+  for (let i = 0; i < values.length; i++) {
+    if (typeof values[i] === "string") {
+      const cell = row.getCell(i + 1);
+      cell.numFmt = TEXT_FORMAT;
+      if (bold) cell.font = { bold: true };
+    }
+  }
+  if (bold && typeof values[0] !== "string") row.getCell(1).font = { bold: true };
+  row.commit();
 }
 
-function header(sheet: ExcelJS.Worksheet, names: readonly string[]): void {
-  const row = addRow(sheet, names);
-  row.font = { bold: true };
-  sheet.views = [{ state: "frozen", ySplit: sheet.rowCount }];
+/** A sheet whose first row, the header, stays in view. */
+function tableSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, name: string, names: readonly string[]): ExcelJS.Worksheet {
+  const sheet = workbook.addWorksheet(name, { views: [{ state: "frozen", ySplit: 1 }] });
+  addRow(sheet, names, true);
+  return sheet;
 }
 
 function num(v: unknown): number | null {
@@ -109,7 +119,7 @@ function planText(plan: StudyExportData["study"]["partitionPlan"]): string {
   return parts.length ? parts.join(", ") : "One partition of everyone";
 }
 
-function summarySheet(workbook: ExcelJS.Workbook, data: StudyExportData): void {
+function summarySheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
   const sheet = workbook.addWorksheet("Summary");
   sheet.columns = [{ width: 28 }, { width: 70 }, { width: 12 }, { width: 12 }, { width: 12 }, { width: 12 }, { width: 22 }];
   const { study, analyte } = data;
@@ -137,16 +147,15 @@ function summarySheet(workbook: ExcelJS.Workbook, data: StudyExportData): void {
     ["Exported", data.exportedAt],
     ["Exported by", data.exportedBy],
   ];
-  for (const pair of pairs) addRow(sheet, pair).getCell(1).font = { bold: true };
+  for (const pair of pairs) addRow(sheet, pair);
   addRow(sheet, []);
-  header(sheet, ["Upload", "SHA-256", "Status", "Rows", "Valid", "Invalid", "Uploaded"]);
-  sheet.views = [];
+  addRow(sheet, ["Upload", "SHA-256", "Status", "Rows", "Valid", "Invalid", "Uploaded"], true);
   for (const u of data.uploads) addRow(sheet, [u.fileName, u.sha256, u.status, u.rowsTotal, u.rowsValid, u.rowsInvalid, u.uploadedAt]);
+  sheet.commit();
 }
 
-function donorSheet(workbook: ExcelJS.Workbook, data: StudyExportData): void {
-  const sheet = workbook.addWorksheet("Donor results");
-  header(sheet, [
+function donorSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = tableSheet(workbook, "Donor results", [
     "Id", "Upload", "Row", "Donor code", "Sex", "Age (years)", "Age (days)", "Birth date", "Collected on",
     `Value (${data.analyte.unit})`, "Censored", "Original value", "Original unit", "Excluded", "Exclusion source", "Rule", "Reason", "Excluded at", "Excluded by",
   ]);
@@ -158,11 +167,11 @@ function donorSheet(workbook: ExcelJS.Workbook, data: StudyExportData): void {
       x ? "yes" : "no", x?.source ?? null, x?.rule ?? null, x?.reason ?? null, x?.createdAt ?? null, x?.by ?? null,
     ]);
   }
+  sheet.commit();
 }
 
-function partitionsSheet(workbook: ExcelJS.Workbook, data: StudyExportData): void {
-  const sheet = workbook.addWorksheet("Partitions");
-  header(sheet, ["Assessment", "Made", "By", "Bands (years)", "Sex", "Verdict", "Group / comparison", "n", "Mean", "SD", "Median", "Harris-Boyd", "Lahti", "Summary"]);
+function partitionsSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = tableSheet(workbook, "Partitions", ["Assessment", "Made", "By", "Bands (years)", "Sex", "Verdict", "Group / comparison", "n", "Mean", "SD", "Median", "Harris-Boyd", "Lahti", "Summary"]);
   for (const a of data.assessments) {
     const r = a.result;
     const base: CellValue[] = [a.id, a.createdAt, str(r.by ?? a.request.by), bandsText(r.bands ?? a.request.bands), str(r.sex ?? a.request.sex), str(r.verdict)];
@@ -176,13 +185,13 @@ function partitionsSheet(workbook: ExcelJS.Workbook, data: StudyExportData): voi
     }
     addRow(sheet, [...base, null, null, null, null, null, null, null, str(r.summary)]);
   }
+  sheet.commit();
 }
 
 const METHODS = ["nonparametric", "parametric", "robust"] as const;
 
-function estimatesSheet(workbook: ExcelJS.Workbook, data: StudyExportData): void {
-  const sheet = workbook.addWorksheet("Estimates");
-  header(sheet, [
+function estimatesSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = tableSheet(workbook, "Estimates", [
     "Estimate", "Made", "Partition", "Sex", "Age from", "Age to", "Outliers", "Transform", "Seed", "n", "Method", "Recommended",
     "Lower limit", "Lower CI low", "Lower CI high", "Upper limit", "Upper CI low", "Upper CI high", "Scale", "Lambda",
     "Exclusions in effect", "Upload SHA-256", "Engine", "Warnings",
@@ -204,16 +213,26 @@ function estimatesSheet(workbook: ExcelJS.Workbook, data: StudyExportData): void
       ]);
     }
   }
+  sheet.commit();
 }
 
-/** The workbook's bytes. */
+/** The workbook's bytes, written with exceljs's streaming writer. */
 export async function studyWorkbook(data: StudyExportData): Promise<Buffer> {
-  const workbook = new ExcelJS.Workbook();
+  const stream = new PassThrough();
+  const chunks: Buffer[] = [];
+  stream.on("data", (chunk: Buffer) => chunks.push(chunk));
+  const ended = new Promise<void>((resolve, reject) => {
+    stream.on("end", resolve);
+    stream.on("error", reject);
+  });
+  const workbook = new ExcelJS.stream.xlsx.WorkbookWriter({ stream, useStyles: true, useSharedStrings: false });
   workbook.creator = "Bellwether";
   workbook.created = data.exportedAt;
   summarySheet(workbook, data);
   donorSheet(workbook, data);
   partitionsSheet(workbook, data);
   estimatesSheet(workbook, data);
-  return Buffer.from(await workbook.xlsx.writeBuffer());
+  await workbook.commit();
+  await ended;
+  return Buffer.concat(chunks);
 }
