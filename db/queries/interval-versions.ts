@@ -16,7 +16,7 @@ import { recordAuditEvent, type Actor } from "./audit";
 import { valuesOfEstimate } from "./estimates";
 
 /** Attempts at numbering a new version when another took the same number at the same moment. */
-const NUMBERING_ATTEMPTS = 3;
+const NUMBERING_ATTEMPTS = 5;
 
 function invalid(path: string, message: string): AppError {
   return new AppError("invalid", message, { errors: [{ path, message }] });
