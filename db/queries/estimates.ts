@@ -1,12 +1,13 @@
 import "server-only";
-import { and, asc, desc, eq, gte, inArray, isNull, lt, notExists, sql, type SQL } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull, notExists, sql, type SQL } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import { engineIdentity, stampEngine } from "@/lib/engine";
 import { estimateReferenceInterval, type DonorValue, type ReferenceIntervalEstimate } from "@/lib/stats/estimate";
-import { partitionLabel, partitionOut, type CreateEstimateInput, type Partition, type PartitionOut } from "@/lib/studies/estimate-input";
+import { partitionLabel, partitionOf, partitionOut, type CreateEstimateInput, type PartitionOut } from "@/lib/studies/estimate-input";
 import type { Database, Executor } from "../client";
 import { donorResults, estimates, exclusions, studies, uploads, type Estimate } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
+import { listIncludedDonorValues, partitionConditions } from "./donor-results";
 
 /** What the engine needs for one partition, and what it takes to compute the same values again. */
 export interface EstimationInput {
@@ -18,17 +19,6 @@ export interface EstimationInput {
   /** SHA-256 of every committed upload of the study, oldest first. */
   uploadHashes: string[];
 }
-
-function partitionConditions(partition: Partition | PartitionOut): SQL[] {
-  const parts: SQL[] = [];
-  if (partition.sex != null) parts.push(eq(donorResults.sex, partition.sex));
-  if (partition.ageFrom != null) parts.push(gte(donorResults.ageYears, partition.ageFrom));
-  if (partition.ageTo != null) parts.push(lt(donorResults.ageYears, partition.ageTo));
-  return parts;
-}
-
-const activeExclusionOf = (donorResultId: typeof donorResults.id) =>
-  and(eq(exclusions.donorResultId, donorResultId), isNull(exclusions.undoneAt));
 
 function toDonorValue(row: { value: number; censoringSide: "below" | "above" | null }): DonorValue {
   return row.censoringSide === null ? row.value : { value: row.value, side: row.censoringSide };
@@ -51,14 +41,10 @@ async function committedUploadHashes(executor: Executor, studyId: string): Promi
  */
 export async function estimationInput(
   executor: Executor,
-  { studyId, partition }: { studyId: string; partition: Partition | PartitionOut },
+  { studyId, partition }: { studyId: string; partition: PartitionOut },
 ): Promise<EstimationInput> {
-  const inPartition = and(eq(donorResults.studyId, studyId), ...partitionConditions(partition));
-  const rows = await executor
-    .select({ id: donorResults.id, value: donorResults.value, censoringSide: donorResults.censoringSide })
-    .from(donorResults)
-    .where(and(inPartition, notExists(executor.select({ one: sql`1` }).from(exclusions).where(activeExclusionOf(donorResults.id)))))
-    .orderBy(asc(donorResults.id));
+  const inPartition = and(eq(donorResults.studyId, studyId), ...partitionConditions(partitionOf(partition)));
+  const rows = await listIncludedDonorValues(executor, { studyId, partition: partitionOf(partition) });
   const excluded = await executor
     .select({ id: exclusions.id })
     .from(exclusions)
@@ -79,7 +65,7 @@ export async function estimationInput(
  * donor_results.id order. Exclusions made or undone since do not change the answer.
  */
 export async function valuesOfEstimate(executor: Executor, { estimate }: { estimate: Estimate }): Promise<DonorValue[]> {
-  const parts: SQL[] = [eq(donorResults.studyId, estimate.studyId), ...partitionConditions(partitionOut(estimate))];
+  const parts: SQL[] = [eq(donorResults.studyId, estimate.studyId), ...partitionConditions(partitionOf(partitionOut(estimate)))];
   if (estimate.uploadHashes.length === 0) return [];
   parts.push(
     inArray(
@@ -177,7 +163,7 @@ export async function createEstimate(
       action: "estimate.created",
       entityType: "estimate",
       entityId: row.id,
-      summary: `Estimated the reference interval of ${partitionLabel(partition)} in the study "${study.title}" (n = ${document.n})`,
+      summary: `Estimated the reference interval (${partitionLabel(partition)}) in the study "${study.title}" (n = ${document.n})`,
       details: {
         studyId,
         partition,

@@ -1,26 +1,9 @@
 import { z } from "zod";
 import { OUTLIER_OPTIONS, TRANSFORM_OPTIONS, type OutlierOption, type TransformOption } from "@/lib/stats/estimate";
 import { studyIdParams } from "./input";
+import { partitionLabel as labelOf, partitionSchema, type Partition } from "./partitions";
 
-/**
- * A partition of a study's donor results: sex, and a half-open age band in years
- * [ageFrom, ageTo); an omitted field is no restriction. The contract shared by the screening,
- * partition and estimate routes (../prompts/contracts.md); the screening work defines the same
- * shape in lib/studies/partitions.ts, and the two are to become one.
- */
-export const partitionSchema = z
-  .object({
-    sex: z.enum(["F", "M"], "sex is F or M.").optional(),
-    ageFrom: z.number("ageFrom is an age in years.").min(0, "ageFrom is an age in years from 0.").max(130, "ageFrom is at most 130 years.").optional(),
-    ageTo: z.number("ageTo is an age in years.").gt(0, "ageTo is an age in years above 0.").max(130, "ageTo is at most 130 years.").optional(),
-  })
-  .strict()
-  .refine((p) => p.ageFrom === undefined || p.ageTo === undefined || p.ageFrom < p.ageTo, {
-    message: "ageFrom must be below ageTo (the band is [ageFrom, ageTo) in years).",
-    path: ["ageTo"],
-  });
-
-export type Partition = z.output<typeof partitionSchema>;
+export type { Partition };
 
 /** The partition as the API answers it: every field present, null for no restriction. */
 export interface PartitionOut {
@@ -33,12 +16,18 @@ export function partitionOut(p: { sex?: string | null; ageFrom?: number | null; 
   return { sex: (p.sex ?? null) as "F" | "M" | null, ageFrom: p.ageFrom ?? null, ageTo: p.ageTo ?? null };
 }
 
-/** Reads "female 18 to 65 years" style labels for messages and exports. */
+/** The partition with only its given fields, as lib/studies/partitions.ts takes it. */
+export function partitionOf(p: PartitionOut): Partition {
+  const out: Partition = {};
+  if (p.sex !== null) out.sex = p.sex;
+  if (p.ageFrom !== null) out.ageFrom = p.ageFrom;
+  if (p.ageTo !== null) out.ageTo = p.ageTo;
+  return out;
+}
+
+/** A partition in words (lib/studies/partitions.ts), from the answer's shape. */
 export function partitionLabel(p: PartitionOut): string {
-  const sex = p.sex === "F" ? "female" : p.sex === "M" ? "male" : "both sexes";
-  if (p.ageFrom === null && p.ageTo === null) return `${sex}, all ages`;
-  if (p.ageTo === null) return `${sex}, ${p.ageFrom} years and over`;
-  return `${sex}, ${p.ageFrom ?? 0} to under ${p.ageTo} years`;
+  return labelOf(partitionOf(p));
 }
 
 /** POST /api/v1/studies/{id}/estimates. */

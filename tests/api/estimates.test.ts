@@ -180,11 +180,11 @@ describe("POST /api/v1/studies/{id}/estimates", () => {
 
   const refusals: [string, () => string, unknown, number, string][] = [
     ["a partition that holds no values", () => studyId, { partition: { ageFrom: 100, ageTo: 110 } }, 422,
-      "The partition (both sexes, 100 to under 110 years) holds no donor results without an exclusion in effect: there is nothing to estimate."],
+      "The partition (age 100 to under 110) holds no donor results without an exclusion in effect: there is nothing to estimate."],
     ["an unknown outlier screen", () => studyId, { outliers: "grubbs" }, 422, "outliers: outliers is one of none, dixon, tukey, horn."],
     ["a seed that is not whole", () => studyId, { seed: 1.5 }, 422, "seed: seed is a whole number."],
     ["an age band the wrong way round", () => studyId, { partition: { ageFrom: 50, ageTo: 20 } }, 422,
-      "partition.ageTo: ageFrom must be below ageTo (the band is [ageFrom, ageTo) in years)."],
+      "partition.ageTo: ageFrom must be below ageTo (the range is [ageFrom, ageTo))."],
     ["a sex other than F or M", () => studyId, { partition: { sex: "X" } }, 422, "partition.sex: sex is F or M."],
     ["an unknown study", () => "00000000-0000-4000-8000-000000000000", {}, 404, "There is no study with the id 00000000-0000-4000-8000-000000000000."],
   ];

@@ -157,9 +157,9 @@ describe("POST /api/v1/interval-versions", () => {
     ["an unknown estimate", () => ({ partitions: [{ estimate: "00000000-0000-4000-8000-000000000000", method: "parametric" }] }),
       `partitions.0.estimate: there is no estimate with the id 00000000-0000-4000-8000-000000000000 in the study STUDY.`],
     ["overlapping partitions", () => ({ partitions: [{ estimate: est.women.id, method: "parametric" }, { estimate: est.all.id, method: "parametric" }] }),
-      "partitions.0 (female, all ages) and partitions.1 (both sexes, all ages) overlap: each patient must fall in one partition only."],
+      "partitions.0 (F) and partitions.1 (All donors) overlap: each patient must fall in one partition only."],
     ["the same estimate twice", () => ({ partitions: [{ estimate: est.men.id, method: "parametric" }, { estimate: est.men.id, method: "robust" }] }),
-      "partitions.0 (male, all ages) and partitions.1 (male, all ages) overlap: each patient must fall in one partition only."],
+      "partitions.0 (M) and partitions.1 (M) overlap: each patient must fall in one partition only."],
     ["a method without limits in that estimate", () => ({ partitions: [{ estimate: est.all.id, method: "robust" }] }),
       `partitions.0.method: the estimate ALL has no robust limits; choose a method that gave both limits.`],
     ["an unknown method", () => ({ partitions: [{ estimate: est.all.id, method: "bayesian" }] }), "partitions.0.method: method is nonparametric, parametric or robust."],
@@ -248,7 +248,7 @@ describe("GET and PATCH /api/v1/interval-versions", () => {
     });
     expect(overlap.status).toBe(422);
     expect((await overlap.json()).detail).toBe(
-      "partitions.0 (both sexes, all ages) and partitions.1 (both sexes, 18 to under 50 years) overlap: each patient must fall in one partition only.",
+      "partitions.0 (All donors) and partitions.1 (age 18 to under 50) overlap: each patient must fall in one partition only.",
     );
     expect(await counts()).toEqual(before);
   });
