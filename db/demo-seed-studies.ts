@@ -6,14 +6,17 @@
  */
 import { createHash } from "node:crypto";
 import { and, asc, count, eq, inArray } from "drizzle-orm";
+import { partitionsOfPlan } from "@/lib/studies/partitions";
 import { convertUnit } from "@/lib/units/ucum";
 import { checkUpload } from "@/lib/uploads";
 import type { Database } from "./client";
 import { cohortCsv } from "./demo-donors";
 import { DEMO_STAGES, DEMO_STUDIES, type DemoStage, type DemoStudy } from "./demo-studies";
 import { findAnalyteByCode } from "./queries/analytes";
-import type { Actor } from "./queries/audit";
+import { recordAuditEvent, type Actor } from "./queries/audit";
+import { createEstimate } from "./queries/estimates";
 import { createExclusions } from "./queries/exclusions";
+import { createIntervalVersion } from "./queries/interval-versions";
 import { createOutlierDecision } from "./queries/outlier-decisions";
 import { createPartitionAssessment } from "./queries/partition-assessments";
 import { screenEvidenceOf, screenStudy } from "./queries/screens";
@@ -23,6 +26,8 @@ import {
   analytes,
   auditEvents,
   donorResults,
+  estimates,
+  intervalVersions,
   partitionAssessments,
   studies,
   uploads,
@@ -147,6 +152,81 @@ async function ensurePartitioned(database: Database, spec: DemoStudy, study: Stu
   return added;
 }
 
+/** One estimate per partition of the plan (Horn's screen listed, auto scale, seed 1), unless the study has estimates. */
+async function ensureEstimated(database: Database, spec: DemoStudy, study: Study, actor: Actor): Promise<{ ids: string[]; added: boolean }> {
+  const existing = await database.select({ id: estimates.id }).from(estimates).where(eq(estimates.studyId, study.id)).orderBy(asc(estimates.createdAt), asc(estimates.id));
+  if (existing.length > 0) return { ids: existing.map((e) => e.id), added: false };
+  const ids: string[] = [];
+  for (const partition of partitionsOfPlan(spec.plan)) {
+    const estimate = await createEstimate(database, { studyId: study.id, input: { partition, outliers: "horn", transform: "auto", seed: 1 }, actor });
+    ids.push(estimate.id);
+  }
+  return { ids, added: true };
+}
+
+/** The draft interval version from the study's estimates with the chosen method, unless the study has a version. */
+async function ensureDraft(
+  database: Database,
+  spec: DemoStudy,
+  study: Study,
+  estimateIds: string[],
+  actor: Actor,
+): Promise<{ id: string; state: string; added: boolean }> {
+  const [existing] = await database
+    .select({ id: intervalVersions.id, state: intervalVersions.state })
+    .from(intervalVersions)
+    .where(eq(intervalVersions.studyId, study.id))
+    .limit(1);
+  if (existing) return { ...existing, added: false };
+  const version = await createIntervalVersion(database, {
+    input: {
+      analyte: spec.analyte,
+      study: study.id,
+      partitions: estimateIds.map((estimate) => ({ estimate, method: spec.chosenMethod })),
+      note: spec.note,
+    },
+    actor,
+  });
+  return { id: version.id, state: version.state, added: true };
+}
+
+/**
+ * Moves a demo version on to "awaiting_signoff" (submitted by the scientist) or "in_force" (as
+ * signed before Bellwether kept signatures: the demo's versions in force carry no electronic
+ * signature, and the audit trail says so). Sign-off itself belongs to the director's workflow.
+ */
+async function advanceVersion(
+  database: Database,
+  { versionId, to, spec, actors }: { versionId: string; to: "awaiting_signoff" | "in_force"; spec: DemoStudy; actors: DemoActors },
+): Promise<void> {
+  await database.transaction(async (tx) => {
+    const [version] = await tx.select().from(intervalVersions).where(eq(intervalVersions.id, versionId)).for("update");
+    const submittedAt = to === "in_force" ? new Date(`${spec.effectiveFrom}T00:00:00Z`) : new Date();
+    await tx
+      .update(intervalVersions)
+      .set({
+        state: to,
+        submittedBy: actors.scientist.id,
+        submittedAt,
+        effectiveFrom: to === "in_force" ? new Date(`${spec.effectiveFrom}T00:00:00Z`) : null,
+        updatedBy: actors.scientist.id,
+        updatedAt: new Date(),
+      })
+      .where(eq(intervalVersions.id, versionId));
+    await recordAuditEvent(tx, {
+      actor: to === "in_force" ? actors.director : actors.scientist,
+      action: to === "in_force" ? "demo.version-in-force" : "interval-version.submitted",
+      entityType: "interval-version",
+      entityId: versionId,
+      summary:
+        to === "in_force"
+          ? `Demo: version ${version.number} of ${spec.analyte} in force from ${spec.effectiveFrom} (signed off before Bellwether; no electronic signature)`
+          : `Submitted version ${version.number} of ${spec.analyte} for sign-off`,
+      details: { from: version.state, to, effectiveFrom: to === "in_force" ? spec.effectiveFrom : null },
+    });
+  });
+}
+
 /** Seeds every demo study as far as its stage; returns whether it added anything. */
 export async function seedDemoStudies(database: Database, actors: DemoActors): Promise<boolean> {
   let added = false;
@@ -156,6 +236,17 @@ export async function seedDemoStudies(database: Database, actors: DemoActors): P
     added ||= opened || uploaded;
     if (reached(spec, "screened")) added = (await ensureScreened(database, spec, study, actors.scientist)) || added;
     if (reached(spec, "partitioned")) added = (await ensurePartitioned(database, spec, study, actors.scientist)) || added;
+    if (!reached(spec, "estimated")) continue;
+    const estimated = await ensureEstimated(database, spec, study, actors.scientist);
+    added ||= estimated.added;
+    if (!reached(spec, "draft")) continue;
+    const version = await ensureDraft(database, spec, study, estimated.ids, actors.scientist);
+    added ||= version.added;
+    const target = spec.stage === "in_force" || spec.stage === "awaiting_signoff" ? spec.stage : null;
+    if (target && version.state === "draft") {
+      await advanceVersion(database, { versionId: version.id, to: target, spec, actors });
+      added = true;
+    }
   }
   return added;
 }

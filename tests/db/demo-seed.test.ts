@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { migrateDatabase } from "@/db/migrate";
 import * as schema from "@/db/schema";
 import { seedDemo } from "@/db/seed";
+import { createScorer, scoringPartitionSchema } from "@/lib/scoring";
 import { createScratchDatabase, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
 
 /** Every table the seed may write, to show that a second run adds nothing. */
@@ -104,6 +105,47 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     ]);
   });
 
+  it("has one study at each stage, each stage holding the ones before it", async () => {
+    const studies = await rows<{
+      title: string;
+      screened: number;
+      assessments: number;
+      plan: unknown;
+      estimates: number;
+      version: string | null;
+    }>(`
+      SELECT s.title,
+        (SELECT count(*)::int FROM audit_events a WHERE a.action = 'study.screened' AND a.entity_id = s.id::text) AS screened,
+        (SELECT count(*)::int FROM partition_assessments p WHERE p.study_id = s.id) AS assessments,
+        s.partition_plan AS plan,
+        (SELECT count(*)::int FROM estimates e WHERE e.study_id = s.id) AS estimates,
+        (SELECT v.state::text FROM interval_versions v WHERE v.study_id = s.id) AS version
+      FROM studies s`);
+    const byTitle = Object.fromEntries(studies.map(({ title, ...rest }) => [title, rest]));
+    const bySex = { sex: true, ageBands: null };
+    // db/demo-studies.ts written out: Horn's screen once per study from "screened" on; partitions
+    // assessed where the analyte differs by sex or age; one estimate per partition; the version's state.
+    expect(byTitle).toEqual({
+      "Sodium: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "Potassium: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "Calcium: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "Glucose: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "Urea: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "ALT: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "TSH: Harrowmere reference interval study 2024": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "in_force" },
+      "Creatinine: Harrowmere reference interval study 2024": { screened: 1, assessments: 1, plan: bySex, estimates: 2, version: "in_force" },
+      "Haemoglobin: Harrowmere reference interval study 2024": { screened: 1, assessments: 1, plan: bySex, estimates: 2, version: "in_force" },
+      "Alkaline phosphatase: children and adults 2025-26": {
+        screened: 1, assessments: 1, plan: { sex: false, ageBands: [[0, 18], [18, 120]] }, estimates: 2, version: "awaiting_signoff",
+      },
+      "Sodium: verification after the AX-400 electrode change": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "draft" },
+      "ALT: 2026 re-establishment with pyridoxal phosphate": { screened: 1, assessments: 0, plan: null, estimates: 1, version: null },
+      "Haemoglobin: Hemavue 7 introduction": { screened: 1, assessments: 1, plan: bySex, estimates: 0, version: null },
+      "Potassium: 2026 study with the new tube supplier": { screened: 1, assessments: 0, plan: null, estimates: 0, version: null },
+      "Urea: second analyser (AX-400 #2) comparison": { screened: 0, assessments: 0, plan: null, estimates: 0, version: null },
+    });
+  });
+
   it("keeps the screened study's exclusions with their reasons: four confirmed outliers and a manual exclusion of two", async () => {
     const excluded = await rows<{ donor_code: string; source: string; rule: string | null; reason: string; decision: string | null }>(`
       SELECT d.donor_code, e.source, e.rule, e.reason, o.decision
@@ -127,6 +169,61 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     expect(kept).toEqual([
       { reason: "Reviewed against the sample log: no pre-analytical error, within what healthy donors show. Kept.", decided_by: "scientist@harrowmere.example" },
     ]);
+  });
+
+  it("has a draft, a version awaiting sign-off and nine in force, numbered per analyte", async () => {
+    const versions = await rows<{ code: string; number: number; state: string; effective: string | null; partitions: number }>(`
+      SELECT a.code, v.number, v.state::text AS state, to_char(v.effective_from AT TIME ZONE 'UTC', 'YYYY-MM-DD') AS effective,
+        (SELECT count(*)::int FROM interval_partitions p WHERE p.version_id = v.id) AS partitions
+      FROM interval_versions v JOIN analytes a ON a.id = v.analyte_id ORDER BY a.code, v.number`);
+    expect(versions).toEqual([
+      { code: "ALP", number: 1, state: "awaiting_signoff", effective: null, partitions: 2 },
+      { code: "ALT", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
+      { code: "CA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
+      { code: "CREA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 2 },
+      { code: "GLU", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
+      { code: "HGB", number: 1, state: "in_force", effective: "2025-01-06", partitions: 2 },
+      { code: "K", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
+      { code: "NA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
+      { code: "NA", number: 2, state: "draft", effective: null, partitions: 1 },
+      { code: "TSH", number: 1, state: "in_force", effective: "2025-02-03", partitions: 1 },
+      { code: "UREA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
+    ]);
+  });
+
+  it("gives every partition in force limits, 90% CIs and a scoring model that puts the limits at percentiles 2.5 and 97.5", async () => {
+    const partitions = await rows<{
+      code: string; unit: string; decimals: number; method: string; n: number; low: number; high: number;
+      low_ci_lower: number; low_ci_upper: number; high_ci_lower: number; high_ci_upper: number; model: unknown; estimate_id: string | null;
+    }>(`
+      SELECT a.code, v.unit, v.decimals, p.method, p.n, p.low, p.high, p.low_ci_lower, p.low_ci_upper, p.high_ci_lower, p.high_ci_upper,
+        p.model, p.estimate_id
+      FROM interval_partitions p JOIN interval_versions v ON v.id = p.version_id JOIN analytes a ON a.id = v.analyte_id
+      WHERE v.state = 'in_force'`);
+    expect(partitions).toHaveLength(11);
+    for (const p of partitions) {
+      const label = `${p.code} ${p.method}`;
+      expect(p.estimate_id, label).not.toBeNull();
+      expect(p.low_ci_lower, label).toBeLessThanOrEqual(p.low);
+      expect(p.low_ci_upper, label).toBeGreaterThanOrEqual(p.low);
+      expect(p.high_ci_lower, label).toBeLessThanOrEqual(p.high);
+      expect(p.high_ci_upper, label).toBeGreaterThanOrEqual(p.high);
+      const partition = scoringPartitionSchema.parse({ low: p.low, high: p.high, unit: p.unit, decimals: p.decimals, model: p.model, n: p.n });
+      const score = createScorer(partition);
+      // The definition of a 95% reference interval (CLSI EP28-A3c): its limits are the 2.5th and
+      // 97.5th percentiles; 1e-6 allows for floating point in the transforms.
+      expect(score(p.low).percentile, label).toBeCloseTo(2.5, 6);
+      expect(score(p.high).percentile, label).toBeCloseTo(97.5, 6);
+    }
+    // The methods chosen in db/demo-studies.ts: parametric for calcium, ALT and haemoglobin (a
+    // gaussian model), nonparametric elsewhere (the empirical model of the reference values).
+    const kinds = Object.fromEntries(
+      [...new Set(partitions.map((p) => p.code))].sort().map((code) => [code, [...new Set(partitions.filter((p) => p.code === code).map((p) => (p.model as { kind: string }).kind))]]),
+    );
+    expect(kinds).toEqual({
+      ALT: ["gaussian"], CA: ["gaussian"], CREA: ["empirical"], GLU: ["empirical"], HGB: ["gaussian"],
+      K: ["empirical"], NA: ["empirical"], TSH: ["empirical"], UREA: ["empirical"],
+    });
   });
 
   it("changes nothing when it runs again", async () => {
