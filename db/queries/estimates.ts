@@ -114,8 +114,8 @@ function documentOf(row: Estimate): EstimateDocument {
 
 /**
  * Estimates one partition of a study and stores the document: the engine with screening
- * "propose" (the screen lists proposals under `proposed` and excludes nothing; the scientist's
- * confirmed exclusions are already left out), stamped with the engine's identity as the command
+ * "propose" when a screen is named (the screen lists proposals under `proposed` and excludes
+ * nothing; the scientist's confirmed exclusions are already left out), stamped with the engine's identity as the command
  * line stamps it. 409 when the study is closed, 422 when the partition holds no values.
  */
 export async function createEstimate(
@@ -137,8 +137,12 @@ export async function createEstimate(
       );
     }
     const options = { outliers: input.outliers, transform: input.transform, seed: input.seed };
+    // A named screen only proposes. With no screen there is nothing to propose or apply, and the
+    // command line's own default mode ("apply") is recorded, so that the document equals what
+    // `bellwether estimate FILE --outliers none` prints on the same values, field for field.
+    const screening = input.outliers === "none" ? "apply" : "propose";
     const document = stampEngine(
-      estimateReferenceInterval(data.values, { ...options, screening: "propose" }),
+      estimateReferenceInterval(data.values, { ...options, screening }),
       engineIdentity(),
     );
     const [row] = await tx
