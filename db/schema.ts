@@ -1,5 +1,6 @@
 import { relations, sql } from "drizzle-orm";
 import {
+  type AnyPgColumn,
   bigint,
   bigserial,
   boolean,
@@ -441,6 +442,15 @@ export const intervalVersions = pgTable(
     submittedAt: timestamp("submitted_at", { withTimezone: true }),
     effectiveFrom: timestamp("effective_from", { withTimezone: true }),
     effectiveTo: timestamp("effective_to", { withTimezone: true }),
+    /** While in force: when the version is next due for review (its analyte's review period). */
+    reviewBy: timestamp("review_by", { withTimezone: true }),
+    returnedBy: uuid("returned_by").references(() => users.id, { onDelete: "restrict" }),
+    returnedAt: timestamp("returned_at", { withTimezone: true }),
+    withdrawnBy: uuid("withdrawn_by").references(() => users.id, { onDelete: "restrict" }),
+    withdrawnAt: timestamp("withdrawn_at", { withTimezone: true }),
+    withdrawnReason: text("withdrawn_reason"),
+    /** For a version drafted from an accepted adoption check rather than a study. */
+    adoptionCheckId: uuid("adoption_check_id").references((): AnyPgColumn => adoptionChecks.id, { onDelete: "restrict" }),
   },
   (t) => [
     uniqueIndex("interval_versions_number_unique").on(t.analyteId, t.number),
@@ -454,6 +464,10 @@ export const intervalVersions = pgTable(
   ],
 );
 
+/**
+ * The methods of an estimate a partition may take its limits from. The table also allows
+ * "adopted": limits taken from an accepted adoption check (scored by zlog, or a flag only).
+ */
 export const PARTITION_METHODS = ["nonparametric", "parametric", "robust"] as const;
 
 /**
@@ -492,8 +506,132 @@ export const intervalPartitions = pgTable(
     ),
     check("interval_partitions_has_limit", sql`${t.low} IS NOT NULL OR ${t.high} IS NOT NULL`),
     check("interval_partitions_limit_order", sql`${t.low} IS NULL OR ${t.high} IS NULL OR ${t.low} <= ${t.high}`),
-    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust')`),
+    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust', 'adopted')`),
     check("interval_partitions_n_positive", sql`${t.n} > 0`),
+  ],
+);
+
+export const SIGNATURE_MEANINGS = ["approved_for_clinical_use", "reviewed_still_valid", "withdrawn_from_use"] as const;
+export const signatureMeaningEnum = pgEnum("signature_meaning", SIGNATURE_MEANINGS);
+
+/**
+ * An electronic signature on an interval version (21 CFR Part 11 as the design target,
+ * METHODS.md §12): who, when, what it means, and the SHA-256 of the version's canonical content
+ * (RFC 8785), which is kept beside it so that anyone can recompute the hash. Append-only: the
+ * app role may only SELECT and INSERT (db/grants.sql).
+ */
+export const signatures = pgTable(
+  "signatures",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => intervalVersions.id, { onDelete: "restrict" }),
+    signerId: uuid("signer_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    /** The signer's printed name at the moment of signing (§11.50). */
+    signerName: text("signer_name").notNull(),
+    signerRole: roleEnum("signer_role").notNull(),
+    meaning: signatureMeaningEnum("meaning").notNull(),
+    comment: text("comment"),
+    /** The RFC 8785 serialisation that was hashed. */
+    canonicalContent: text("canonical_content").notNull(),
+    contentSha256: text("content_sha256").notNull(),
+    signedAt: timestamp("signed_at", { withTimezone: true }).notNull().defaultNow(),
+    /** The next-auth session the signature was made in (first signing asks for e-mail too). */
+    sessionId: text("session_id"),
+  },
+  (t) => [
+    index("signatures_version_idx").on(t.versionId, t.signedAt),
+    index("signatures_session_idx").on(t.sessionId, t.signerId),
+    check("signatures_sha256_format", sql`${t.contentSha256} ~ '^[0-9a-f]{64}$'`),
+  ],
+);
+
+/**
+ * Failed signing attempts of one account (wrong password or e-mail at a signature). Past the
+ * limit signing is locked for the account and the admins are alerted.
+ */
+export const signingFailures = pgTable("signing_failures", {
+  userId: uuid("user_id")
+    .primaryKey()
+    .references(() => users.id, { onDelete: "restrict" }),
+  failures: integer("failures").notNull(),
+  lastFailureAt: timestamp("last_failure_at", { withTimezone: true }).notNull(),
+  lockedAt: timestamp("locked_at", { withTimezone: true }),
+});
+
+export const OUTBOX_STATUSES = ["queued", "sent", "failed"] as const;
+export const outboxStatusEnum = pgEnum("outbox_status", OUTBOX_STATUSES);
+
+/**
+ * E-mail queued in the same transaction as the change it reports, delivered afterwards through
+ * the provider with retries: a provider failure never loses the change or the message.
+ */
+export const outbox = pgTable(
+  "outbox",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    /** What the message is about: "version.submitted", "version.returned", "signing.locked", … */
+    kind: text("kind").notNull(),
+    recipients: jsonb("recipients").$type<string[]>().notNull(),
+    subject: text("subject").notNull(),
+    text: text("text").notNull(),
+    html: text("html"),
+    entityType: text("entity_type"),
+    entityId: text("entity_id"),
+    status: outboxStatusEnum("status").notNull().default("queued"),
+    attempts: integer("attempts").notNull().default(0),
+    nextAttemptAt: timestamp("next_attempt_at", { withTimezone: true }).notNull().defaultNow(),
+    lastError: text("last_error"),
+    providerId: text("provider_id"),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    sentAt: timestamp("sent_at", { withTimezone: true }),
+  },
+  (t) => [
+    index("outbox_due_idx").on(t.status, t.nextAttemptAt),
+    index("outbox_created_idx").on(t.createdAt),
+    index("outbox_entity_idx").on(t.entityType, t.entityId),
+  ],
+);
+
+export const ADOPTION_DECISIONS = ["accepted", "second_set_needed", "not_verified"] as const;
+export const adoptionDecisionEnum = pgEnum("adoption_decision", ADOPTION_DECISIONS);
+
+/**
+ * A verification of an interval the laboratory did not establish itself (CLSI EP28-A3c, 20
+ * local healthy-donor values, a second 20 when the first set is borderline). The values are kept
+ * as the check's evidence; the policy's thresholds are stored with their source.
+ */
+export const adoptionChecks = pgTable(
+  "adoption_checks",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    analyteId: uuid("analyte_id")
+      .notNull()
+      .references(() => analytes.id, { onDelete: "restrict" }),
+    sex: text("sex"),
+    lower: doublePrecision("lower"),
+    upper: doublePrecision("upper"),
+    /** Where the interval comes from: a manufacturer's insert, a publication. */
+    source: text("source").notNull(),
+    firstValues: jsonb("first_values").$type<number[]>().notNull(),
+    secondValues: jsonb("second_values").$type<number[]>(),
+    /** The thresholds applied and their source. */
+    policy: jsonb("policy").$type<Record<string, unknown>>().notNull(),
+    decision: adoptionDecisionEnum("decision").notNull(),
+    /** The counts and the binomial reasoning of each set. */
+    reasoning: jsonb("reasoning").$type<Record<string, unknown>>().notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("adoption_checks_analyte_idx").on(t.analyteId, t.createdAt),
+    check("adoption_checks_sex", sql`${t.sex} IS NULL OR ${t.sex} IN ('F', 'M')`),
+    check("adoption_checks_has_limit", sql`${t.lower} IS NOT NULL OR ${t.upper} IS NOT NULL`),
+    check("adoption_checks_limit_order", sql`${t.lower} IS NULL OR ${t.upper} IS NULL OR ${t.lower} < ${t.upper}`),
   ],
 );
 
@@ -520,3 +658,7 @@ export type Estimate = typeof estimates.$inferSelect;
 export type IntervalVersion = typeof intervalVersions.$inferSelect;
 export type IntervalPartition = typeof intervalPartitions.$inferSelect;
 export type VersionState = (typeof VERSION_STATES)[number];
+export type Signature = typeof signatures.$inferSelect;
+export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
+export type OutboxMessage = typeof outbox.$inferSelect;
+export type AdoptionCheck = typeof adoptionChecks.$inferSelect;
