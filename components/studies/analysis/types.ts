@@ -255,3 +255,5 @@ export interface IntervalVersion {
   createdBy: { id: string; name: string } | null;
   partitions: VersionPartition[];
 }
+
+export type LimitsLike = LimitsWithCi;
