@@ -5,7 +5,7 @@ import useSWR from "swr";
 import { Button } from "@/components/ui/button";
 import { formatCi, formatIsoDate, formatValue } from "@/lib/format";
 import { ApiError, fetchJson, sendJson } from "./api";
-import { AnalysisSection, DoneNotice, EmptyState, ErrorNotice, inputClass, labelClass, SectionStatus, Skeleton, tableClass, tdClass, thClass } from "./feedback";
+import { AnalysisSection, DoneNotice, EmptyState, ErrorNotice, inputClass, labelClass, type SectionState, Skeleton, tableClass, tdClass, thClass } from "./feedback";
 import { partitionKey, partitionLabel } from "./partitions";
 import type { EstimateListItem, EstimateMethod, IntervalVersion, Partition, SectionAnalyte, SectionProps, VersionPartition } from "./types";
 import { hasLimits, METHOD_WORDS, useEstimates } from "./use-estimates";
@@ -40,20 +40,25 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
   const drafts = useSWR<{ items: IntervalVersion[] }>(versionsKey, fetchJson);
   const [editing, setEditing] = useState<IntervalVersion | null>(null);
   const [created, setCreated] = useState<IntervalVersion | null>(null);
+  // The page may pass the analyte without its critical limits: the catalogue has them.
+  const needCatalogue = analyte.criticalLow === undefined || analyte.criticalHigh === undefined;
+  const catalogue = useSWR<SectionAnalyte>(needCatalogue ? `/api/v1/analytes/${encodeURIComponent(analyte.code)}` : null, fetchJson);
+  const withLimits: SectionAnalyte = needCatalogue
+    ? { ...analyte, criticalLow: catalogue.data?.criticalLow ?? null, criticalHigh: catalogue.data?.criticalHigh ?? null }
+    : analyte;
+  const catalogueSettled = !needCatalogue || catalogue.data !== undefined || catalogue.error !== undefined;
   const ready = partitions.filter((p) => latest.has(partitionKey(p)));
   const missing = partitions.filter((p) => !latest.has(partitionKey(p)));
   const items = drafts.data?.items ?? [];
   const ofThisStudy = items.filter((v) => v.studyId === study.id);
 
-  const status = (
-    <SectionStatus
-      done={ofThisStudy.length > 0 ? `${ofThisStudy.length} draft version${ofThisStudy.length === 1 ? "" : "s"} from this study.` : "No draft version from this study yet."}
-      next={missing.length > 0 ? "estimate every partition first." : ofThisStudy.length > 0 ? "submit the draft for sign-off when it is right." : "pick a method per partition and create the draft."}
-    />
-  );
+  const state: SectionState = {
+    done: ofThisStudy.length > 0 ? `${ofThisStudy.length} draft version${ofThisStudy.length === 1 ? "" : "s"} from this study.` : "No draft version from this study yet.",
+    next: missing.length > 0 ? "Estimate every partition in step 4 first." : ofThisStudy.length > 0 ? "Check the draft, revise it if needed, then submit it for sign-off." : "Pick a method per partition and create the draft.",
+  };
 
   return (
-    <AnalysisSection id="draft" title="Draft interval version" status={status}>
+    <AnalysisSection id="draft" title="Draft interval version" step={5} state={state}>
       {estimates.isLoading ? <Skeleton lines={3} /> : null}
       {estimates.error ? <ErrorNotice error={estimates.error} action="The estimates could not be loaded" /> : null}
       {estimates.data && ready.length === 0 ? (
@@ -64,11 +69,12 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
           </p>
         </EmptyState>
       ) : null}
-      {estimates.data && ready.length > 0 ? (
+      {estimates.data && ready.length > 0 && !catalogueSettled ? <Skeleton lines={3} label="Loading the analyte's critical limits" /> : null}
+      {estimates.data && ready.length > 0 && catalogueSettled ? (
         <DraftForm
           key={editing?.id ?? "new"}
           studyId={study.id}
-          analyte={analyte}
+          analyte={withLimits}
           partitions={partitions}
           latest={latest}
           editing={editing}

@@ -8,7 +8,7 @@ import { QqChart, scaleWords } from "@/components/charts/qq-chart";
 import { Button } from "@/components/ui/button";
 import { formatCi, formatIsoDate, formatP, formatValue } from "@/lib/format";
 import { fetchJson, sendJson, studyApi } from "./api";
-import { AnalysisSection, EmptyState, ErrorNotice, inputClass, labelClass, SectionStatus, Skeleton, tableClass, tdClass, thClass } from "./feedback";
+import { AnalysisSection, EmptyState, ErrorNotice, inputClass, labelClass, type SectionState, Skeleton, tableClass, tdClass, thClass } from "./feedback";
 import { cleanPartition, partitionKey, partitionLabel } from "./partitions";
 import type {
   EstimateChartData,
@@ -45,14 +45,12 @@ export function EstimatesPanel({ study: initial, analyte }: SectionProps) {
   const compared = partitions
     .map((p) => ({ p, e: latest.get(partitionKey(p)) }))
     .filter((x): x is { p: Partition; e: EstimateListItem } => !!x.e);
-  const status = (
-    <SectionStatus
-      done={`${done} of ${partitions.length} partition${partitions.length === 1 ? "" : "s"} estimated${plan ? "" : " (no partitions chosen: one interval for all donors)"}.`}
-      next={done < partitions.length ? "estimate each partition." : "draft an interval version below."}
-    />
-  );
+  const state: SectionState = {
+    done: `${done} of ${partitions.length} partition${partitions.length === 1 ? "" : "s"} estimated${plan ? "" : " (no partitions chosen: one interval for all donors)"}.`,
+    next: done < partitions.length ? "Estimate each partition with the options below." : "Draft an interval version in step 5.",
+  };
   return (
-    <AnalysisSection id="estimates" title="Estimates" status={status}>
+    <AnalysisSection id="estimates" title="Estimates" step={4} state={state}>
       {estimates.error ? <ErrorNotice error={estimates.error} action="The estimates could not be loaded" /> : null}
       {estimates.isLoading ? <Skeleton chart lines={4} label="Loading the estimates" /> : null}
       {estimates.data

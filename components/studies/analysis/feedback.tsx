@@ -47,23 +47,54 @@ export function EmptyState({ title, children, testId }: { title: string; childre
   );
 }
 
-/** The one-line state of a section: what is done and what comes next. */
-export function SectionStatus({ done, next }: { done: ReactNode; next?: ReactNode }) {
-  return (
-    <p className="text-sm text-ink-700">
-      {done}
-      {next ? <span className="text-ink-500"> Next: {next}</span> : null}
-    </p>
-  );
+/** What a section has done and what comes next, for the section header. */
+export interface SectionState {
+  done?: ReactNode;
+  next?: ReactNode;
 }
 
-/** A section of the study page: its heading (for the page outline) and its body. */
-export function AnalysisSection({ id, title, status, children }: { id: string; title: string; status?: ReactNode; children: ReactNode }) {
+/**
+ * A step of the study page, drawn like the page's other steps: its anchor, numbered heading,
+ * "Done" and "Next" lines, then the work.
+ */
+export function AnalysisSection({
+  id,
+  step,
+  title,
+  state,
+  children,
+}: {
+  id: string;
+  step: number;
+  title: string;
+  state: SectionState;
+  children: ReactNode;
+}) {
   return (
-    <section id={id} aria-labelledby={`${id}-heading`} className="min-w-0 rounded-lg border border-ink-200 bg-white">
-      <header className="space-y-1 border-b border-ink-100 px-4 py-3">
-        <h2 id={`${id}-heading`}>{title}</h2>
-        {status}
+    <section id={id} aria-labelledby={`${id}-heading`} className="min-w-0 scroll-mt-4 rounded-lg border border-ink-200 bg-white">
+      <header className="border-b border-ink-100 px-4 py-3">
+        <h2 id={`${id}-heading`} className="flex items-baseline gap-2">
+          <span className="text-sm font-medium text-ink-400">{step}.</span>
+          {title}
+        </h2>
+        <dl className="mt-1.5 grid gap-x-4 gap-y-1 text-sm sm:grid-cols-[auto_1fr]">
+          {state.done ? (
+            <>
+              <dt className="font-medium text-ink-600">Done</dt>
+              <dd className="text-ink-800" data-testid={`${id}-done`}>
+                {state.done}
+              </dd>
+            </>
+          ) : null}
+          {state.next ? (
+            <>
+              <dt className="font-medium text-ink-600">Next</dt>
+              <dd className="text-ink-800" data-testid={`${id}-next`}>
+                {state.next}
+              </dd>
+            </>
+          ) : null}
+        </dl>
       </header>
       <div className="space-y-5 p-4">{children}</div>
     </section>

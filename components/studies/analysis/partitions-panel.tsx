@@ -12,7 +12,7 @@ import {
   ErrorNotice,
   inputClass,
   labelClass,
-  SectionStatus,
+  type SectionState,
   Skeleton,
   tableClass,
   tdClass,
@@ -77,21 +77,18 @@ export function PartitionsPanel({ study: initial, analyte }: SectionProps) {
   const latestSex = items.find((a) => a.by === "sex");
   const latestAge = items.find((a) => a.by === "age");
 
-  const status = (
-    <SectionStatus
-      done={
+  const state: SectionState = {
+    done:
         plan
           ? `Partitions chosen: ${planWords(plan)}.`
           : items.length > 0
             ? `${items.length} assessment${items.length === 1 ? "" : "s"} run; no partitions chosen yet (one interval for all donors).`
-            : "No assessment run yet."
-      }
-      next={plan ? "estimate each partition below." : items.length > 0 ? "choose the partitions." : "assess by sex, then by age bands if the population spans ages."}
-    />
-  );
+            : "No assessment run yet.",
+    next: plan ? "Estimate each partition in step 4." : items.length > 0 ? "Choose the partitions." : "Assess by sex, then by age bands if the donors span ages.",
+  };
 
   return (
-    <AnalysisSection id="partitions" title="Partitions" status={status}>
+    <AnalysisSection id="partitions" title="Partitions" step={3} state={state}>
       <div className="grid gap-4 lg:grid-cols-[auto_1fr] lg:items-end">
         <div>
           <Button type="button" onClick={() => assess("sex")} disabled={running !== null || closed}>

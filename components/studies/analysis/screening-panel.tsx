@@ -13,7 +13,7 @@ import {
   ErrorNotice,
   inputClass,
   labelClass,
-  SectionStatus,
+  type SectionState,
   Skeleton,
   tableClass,
   tdClass,
@@ -91,19 +91,16 @@ export function ScreeningPanel({ study, analyte }: SectionProps) {
 
   const excludedCount = exclusions.data?.items.length ?? 0;
   const decided = result?.proposals.filter((p) => p.decision).length ?? 0;
-  const status = (
-    <SectionStatus
-      done={
+  const state: SectionState = {
+    done:
         result
           ? `${RULE_WORDS[result.ruleApplied ?? result.rule]} screen of ${partitionLabel(result.partition)}: ${result.proposals.length} proposal${result.proposals.length === 1 ? "" : "s"}, ${decided} decided. ${excludedCount} exclusion${excludedCount === 1 ? "" : "s"} in effect.`
-          : `${excludedCount} exclusion${excludedCount === 1 ? "" : "s"} in effect; no screen run on this page yet.`
-      }
-      next={result ? (decided < result.proposals.length ? "decide on each proposal, with a reason." : "assess the partitions below.") : "run a screen."}
-    />
-  );
+          : `${excludedCount} exclusion${excludedCount === 1 ? "" : "s"} in effect; no screen run on this page yet.`,
+    next: result ? (decided < result.proposals.length ? "Decide on each proposal, with a reason." : "Assess the partitions in step 3.") : "Run a screen: Horn is the usual first choice.",
+  };
 
   return (
-    <AnalysisSection id="screening" title="Screening" status={status}>
+    <AnalysisSection id="screening" title="Screening" step={2} state={state}>
       <p className="max-w-3xl text-sm text-ink-600">
         A screen only proposes outliers: nothing is excluded by the screen itself. Each proposal stays in the data until you
         exclude it here with a reason; every decision is recorded and can be undone while the study is open.
