@@ -4,6 +4,13 @@ import { AppError } from "@/lib/api/errors";
 import type { Executor } from "../client";
 import { donorResults, estimates, exclusions } from "../schema";
 
+/**
+ * Whether an exclusion of the donor result is in effect. Written with qualified names: Drizzle
+ * leaves a single table's columns unqualified in a select list, where "id" would be the
+ * exclusion's own.
+ */
+const excludedNow = sql<boolean>`EXISTS (SELECT 1 FROM exclusions AS e WHERE e.donor_result_id = "donor_results"."id" AND e.undone_at IS NULL)`;
+
 export interface ChartPartition {
   sex?: "F" | "M";
   ageFrom?: number;
@@ -45,8 +52,7 @@ export async function partitionValues(
   executor: Executor,
   { studyId, partition }: { studyId: string; partition: ChartPartition },
 ): Promise<PartitionValues> {
-  const notExcluded = sql`NOT EXISTS (SELECT 1 FROM ${exclusions} WHERE ${exclusions.donorResultId} = ${donorResults.id} AND ${exclusions.undoneAt} IS NULL)`;
-  return valuesWhere(executor, [...partitionWhere(studyId, partition), notExcluded]);
+  return valuesWhere(executor, [...partitionWhere(studyId, partition), sql`NOT ${excludedNow}`]);
 }
 
 export interface EstimateValues extends PartitionValues {
@@ -96,7 +102,7 @@ export async function donorResultsByCode(
       sex: donorResults.sex,
       ageYears: donorResults.ageYears,
       value: donorResults.value,
-      excluded: sql<boolean>`EXISTS (SELECT 1 FROM ${exclusions} WHERE ${exclusions.donorResultId} = ${donorResults.id} AND ${exclusions.undoneAt} IS NULL)`,
+      excluded: excludedNow,
     })
     .from(donorResults)
     .where(and(eq(donorResults.studyId, studyId), inArray(donorResults.donorCode, codes)))
