@@ -71,7 +71,7 @@ describe("a scientist takes a study from donor results to a draft interval versi
     await proposal.getByRole("button", { name: "Exclude donor M017" }).click();
     await proposal.getByText("Excluded", { exact: true }).waitFor();
     const excluded = screening.getByRole("table", { name: "Exclusions in effect" });
-    await excluded.getByRole("cell", { name: "M017" }).waitFor();
+    await excluded.getByRole("cell", { name: "M017", exact: true }).waitFor();
     expect(await excluded.textContent()).toContain("Not fasting: the donor had eaten an hour before.");
     await shots(page, "analysis-02-outlier-excluded");
 

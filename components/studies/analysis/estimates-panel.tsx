@@ -30,7 +30,7 @@ const OUTLIER_CHOICES: { value: OutlierOptionValue; label: string }[] = [
   { value: "none", label: "None" },
 ];
 const TRANSFORM_CHOICES: { value: TransformOptionValue; label: string }[] = [
-  { value: "auto", label: "Automatic (likelihood-ratio tests)" },
+  { value: "auto", label: "Automatic (LR tests)" },
   { value: "none", label: "Raw" },
   { value: "ln", label: "ln" },
   { value: "box-cox", label: "Box-Cox" },

@@ -89,13 +89,13 @@ export function PartitionsPanel({ study: initial, analyte }: SectionProps) {
 
   return (
     <AnalysisSection id="partitions" title="Partitions" step={3} state={state}>
-      <div className="grid gap-4 lg:grid-cols-[auto_1fr] lg:items-end">
-        <div>
+      <div className="grid gap-4 lg:grid-cols-[auto_1fr] lg:items-start">
+        <div className="lg:pt-5">
           <Button type="button" onClick={() => assess("sex")} disabled={running !== null || closed}>
             {running === "sex" ? "Assessing…" : "Assess by sex"}
           </Button>
         </div>
-        <form onSubmit={(e) => assess("age", e)} aria-label="Assess by age bands" className="flex flex-wrap items-end gap-3">
+        <form onSubmit={(e) => assess("age", e)} aria-label="Assess by age bands" className="flex flex-wrap items-start gap-3">
           <div className="min-w-64 flex-1 space-y-1">
             <label htmlFor="age-bands" className={labelClass}>Age bands (years, half-open)</label>
             <input
@@ -120,7 +120,7 @@ export function PartitionsPanel({ study: initial, analyte }: SectionProps) {
               <option value="M">Male donors</option>
             </select>
           </div>
-          <Button type="submit" variant="secondary" disabled={running !== null || closed}>
+          <Button type="submit" variant="secondary" className="mt-5" disabled={running !== null || closed}>
             {running === "age" ? "Assessing…" : "Assess by age"}
           </Button>
         </form>
