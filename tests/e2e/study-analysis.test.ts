@@ -46,6 +46,19 @@ async function shots(page: Page, name: string) {
 describe("a scientist takes a study from donor results to a draft interval version", () => {
   it("screens, confirms an outlier, assesses and chooses partitions by sex, estimates each and drafts a version", async () => {
     const { context, page } = await newPage(browser);
+    try {
+      await walkThrough(page);
+    } catch (e) {
+      await screenshot(page, "analysis-failure");
+      throw e;
+    } finally {
+      await context.close();
+    }
+  });
+});
+
+async function walkThrough(page: Page) {
+  {
     await signIn(page, demoUser("scientist").email, demoUser("scientist").password);
     await page.waitForURL("/");
     await page.goto(`/studies/${studyId}`);
@@ -109,6 +122,5 @@ describe("a scientist takes a study from donor results to a draft interval versi
     expect(await card.textContent()).toContain("Draft");
     expect(await card.getByRole("row").count()).toBe(3);
     await shots(page, "analysis-05-draft");
-    await context.close();
-  });
-});
+  }
+}
