@@ -57,70 +57,69 @@ describe("a scientist takes a study from donor results to a draft interval versi
   });
 });
 
+/** The scientist's way through steps 2 to 5 of the study page, with screenshots of each. */
 async function walkThrough(page: Page) {
-  {
-    await signIn(page, demoUser("scientist").email, demoUser("scientist").password);
-    await page.waitForURL("/");
-    await page.goto(`/studies/${studyId}`);
+  await signIn(page, demoUser("scientist").email, demoUser("scientist").password);
+  await page.waitForURL("/");
+  await page.goto(`/studies/${studyId}`);
 
-    const screening = page.locator("section#screening");
-    await screening.getByTestId("screening-empty").waitFor();
-    expect(await screening.textContent()).toContain("nothing is excluded by the screen itself");
+  const screening = page.locator("section#screening");
+  await screening.getByTestId("screening-empty").waitFor();
+  expect(await screening.textContent()).toContain("nothing is excluded by the screen itself");
 
-    // Horn over the men: the 11.80 mmol/L of M017 is proposed, and nothing is excluded yet.
-    await screening.getByLabel("Partition").selectOption({ label: "Male" });
-    await screening.getByRole("button", { name: "Run screen" }).click();
-    const proposal = screening.getByTestId("proposal-M017");
-    await proposal.waitFor();
-    expect(await proposal.textContent()).toContain("11.8");
-    expect(await screening.getByTestId("screen-result").textContent()).toContain("Nothing has been excluded.");
-    await screening.getByTestId("strip-chart").locator("canvas").waitFor();
-    await shots(page, "analysis-01-screen");
+  // Horn over the men: the 11.80 mmol/L of M017 is proposed, and nothing is excluded yet.
+  await screening.getByLabel("Partition").selectOption({ label: "Male" });
+  await screening.getByRole("button", { name: "Run screen" }).click();
+  const proposal = screening.getByTestId("proposal-M017");
+  await proposal.waitFor();
+  expect(await proposal.textContent()).toContain("11.8");
+  expect(await screening.getByTestId("screen-result").textContent()).toContain("Nothing has been excluded.");
+  await screening.getByTestId("strip-chart").locator("canvas").waitFor();
+  await shots(page, "analysis-01-screen");
 
-    // A decision needs a reason: without one the page says so and sends nothing.
-    await proposal.getByRole("button", { name: "Exclude donor M017" }).click();
-    await proposal.getByText("Give a reason before you decide").waitFor();
-    await proposal.getByLabel("Reason for donor M017").fill("Not fasting: the donor had eaten an hour before.");
-    await proposal.getByRole("button", { name: "Exclude donor M017" }).click();
-    await proposal.getByText("Excluded", { exact: true }).waitFor();
-    const excluded = screening.getByRole("table", { name: "Exclusions in effect" });
-    await excluded.getByRole("cell", { name: "M017", exact: true }).waitFor();
-    expect(await excluded.textContent()).toContain("Not fasting: the donor had eaten an hour before.");
-    await shots(page, "analysis-02-outlier-excluded");
+  // A decision needs a reason: without one the page says so and sends nothing.
+  await proposal.getByRole("button", { name: "Exclude donor M017" }).click();
+  await proposal.getByText("Give a reason before you decide").waitFor();
+  await proposal.getByLabel("Reason for donor M017").fill("Not fasting: the donor had eaten an hour before.");
+  await proposal.getByRole("button", { name: "Exclude donor M017" }).click();
+  await proposal.getByText("Excluded", { exact: true }).waitFor();
+  const excluded = screening.getByRole("table", { name: "Exclusions in effect" });
+  await excluded.getByRole("cell", { name: "M017", exact: true }).waitFor();
+  expect(await excluded.textContent()).toContain("Not fasting: the donor had eaten an hour before.");
+  await shots(page, "analysis-02-outlier-excluded");
 
-    // Partitions by sex: Harris-Boyd and Lahti side by side, then the plan.
-    const partitions = page.locator("section#partitions");
-    await partitions.getByRole("button", { name: "Assess by sex" }).click();
-    await partitions.getByTestId("assessment").waitFor();
-    expect(await partitions.getByRole("table", { name: "Harris-Boyd and Lahti side by side" }).textContent()).toMatch(/Partition/);
-    expect((await partitions.getByTestId("assessment-summary").textContent())?.length).toBeGreaterThan(10);
-    await partitions.getByLabel("Separate limits for female and male donors").check();
-    await partitions.getByRole("button", { name: "Use these partitions" }).click();
-    await partitions.getByText(/Saved: 2 partitions/).waitFor();
-    await shots(page, "analysis-03-partitions");
+  // Partitions by sex: Harris-Boyd and Lahti side by side, then the plan.
+  const partitions = page.locator("section#partitions");
+  await partitions.getByRole("button", { name: "Assess by sex" }).click();
+  await partitions.getByTestId("assessment").waitFor();
+  expect(await partitions.getByRole("table", { name: "Harris-Boyd and Lahti side by side" }).textContent()).toMatch(/Partition/);
+  expect((await partitions.getByTestId("assessment-summary").textContent())?.length).toBeGreaterThan(10);
+  await partitions.getByLabel("Separate limits for female and male donors").check();
+  await partitions.getByRole("button", { name: "Use these partitions" }).click();
+  await partitions.getByText(/Saved: 2 partitions/).waitFor();
+  await shots(page, "analysis-03-partitions");
 
-    // Estimates: one per partition of the plan, methods side by side with the charts.
-    const estimates = page.locator("section#estimates");
-    for (const label of ["Female", "Male"]) {
-      const part = estimates.getByTestId(`estimate-${label}`);
-      await part.getByRole("button", { name: "Estimate", exact: true }).click();
-      await part.getByRole("table", { name: "Methods side by side" }).waitFor();
-      await part.getByTestId("histogram-chart").locator("canvas").waitFor();
-      await part.getByTestId("qq-chart").locator("canvas").waitFor();
-      expect(await part.textContent()).toMatch(/Recommended/);
-    }
-    await estimates.getByTestId("partitions-chart").locator("canvas").waitFor();
-    await shots(page, "analysis-04-estimates");
-
-    // The draft: the recommended method preselected per partition, the analyte's critical limits.
-    const draft = page.locator("section#draft");
-    expect(await draft.getByLabel("Critical low (mmol/L)").inputValue()).not.toBe("");
-    await draft.getByLabel("Note for the director").fill("First interval for fasting glucose from the 2026 donor study.");
-    await draft.getByRole("button", { name: "Create draft version" }).click();
-    await draft.getByText(/Draft version \d+ created\./).waitFor();
-    const card = draft.locator("[data-testid^=version-]").first();
-    expect(await card.textContent()).toContain("Draft");
-    expect(await card.getByRole("row").count()).toBe(3);
-    await shots(page, "analysis-05-draft");
+  // Estimates: one per partition of the plan, methods side by side with the charts.
+  const estimates = page.locator("section#estimates");
+  for (const label of ["Female", "Male"]) {
+    const part = estimates.getByTestId(`estimate-${label}`);
+    await part.getByRole("button", { name: "Estimate", exact: true }).click();
+    await part.getByRole("table", { name: "Methods side by side" }).waitFor();
+    await part.getByTestId("histogram-chart").locator("canvas").waitFor();
+    await part.getByTestId("qq-chart").locator("canvas").waitFor();
+    expect(await part.textContent()).toMatch(/Recommended/);
   }
+  await estimates.getByTestId("partitions-chart").locator("canvas").waitFor();
+  await shots(page, "analysis-04-estimates");
+
+  // The draft: the recommended method preselected per partition, the analyte's critical limits.
+  const draft = page.locator("section#draft");
+  expect(await draft.getByLabel("Critical low (mmol/L)").inputValue()).not.toBe("");
+  await draft.getByLabel("Note for the director").fill("First interval for fasting glucose from the 2026 donor study.");
+  await draft.getByRole("button", { name: "Create draft version" }).click();
+  await draft.getByText(/Draft version \d+ created\./).waitFor();
+  const card = draft.locator("[data-testid^=version-]").first();
+  expect(await card.textContent()).toContain("Draft");
+  expect(await card.getByRole("row").count()).toBe(3);
+  await shots(page, "analysis-05-draft");
 }
