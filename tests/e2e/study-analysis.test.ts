@@ -59,6 +59,20 @@ describe("a scientist takes a study from donor results to a draft interval versi
 
 /** The scientist's way through steps 2 to 5 of the study page, with screenshots of each. */
 async function walkThrough(page: Page) {
+  const pageErrors: string[] = [];
+  page.on("pageerror", (e) => pageErrors.push(e.stack ?? e.message));
+  page.on("console", (m) => {
+    if (m.type() === "error") pageErrors.push(m.text());
+  });
+  try {
+    await steps(page);
+  } finally {
+    if (pageErrors.length > 0) console.error(`errors in the page:\n${pageErrors.join("\n")}`);
+  }
+  expect(pageErrors).toEqual([]);
+}
+
+async function steps(page: Page) {
   await signIn(page, demoUser("scientist").email, demoUser("scientist").password);
   await page.waitForURL("/");
   await page.goto(`/studies/${studyId}`);
