@@ -4,6 +4,7 @@ import { AppError } from "@/lib/api/errors";
 import { crossFieldProblems, type AnalyteChanges, type NewAnalyteInput } from "@/lib/analytes/input";
 import { assertUnitAndDecimalsChangeable } from "@/lib/analytes/unit-lock";
 import type { Database, Executor } from "../client";
+import { uniqueViolationOf } from "../errors";
 import { analytes, type Analyte } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
@@ -28,13 +29,6 @@ function duplicateCode(code: string): AppError {
   return new AppError("conflict", message, { errors: [{ path: "code", message }] });
 }
 
-/** PostgreSQL's unique_violation, also when drizzle wraps the driver's error. */
-function isUniqueViolation(err: unknown): boolean {
-  for (let e: unknown = err; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
-    if ((e as { code?: unknown }).code === "23505") return true;
-  }
-  return false;
-}
 
 export async function listAnalytes(executor: Executor): Promise<Analyte[]> {
   return executor.select().from(analytes).orderBy(asc(analytes.code));
@@ -87,7 +81,7 @@ export async function createAnalyte(
     });
   } catch (err) {
     // Two people adding the same code at once: the unique index decides, with the same answer.
-    if (isUniqueViolation(err)) throw duplicateCode(input.code);
+    if (uniqueViolationOf(err) !== null) throw duplicateCode(input.code);
     throw err;
   }
 }

@@ -101,3 +101,44 @@ export async function studyDetail(executor: Executor, { id }: { id: string }) {
     donorResultCount: row.donorResultCount,
   };
 }
+
+/**
+ * Locks the study against closing (FOR SHARE: writes to other tables may run side by side) and
+ * checks that it is open: 404 when unknown, 409 "The study is closed: …" otherwise. Call it first
+ * inside the transaction of every write to a study's screening and partitions.
+ */
+export async function lockOpenStudy(executor: Executor, { id, refusal }: { id: string; refusal: string }): Promise<Study> {
+  const [study] = await executor.select().from(studies).where(eq(studies.id, id)).for("share");
+  if (!study) throw new AppError("not_found", `There is no study with the id ${id}.`);
+  if (study.status === "closed") throw new AppError("conflict", `The study is closed: ${refusal}`);
+  return study;
+}
+
+/** Stores the partitions the scientist chose for an open study, audited. */
+export async function setPartitionPlan(
+  database: Database,
+  { id, plan, actor }: { id: string; plan: NonNullable<Study["partitionPlan"]>; actor: Actor },
+): Promise<Study> {
+  return database.transaction(async (tx) => {
+    const [study] = await tx.select().from(studies).where(eq(studies.id, id)).for("update");
+    if (!study) throw new AppError("not_found", `There is no study with the id ${id}.`);
+    if (study.status === "closed") throw new AppError("conflict", "The study is closed: its partitions can no longer change.");
+    const [updated] = await tx.update(studies).set({ partitionPlan: plan }).where(eq(studies.id, id)).returning();
+    await recordAuditEvent(tx, {
+      actor,
+      action: "study.partition-plan-set",
+      entityType: "study",
+      entityId: id,
+      summary: `Chose the partitions of the study "${study.title}": ${describePlan(plan)}`,
+      details: { before: study.partitionPlan, after: plan },
+    });
+    return updated;
+  });
+}
+
+function describePlan(plan: NonNullable<Study["partitionPlan"]>): string {
+  const parts: string[] = [];
+  if (plan.sex) parts.push("by sex");
+  if (plan.ageBands) parts.push(`by age ${plan.ageBands.map(([a, b]) => `[${a}, ${b})`).join(", ")}`);
+  return parts.length > 0 ? parts.join(" and ") : "one partition of everyone";
+}

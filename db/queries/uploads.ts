@@ -3,6 +3,7 @@ import { and, eq, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import type { DonorRow, ValidationReport } from "@/lib/uploads";
 import type { Database, Executor } from "../client";
+import { uniqueViolationOf } from "../errors";
 import { donorResults, studies, uploads, type Study, type Upload } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
@@ -138,18 +139,11 @@ export async function commitUpload(
     return await commitPendingRows(database, { studyId, uploadId, actor });
   } catch (err) {
     // The same file committed at the same moment through another upload: the partial unique index decides.
-    if (isUniqueViolation(err)) throw new AppError("conflict", "The same file (by its SHA-256) is already committed in this study.");
+    if (uniqueViolationOf(err) !== null) throw new AppError("conflict", "The same file (by its SHA-256) is already committed in this study.");
     throw err;
   }
 }
 
-/** PostgreSQL's unique_violation, also when drizzle wraps the driver's error. */
-function isUniqueViolation(err: unknown): boolean {
-  for (let e: unknown = err; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
-    if ((e as { code?: unknown }).code === "23505") return true;
-  }
-  return false;
-}
 
 async function commitPendingRows(
   database: Database,

@@ -9,10 +9,8 @@ import { chooseScaleFromTable, type ScaleChoice } from "./box-cox-lrt";
 import { adviseMethod, type LimitsWithCi, type RecommendedMethod } from "./method-advice";
 import { nonparametricLimits } from "./nonparametric";
 import { nonparametricLimitsCensored, type CensoredBound } from "./nonparametric-censored";
-import { dixonReedOutliers } from "./outliers-dixon";
-import { hornProposals, hornScreenSorted } from "./outliers-horn";
-import { tukeyOutliers } from "./outliers-tukey";
-import type { OutlierEvidence, OutlierMethod, OutlierProposal } from "./outliers";
+import { screenOutliers, type OutlierScreenResult } from "./outlier-screen";
+import type { OutlierEvidence, OutlierMethod } from "./outliers";
 import { parametricFromScale, type Transform } from "./parametric";
 import {
   C_LOCATION,
@@ -304,37 +302,21 @@ export function estimateReferenceInterval(
   const apply = screeningMode === "apply";
 
   // 1. Outliers. Horn's screen works on the one sort of the data; its kept values are a
-  // contiguous run of it.
+  // contiguous run of it. The screens see the measured values only: a censored value has no
+  // number to test.
   let hornLambda: number | null = null;
   let sortedKept: Float64Array;
-  let proposals: OutlierProposal[] = [];
-  let rule: OutlierMethod | null = null;
-  if (outlierOption === "horn" && allPositive && values.length >= 4) {
-    // The screens see the measured values only: a censored value has no number to test.
-    const all = Float64Array.from(values).sort();
-    const h = hornScreenSorted(all);
-    rule = "horn";
-    proposals = hornProposals(values, h);
+  const screen: OutlierScreenResult =
+    outlierOption === "none" ? { rule: null, proposals: [], horn: null, warnings: [] } : screenOutliers(values, outlierOption);
+  const { rule, proposals } = screen;
+  warnings.push(...screen.warnings);
+  if (screen.horn) {
+    const { sorted: all, screen: h } = screen.horn;
     const keptAll = h.from === 0 && h.to === all.length;
     sortedKept = apply ? all.subarray(h.from, h.to) : all;
     // The screen's last λ̂ is that of its kept values: reusable when those are the values used.
     if (h.converged && (apply || keptAll)) hornLambda = h.lambda;
-    if (!h.converged) warnings.push(`Horn's outlier screen stopped after ${h.iterations} rounds with values still flagged.`);
   } else {
-    if (values.length === 0) {
-      // Every value is censored: there is nothing to screen.
-    } else if (outlierOption === "dixon") {
-      rule = "dixon";
-      proposals = dixonReedOutliers(values).outliers;
-    } else if (outlierOption === "tukey") {
-      rule = "tukey";
-      proposals = tukeyOutliers(values).outliers;
-    } else if (outlierOption === "horn" && values.length >= 4) {
-      rule = "tukey";
-      proposals = tukeyOutliers(values).outliers;
-      warnings.push("Horn's method needs positive values; Tukey fences on the raw scale were used instead.");
-    }
-    proposals = proposals.slice().sort((a, b) => a.index - b.index);
     const excludedIdx = new Uint8Array(values.length);
     if (apply) for (const p of proposals) excludedIdx[p.index] = 1;
     const kept = new Float64Array(values.length - (apply ? proposals.length : 0));

@@ -21,6 +21,7 @@ export * from "./outliers";
 export * from "./outliers-dixon";
 export * from "./outliers-tukey";
 export * from "./outliers-horn";
+export * from "./outlier-screen";
 export * from "./method-advice";
 export * from "./estimate";
 export * from "./shapiro-wilk";

@@ -6,11 +6,11 @@ export type DonorResultSortField = (typeof DONOR_RESULT_SORT_FIELDS)[number];
 
 const sortValues = DONOR_RESULT_SORT_FIELDS.flatMap((f) => [f, `-${f}`]);
 
-const booleanText = z.enum(["true", "false"], 'Use "true" or "false".').transform((v) => v === "true");
+export const booleanText = z.enum(["true", "false"], 'Use "true" or "false".').transform((v) => v === "true");
 
 /**
- * The query of GET …/donor-results. `excluded` is accepted now; until exclusions exist every
- * donor result counts as not excluded, so `excluded=true` lists nothing.
+ * The query of GET …/donor-results. `excluded=true` lists only the donor results with an
+ * exclusion in effect, `excluded=false` only the others.
  */
 export const donorResultsQuery = z
   .object({

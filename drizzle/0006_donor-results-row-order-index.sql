@@ -1,0 +1,1 @@
+CREATE INDEX "donor_results_study_row_idx" ON "donor_results" USING btree ("study_id","row_number","id");
