@@ -131,15 +131,17 @@ function DraftForm({
   onDone: (v: IntervalVersion) => void;
   onCancel: () => void;
 }) {
-  const initialMethods: Record<string, EstimateMethod> = {};
-  for (const p of partitions) {
-    const e = latest.get(partitionKey(p));
-    if (!e) continue;
-    const was = editing?.partitions.find((vp) => partitionKey({ sex: vp.sex ?? undefined, ageFrom: vp.ageFrom ?? undefined, ageTo: vp.ageTo ?? undefined }) === partitionKey(p));
-    const fallback = (["nonparametric", "parametric", "robust"] as const).find((m) => hasLimits(e[m])) ?? "nonparametric";
-    initialMethods[partitionKey(p)] = was?.method ?? e.recommended ?? fallback;
-  }
-  const [methods, setMethods] = useState(initialMethods);
+  // What the scientist picked; a partition estimated after the form opened takes its default.
+  const [picked, setPicked] = useState<Record<string, EstimateMethod>>({});
+  const methodOf = (p: Partition): EstimateMethod => {
+    const k = partitionKey(p);
+    const e = latest.get(k)!;
+    if (picked[k] && hasLimits(e[picked[k]])) return picked[k];
+    const was = editing?.partitions.find((vp) => partitionKey({ sex: vp.sex ?? undefined, ageFrom: vp.ageFrom ?? undefined, ageTo: vp.ageTo ?? undefined }) === k);
+    if (was && hasLimits(e[was.method])) return was.method;
+    if (e.recommended) return e.recommended;
+    return (["nonparametric", "parametric", "robust"] as const).find((m) => hasLimits(e[m])) ?? "nonparametric";
+  };
   const [criticalLow, setCriticalLow] = useState(numberText(editing ? editing.criticalLow : analyte.criticalLow));
   const [criticalHigh, setCriticalHigh] = useState(numberText(editing ? editing.criticalHigh : analyte.criticalHigh));
   const [note, setNote] = useState(editing?.note ?? "");
@@ -169,7 +171,7 @@ function DraftForm({
     setFieldErrors(errors);
     if (Object.keys(errors).length > 0) return;
     const body = {
-      partitions: usable.map((p) => ({ estimate: latest.get(partitionKey(p))!.id, method: methods[partitionKey(p)] })),
+      partitions: usable.map((p) => ({ estimate: latest.get(partitionKey(p))!.id, method: methodOf(p) })),
       criticalLow: low,
       criticalHigh: high,
       note: note.trim() || null,
@@ -220,14 +222,14 @@ function DraftForm({
                   </tr>
                 );
               }
-              const m = methods[k];
+              const m = methodOf(p);
               const l = e[m];
               return (
                 <tr key={k}>
                   <td className={tdClass}>{label}</td>
                   <td className={tdClass}>
                     <label htmlFor={`method-${k}`} className="sr-only">Method for {label}</label>
-                    <select id={`method-${k}`} className={inputClass} value={m} onChange={(ev) => setMethods({ ...methods, [k]: ev.target.value as EstimateMethod })}>
+                    <select id={`method-${k}`} className={inputClass} value={m} onChange={(ev) => setPicked({ ...picked, [k]: ev.target.value as EstimateMethod })}>
                       {(["nonparametric", "parametric", "robust"] as const)
                         .filter((x) => hasLimits(e[x]))
                         .map((x) => (
