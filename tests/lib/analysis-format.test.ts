@@ -26,12 +26,13 @@ describe("age bands as the scientist types them", () => {
   });
 
   it("says what is wrong with bands that leave a gap, overlap, run backwards or are alone", () => {
+    // The API's own rules and words (lib/studies/partitions.ts), so the page and the server agree.
     expect(parseAgeBands("[0, 18) [20, 120)")).toEqual({
-      error: "Band 2 starts at 20 but band 1 ends at 18: bands must follow one another without a gap or an overlap.",
+      error: "Bands must follow one another: band 2 starts at 20, band 1 ends at 18 (a gap).",
     });
     expect(parseAgeBands("[18, 0) [0, 120)")).toEqual({ error: "Band 1 [18, 0) must start below its end." });
-    expect(parseAgeBands("[0, 120)")).toEqual({ error: "Give at least two age bands, for example [0, 18) [18, 120)." });
-    expect(parseAgeBands("[0, 18) [18, 150)")).toEqual({ error: "Band 2 ends at 150: ages go up to 130 years." });
+    expect(parseAgeBands("[0, 120)")).toEqual({ error: "Give at least two age bands." });
+    expect(parseAgeBands("[0, 18) [18, 150)")).toEqual({ error: "A band's end is an age in years from 0 to 130." });
     expect(parseAgeBands(" ")).toEqual({ error: "Type at least two age bands, for example [0, 18) [18, 120)." });
   });
 });

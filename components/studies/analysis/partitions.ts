@@ -1,3 +1,4 @@
+import { ageBandsSchema, partitionsOfPlan as planPartitions } from "@/lib/studies/partitions";
 import type { Partition, PartitionPlan } from "./types";
 
 /** A partition in words, e.g. "F, age 18 to under 120", "M", "All donors". */
@@ -36,13 +37,9 @@ export function cleanPartition(partition: Partition | null | undefined): Partiti
   return p;
 }
 
-/** The partitions a plan yields: sex first (F then M), then the age bands; everyone without a plan. */
+/** The partitions a plan yields (lib/studies/partitions.ts): sex first, then the age bands; everyone without a plan. */
 export function partitionsOfPlan(plan: PartitionPlan | null | undefined): Partition[] {
-  const sexes: ("F" | "M" | undefined)[] = plan?.sex ? ["F", "M"] : [undefined];
-  const bands: ([number, number] | undefined)[] = plan?.ageBands ?? [undefined];
-  const out: Partition[] = [];
-  for (const sex of sexes) for (const band of bands) out.push(cleanPartition({ sex, ageFrom: band?.[0], ageTo: band?.[1] }));
-  return out;
+  return planPartitions(plan);
 }
 
 /**
@@ -61,15 +58,8 @@ export function parseAgeBands(text: string): { bands: [number, number][] } | { e
     if (edges.some((e) => !Number.isFinite(e))) return { error: `"${text}" is not a list of age bands; write them as [0, 18) [18, 120).` };
     bands = edges.slice(1).map((to, i) => [edges[i], to]);
   }
-  if (bands.length < 2) return { error: "Give at least two age bands, for example [0, 18) [18, 120)." };
-  for (let i = 0; i < bands.length; i++) {
-    const [from, to] = bands[i];
-    if (!(from < to)) return { error: `Band ${i + 1} [${from}, ${to}) must start below its end.` };
-    if (to > 130) return { error: `Band ${i + 1} ends at ${to}: ages go up to 130 years.` };
-    if (i > 0 && from !== bands[i - 1][1]) {
-      return { error: `Band ${i + 1} starts at ${from} but band ${i} ends at ${bands[i - 1][1]}: bands must follow one another without a gap or an overlap.` };
-    }
-  }
+  const checked = ageBandsSchema.safeParse(bands);
+  if (!checked.success) return { error: checked.error.issues[0].message };
   return { bands };
 }
 
