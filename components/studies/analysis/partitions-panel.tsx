@@ -176,7 +176,6 @@ function planWords(plan: { sex: boolean; ageBands: [number, number][] | null }):
 }
 
 function AssessmentView({ assessment: a, decimals, unit }: { assessment: PartitionAssessment; decimals: number; unit: string }) {
-  const fmt = (v: number) => formatValue(v, decimals);
   return (
     <div className="space-y-3" data-testid="assessment">
       <div className="flex flex-wrap items-baseline gap-x-3 gap-y-1">
@@ -202,9 +201,9 @@ function AssessmentView({ assessment: a, decimals, unit }: { assessment: Partiti
               <tr key={g.label}>
                 <td className={tdClass}>{g.label || partitionLabel(g.partition)}</td>
                 <td className={tdClass}>{g.n}</td>
-                <td className={tdClass}>{fmt(g.mean)}</td>
+                <td className={tdClass}>{formatValue(g.mean, decimals)}</td>
                 <td className={tdClass}>{formatValue(g.sd, decimals + 1)}</td>
-                <td className={tdClass}>{fmt(g.median)}</td>
+                <td className={tdClass}>{formatValue(g.median, decimals)}</td>
               </tr>
             ))}
           </tbody>
@@ -229,26 +228,43 @@ function AssessmentView({ assessment: a, decimals, unit }: { assessment: Partiti
           <tbody className="divide-y divide-ink-100 bg-white">
             {a.comparisons.map((c) => {
               const hb = c.harrisBoyd;
+              const la = c.lahti;
+              const notRun = (c.problems ?? []).join(" ") || "Could not be computed.";
               return (
                 <tr key={c.between.join("|")}>
-                  <td className={`${tdClass} whitespace-nowrap`}>{c.between[0]} vs {c.between[1]}</td>
-                  <td className={`${tdClass} border-l border-ink-100 whitespace-nowrap`}>
-                    {formatZ(hb.z)} / {formatZ(hb.zCritical)}
-                  </td>
                   <td className={`${tdClass} whitespace-nowrap`}>
-                    {formatZ(hb.sdRatio)} / {hb.sdRatioLimit ?? "—"}
+                    {c.between[0]} vs {c.between[1]}
+                    {c.verdict ? <span className="block text-xs text-ink-600">Together: {VERDICT_WORDS[c.verdict]}</span> : null}
                   </td>
-                  <td className={tdClass}><strong>{VERDICT_WORDS[hb.verdict]}</strong></td>
-                  <td className={`${tdClass} border-l border-ink-100`}>
-                    <ul>
-                      {(c.lahti.subgroups ?? []).map((s) => (
-                        <li key={s.label} className="whitespace-nowrap">
-                          {s.label}: {s.belowLowerPercent.toFixed(1)}% below, {s.aboveUpperPercent.toFixed(1)}% above
-                        </li>
-                      ))}
-                    </ul>
-                  </td>
-                  <td className={tdClass}><strong>{VERDICT_WORDS[c.lahti.verdict]}</strong></td>
+                  {hb ? (
+                    <>
+                      <td className={`${tdClass} border-l border-ink-100 whitespace-nowrap`}>
+                        {formatZ(hb.z)} / {formatZ(hb.zCritical)}
+                      </td>
+                      <td className={`${tdClass} whitespace-nowrap`}>
+                        {formatZ(hb.sdRatio)} / {hb.sdRatioLimit ?? "—"}
+                      </td>
+                      <td className={tdClass}><strong>{VERDICT_WORDS[hb.verdict]}</strong></td>
+                    </>
+                  ) : (
+                    <td className={`${tdClass} border-l border-ink-100 text-ink-600`} colSpan={3}>{notRun}</td>
+                  )}
+                  {la ? (
+                    <>
+                      <td className={`${tdClass} border-l border-ink-100`}>
+                        <ul>
+                          {(la.subgroups ?? []).map((s) => (
+                            <li key={s.label} className="whitespace-nowrap">
+                              {s.label}: {s.belowLowerPercent.toFixed(1)}% below, {s.aboveUpperPercent.toFixed(1)}% above
+                            </li>
+                          ))}
+                        </ul>
+                      </td>
+                      <td className={tdClass}><strong>{VERDICT_WORDS[la.verdict]}</strong></td>
+                    </>
+                  ) : (
+                    <td className={`${tdClass} border-l border-ink-100 text-ink-600`} colSpan={2}>{notRun}</td>
+                  )}
                 </tr>
               );
             })}

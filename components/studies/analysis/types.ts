@@ -117,13 +117,14 @@ export interface AssessmentGroup {
   label: string;
   partition: Partition;
   n: number;
-  mean: number;
-  sd: number;
-  median: number;
+  mean: number | null;
+  sd: number | null;
+  median: number | null;
 }
 
 export interface AssessmentComparison {
   between: [string, string];
+  /** Null when the test could not run (see `problems`). */
   harrisBoyd: {
     verdict: "partition" | "combine";
     z?: number;
@@ -132,14 +133,16 @@ export interface AssessmentComparison {
     sdRatioLimit?: number;
     reasons?: string[];
     [key: string]: unknown;
-  };
+  } | null;
   lahti: {
     verdict: "partition" | "combine" | "marginal";
     combinedLimits?: { lower: number; upper: number };
     subgroups?: { label: string; n: number | null; belowLowerPercent: number; aboveUpperPercent: number }[];
     reasons?: string[];
     [key: string]: unknown;
-  };
+  } | null;
+  verdict?: "partition" | "combine" | "undecided";
+  problems?: string[];
 }
 
 export interface PartitionAssessment {
