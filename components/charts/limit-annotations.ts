@@ -33,7 +33,7 @@ export function limitAnnotations(
         label: {
           display: true,
           content: "90% CI",
-          position: { x: "center", y: "start" },
+          position: axis === "x" ? { x: "center", y: "end" } : { x: "start", y: "center" },
           color: CHART_COLORS.fit,
           font: { size: 10 },
         },

@@ -24,6 +24,12 @@ export function PartitionsChart({ rows, unit, decimals }: { rows: PartitionLimit
   const fmt = (v: number) => formatValue(v, decimals);
   const labels = rows.map((r) => `${r.label} (n ${r.n})`);
   const range = (a: number | null, b: number | null) => (a === null || b === null ? null : ([a, b] as [number, number]));
+  const ends = rows
+    .flatMap((r) => [r.lower, r.upper, ...(r.lowerCi ?? []), ...(r.upperCi ?? [])])
+    .filter((v): v is number => v !== null && Number.isFinite(v));
+  const lo = ends.length ? Math.min(...ends) : 0;
+  const hi = ends.length ? Math.max(...ends) : 1;
+  const pad = (hi - lo) * 0.08 || 1;
   const data: ChartData<"bar" | "scatter", unknown[]> = {
     labels,
     datasets: [
@@ -81,7 +87,15 @@ export function PartitionsChart({ rows, unit, decimals }: { rows: PartitionLimit
     responsive: true,
     maintainAspectRatio: false,
     scales: {
-      x: { type: "linear", title: { display: true, text: `Value (${unit})` }, ticks: { callback: (v) => fmt(Number(v)) }, grid: { color: CHART_COLORS.grid } },
+      x: {
+        type: "linear",
+        beginAtZero: false,
+        min: lo - pad,
+        max: hi + pad,
+        title: { display: true, text: `Value (${unit})` },
+        ticks: { callback: (v) => fmt(Number(v)) },
+        grid: { color: CHART_COLORS.grid },
+      },
       y: { type: "category", grid: { display: false } },
     },
     plugins: {

@@ -136,4 +136,14 @@ async function steps(page: Page) {
   expect(await card.textContent()).toContain("Draft");
   expect(await card.getByRole("row").count()).toBe(3);
   await shots(page, "analysis-05-draft");
+
+  // Revising the draft: the men's limits by the robust method instead.
+  const number = (await card.getAttribute("data-testid"))!.replace("version-", "");
+  await card.getByRole("button", { name: `Revise version ${number}` }).click();
+  const revise = draft.getByRole("form", { name: `Revise version ${number}` });
+  await revise.getByLabel("Method for Male").selectOption("robust");
+  await revise.getByRole("button", { name: `Save version ${number}` }).click();
+  await draft.getByText(`Version ${number} revised.`).waitFor();
+  await expect.poll(() => draft.getByTestId(`version-${number}`).getByRole("row", { name: /Male/ }).textContent()).toContain("Robust");
+  await shots(page, "analysis-06-draft-revised");
 }

@@ -31,7 +31,7 @@ function versionPartitionLabel(p: VersionPartition): string {
   return partitionLabel({ sex: p.sex ?? undefined, ageFrom: p.ageFrom ?? undefined, ageTo: p.ageTo ?? undefined });
 }
 
-const numberText = (v: number | null | undefined) => (v === null || v === undefined ? "" : String(v));
+const numberText = (v: number | null | undefined, decimals: number) => (v === null || v === undefined ? "" : v.toFixed(decimals));
 
 /** Draft: one method per partition, critical limits and a note → a draft interval version; revise drafts. */
 export function DraftPanel({ study: initial, analyte }: SectionProps) {
@@ -40,6 +40,7 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
   const drafts = useSWR<{ items: IntervalVersion[] }>(versionsKey, fetchJson);
   const [editing, setEditing] = useState<IntervalVersion | null>(null);
   const [created, setCreated] = useState<IntervalVersion | null>(null);
+  const [notice, setNotice] = useState<string | null>(null);
   // The page may pass the analyte without its critical limits: the catalogue has them.
   const needCatalogue = analyte.criticalLow === undefined || analyte.criticalHigh === undefined;
   const catalogue = useSWR<SectionAnalyte>(needCatalogue ? `/api/v1/analytes/${encodeURIComponent(analyte.code)}` : null, fetchJson);
@@ -78,7 +79,8 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
           partitions={partitions}
           latest={latest}
           editing={editing}
-          onDone={(v) => {
+          onDone={(v, message) => {
+            setNotice(message);
             setCreated(v);
             setEditing(null);
             void drafts.mutate();
@@ -86,29 +88,32 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
           onCancel={() => setEditing(null)}
         />
       ) : null}
-      {created ? <VersionCard version={created} title={`Draft version ${created.number}`} highlight /> : null}
+      <DoneNotice>{notice}</DoneNotice>
+      {created && !items.some((v) => v.id === created.id) ? <VersionCard version={created} title={`Draft version ${created.number}`} highlight /> : null}
 
       <div className="space-y-2">
         <h3 className="text-sm font-semibold text-ink-800">Draft versions of {analyte.code}</h3>
         {drafts.error ? <ErrorNotice error={drafts.error} action="The draft versions could not be loaded" /> : null}
         {drafts.isLoading ? <Skeleton lines={2} /> : null}
         {drafts.data && items.length === 0 ? <p className="text-sm text-ink-600">No draft version of {analyte.code} exists yet.</p> : null}
-        {items
-          .filter((v) => v.id !== created?.id)
-          .map((v) => (
-            <VersionCard
-              key={v.id}
-              version={v}
-              title={`Version ${v.number}${v.studyId === study.id ? "" : " (from another study)"}`}
-              action={
-                v.studyId === study.id && study.status !== "closed" ? (
-                  <Button type="button" variant="secondary" className="px-2 py-1 text-xs" onClick={() => setEditing(v)}>
-                    Revise version {v.number}
-                  </Button>
-                ) : null
-              }
-            />
-          ))}
+        {items.map((v) => (
+          <VersionCard
+            key={v.id}
+            version={v}
+            highlight={v.id === created?.id || v.id === editing?.id}
+            title={`${v.id === created?.id ? "Draft version" : "Version"} ${v.number}${v.studyId === study.id ? "" : " (from another study)"}`}
+            action={
+              v.studyId === study.id && study.status !== "closed" && v.id !== editing?.id ? (
+                <Button type="button" variant="secondary" className="px-2 py-1 text-xs" onClick={() => {
+                    setNotice(null);
+                    setEditing(v);
+                  }}>
+                  Revise version {v.number}
+                </Button>
+              ) : null
+            }
+          />
+        ))}
       </div>
     </AnalysisSection>
   );
@@ -128,7 +133,7 @@ function DraftForm({
   partitions: Partition[];
   latest: Map<string, EstimateListItem>;
   editing: IntervalVersion | null;
-  onDone: (v: IntervalVersion) => void;
+  onDone: (v: IntervalVersion, message: string) => void;
   onCancel: () => void;
 }) {
   // What the scientist picked; a partition estimated after the form opened takes its default.
@@ -142,20 +147,18 @@ function DraftForm({
     if (e.recommended) return e.recommended;
     return (["nonparametric", "parametric", "robust"] as const).find((m) => hasLimits(e[m])) ?? "nonparametric";
   };
-  const [criticalLow, setCriticalLow] = useState(numberText(editing ? editing.criticalLow : analyte.criticalLow));
-  const [criticalHigh, setCriticalHigh] = useState(numberText(editing ? editing.criticalHigh : analyte.criticalHigh));
+  const [criticalLow, setCriticalLow] = useState(numberText(editing ? editing.criticalLow : analyte.criticalLow, analyte.decimals));
+  const [criticalHigh, setCriticalHigh] = useState(numberText(editing ? editing.criticalHigh : analyte.criticalHigh, analyte.decimals));
   const [note, setNote] = useState(editing?.note ?? "");
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
   const [error, setError] = useState<unknown>(null);
   const [pending, setPending] = useState(false);
-  const [done, setDone] = useState<string | null>(null);
   const usable = partitions.filter((p) => latest.has(partitionKey(p)));
   const d = analyte.decimals;
 
   async function submit(event: FormEvent) {
     event.preventDefault();
     setError(null);
-    setDone(null);
     const errors: Record<string, string> = {};
     const num = (s: string, name: string) => {
       if (!s.trim()) return null;
@@ -181,8 +184,7 @@ function DraftForm({
       const v = editing
         ? await sendJson<IntervalVersion>("PATCH", `/api/v1/interval-versions/${editing.id}`, body)
         : await sendJson<IntervalVersion>("POST", "/api/v1/interval-versions", { analyte: analyte.code, study: studyId, ...body });
-      setDone(editing ? `Version ${v.number} revised.` : `Draft version ${v.number} created.`);
-      onDone(v);
+      onDone(v, editing ? `Version ${v.number} revised.` : `Draft version ${v.number} created.`);
     } catch (e) {
       setError(e);
       if (e instanceof ApiError) {
@@ -271,7 +273,6 @@ function DraftForm({
         {editing ? <Button type="button" variant="secondary" onClick={onCancel}>Cancel</Button> : null}
       </div>
       <ErrorNotice error={error} action={editing ? "The draft was not revised" : "No draft was created"} />
-      <DoneNotice>{done}</DoneNotice>
     </form>
   );
 }
