@@ -13,6 +13,7 @@ let studyId: string;
 const FIXTURE = fs.readFileSync(path.join(__dirname, "../fixtures/uploads/study-analysis.csv"));
 
 beforeAll(async () => {
+  if (!ready) return;
   browser = await launchBrowser();
   const cookie = await signInOverHttp(demoUser("scientist").email, demoUser("scientist").password);
   const opened = await fetch(`${BASE_URL}/api/v1/studies`, {
@@ -43,7 +44,16 @@ async function shots(page: Page, name: string) {
   await page.setViewportSize({ width: 1280, height: 800 });
 }
 
-describe("a scientist takes a study from donor results to a draft interval version", () => {
+/**
+ * The walk-through needs the study page (the page frame's work) and the estimate and version
+ * routes (the estimates work); each lands on main on its own, so until all are there the test
+ * says it is skipped rather than failing on a missing page.
+ */
+const ready = ["app/(lab)/studies/[id]/page.tsx", "app/api/v1/studies/[id]/estimates/route.ts", "app/api/v1/interval-versions/route.ts"].every((f) =>
+  fs.existsSync(path.join(__dirname, "../..", f)),
+);
+
+describe.skipIf(!ready)("a scientist takes a study from donor results to a draft interval version", () => {
   it("screens, confirms an outlier, assesses and chooses partitions by sex, estimates each and drafts a version", async () => {
     const { context, page } = await newPage(browser);
     try {
