@@ -4,22 +4,34 @@
  * line (and the app) stamp its documents here before printing or storing them.
  */
 import { execFileSync } from "node:child_process";
-import { existsSync, realpathSync } from "node:fs";
+import { existsSync, readFileSync, realpathSync } from "node:fs";
 import path from "node:path";
 import packageJson from "../package.json";
 import { engineEnv, type EngineEnv } from "./env";
 import type { EngineIdentity, Provenance } from "./stats/estimate";
 
 /**
- * The repository root: the nearest folder holding package.json above this code, which is lib/
- * when run from source and .cli-build/ when run from the command line's bundle.
+ * The repository root: the nearest folder above this code holding our own package.json, which
+ * is lib/ when run from source and .cli-build/ when run from the command line's bundle. The
+ * app's server bundle (Next with Turbopack) replaces __dirname with a placeholder ("/ROOT/lib")
+ * and has its own .next/package.json, so there the search starts again from the working
+ * directory, which the server is started in.
  */
-const ROOT = nearestPackageRoot(__dirname);
+const ROOT = ourPackageRoot(__dirname) ?? ourPackageRoot(process.cwd()) ?? path.resolve(__dirname, "..");
 
-function nearestPackageRoot(from: string): string {
+function ourPackageRoot(from: string): string | null {
   for (let dir = from; ; dir = path.dirname(dir)) {
-    if (existsSync(path.join(dir, "package.json"))) return dir;
-    if (path.dirname(dir) === dir) return path.resolve(from, "..");
+    const file = path.join(dir, "package.json");
+    if (existsSync(file) && isOurPackage(file)) return dir;
+    if (path.dirname(dir) === dir) return null;
+  }
+}
+
+function isOurPackage(file: string): boolean {
+  try {
+    return (JSON.parse(readFileSync(file, "utf8")) as { name?: unknown }).name === packageJson.name;
+  } catch {
+    return false;
   }
 }
 

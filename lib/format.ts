@@ -5,6 +5,11 @@ export function formatDateTime(d: Date | null | undefined): string {
   return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())} ${pad(d.getHours())}:${pad(d.getMinutes())}`;
 }
 
+/** A calendar day in ISO order (2026-03-02), in the server's time zone: for tables. */
+export function formatDate(d: Date | null | undefined): string {
+  return formatDateTime(d).slice(0, 10);
+}
+
 /** A value or limit with the analyte's display decimals; "—" when absent. */
 export function formatValue(v: number | null | undefined, decimals: number): string {
   if (v === null || v === undefined || !Number.isFinite(v)) return "—";

@@ -7,6 +7,7 @@ import type { Database, Executor } from "../client";
 import { uniqueViolationOf } from "../errors";
 import { analytes, type Analyte } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
+import { versionStatesOfAnalyte } from "./interval-versions";
 
 export type { Analyte };
 
@@ -114,9 +115,9 @@ export async function updateAnalyte(
     if (problems.length > 0) {
       throw new AppError("invalid", problems.map((p) => p.message).join(" "), { errors: problems });
     }
-    // No interval versions exist yet, so nothing can have left draft; the versions work replaces
-    // this empty list with the states of this analyte's versions, read in this transaction.
-    assertUnitAndDecimalsChangeable({ code, current, next: changes, versionStates: [] });
+    // Read in this transaction, under the analyte's row lock taken above.
+    const versionStates = await versionStatesOfAnalyte(tx, { analyteId: current.id });
+    assertUnitAndDecimalsChangeable({ code, current, next: changes, versionStates });
 
     const [updated] = await tx
       .update(analytes)

@@ -1,9 +1,9 @@
 import "server-only";
-import { desc, eq, sql } from "drizzle-orm";
+import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import type { NewStudyInput } from "@/lib/studies/input";
 import type { Database, Executor } from "../client";
-import { analytes, donorResults, studies, uploads, type Study } from "../schema";
+import { analytes, donorResults, exclusions, studies, uploads, users, type Study } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
 export type { Study };
@@ -11,6 +11,8 @@ export type { Study };
 export interface StudySummary extends Study {
   analyteCode: string;
   uploadCount: number;
+  /** Uploads whose rows are stored (not pending, not cancelled). */
+  committedUploadCount: number;
   donorResultCount: number;
 }
 
@@ -48,16 +50,23 @@ export async function createStudy(database: Database, { input, actor }: { input:
 }
 
 const uploadCount = sql<number>`(SELECT count(*)::int FROM ${uploads} WHERE ${uploads.studyId} = ${studies.id})`;
+const committedUploadCount = sql<number>`(SELECT count(*)::int FROM ${uploads} WHERE ${uploads.studyId} = ${studies.id} AND ${uploads.status} = 'committed')`;
 const donorResultCount = sql<number>`(SELECT count(*)::int FROM ${donorResults} WHERE ${donorResults.studyId} = ${studies.id})`;
 
 /** Every study, newest first, with its analyte's code and counts. */
 export async function listStudies(executor: Executor): Promise<StudySummary[]> {
   const rows = await executor
-    .select({ study: studies, analyteCode: analytes.code, uploadCount, donorResultCount })
+    .select({ study: studies, analyteCode: analytes.code, uploadCount, committedUploadCount, donorResultCount })
     .from(studies)
     .innerJoin(analytes, eq(analytes.id, studies.analyteId))
     .orderBy(desc(studies.createdAt), desc(studies.id));
-  return rows.map((r) => ({ ...r.study, analyteCode: r.analyteCode, uploadCount: r.uploadCount, donorResultCount: r.donorResultCount }));
+  return rows.map((r) => ({
+    ...r.study,
+    analyteCode: r.analyteCode,
+    uploadCount: r.uploadCount,
+    committedUploadCount: r.committedUploadCount,
+    donorResultCount: r.donorResultCount,
+  }));
 }
 
 export async function findStudy(executor: Executor, { id }: { id: string }): Promise<Study | undefined> {
@@ -141,4 +150,76 @@ function describePlan(plan: NonNullable<Study["partitionPlan"]>): string {
   if (plan.sex) parts.push("by sex");
   if (plan.ageBands) parts.push(`by age ${plan.ageBands.map(([a, b]) => `[${a}, ${b})`).join(", ")}`);
   return parts.length > 0 ? parts.join(" and ") : "one partition of everyone";
+}
+
+/** How many of the study's donor results have an exclusion in effect (not undone). */
+export async function countActiveExclusions(executor: Executor, { studyId }: { studyId: string }): Promise<number> {
+  const [row] = await executor
+    .select({ n: sql<number>`count(*)::int` })
+    .from(exclusions)
+    .where(and(eq(exclusions.studyId, studyId), isNull(exclusions.undoneAt)));
+  return row.n;
+}
+
+/** Who closed a study, by name, for the page that says it is closed. */
+export async function studyCloser(executor: Executor, { study }: { study: Study }): Promise<{ id: string; name: string } | null> {
+  if (!study.closedBy) return null;
+  const [row] = await executor.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, study.closedBy)).limit(1);
+  return row ?? null;
+}
+
+export interface ClosedStudy {
+  id: string;
+  status: "closed";
+  closedAt: Date;
+  closedBy: { id: string; name: string } | null;
+  /** Uploads that were still pending, cancelled with the study. */
+  cancelledUploads: { id: string; fileName: string }[];
+}
+
+/**
+ * Closes an open study: it takes no more uploads, exclusions or estimates. Pending uploads are
+ * cancelled in the same transaction, each on the audit trail with the closing. 404 for an
+ * unknown study, 409 when it is already closed.
+ */
+export async function closeStudy(database: Database, { id, actor }: { id: string; actor: Actor }): Promise<ClosedStudy> {
+  return database.transaction(async (tx) => {
+    const [study] = await tx.select().from(studies).where(eq(studies.id, id)).for("update");
+    if (!study) throw new AppError("not_found", `There is no study with the id ${id}.`);
+    if (study.status === "closed") {
+      const when = study.closedAt ? ` on ${study.closedAt.toISOString().slice(0, 10)}` : "";
+      throw new AppError("conflict", `The study is closed: it was closed${when} and cannot be closed again.`);
+    }
+    const now = new Date();
+    const cancelled = await tx
+      .update(uploads)
+      .set({ status: "cancelled", pendingRows: null, decidedBy: actor.id, decidedAt: now })
+      .where(and(eq(uploads.studyId, id), eq(uploads.status, "pending")))
+      .returning({ id: uploads.id, fileName: uploads.fileName });
+    for (const upload of cancelled) {
+      await recordAuditEvent(tx, {
+        actor,
+        action: "upload.cancelled",
+        entityType: "upload",
+        entityId: upload.id,
+        summary: `Cancelled the upload of ${upload.fileName}: the study "${study.title}" was closed`,
+        details: { studyId: id, reason: "study closed" },
+      });
+    }
+    const [closed] = await tx
+      .update(studies)
+      .set({ status: "closed", closedAt: now, closedBy: actor.id })
+      .where(eq(studies.id, id))
+      .returning();
+    await recordAuditEvent(tx, {
+      actor,
+      action: "study.closed",
+      entityType: "study",
+      entityId: id,
+      summary: `Closed the study "${study.title}"`,
+      details: { cancelledUploads: cancelled.map((u) => u.id) },
+    });
+    const closedBy = await studyCloser(tx, { study: closed });
+    return { id, status: "closed" as const, closedAt: closed.closedAt!, closedBy, cancelledUploads: cancelled };
+  });
 }

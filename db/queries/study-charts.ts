@@ -1,8 +1,11 @@
 import "server-only";
-import { and, asc, eq, gte, inArray, lt, sql, type SQL } from "drizzle-orm";
+import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import type { Executor } from "../client";
-import { donorResults, estimates, exclusions } from "../schema";
+import type { DonorValue } from "@/lib/stats/estimate";
+import { donorResults, type Estimate } from "../schema";
+import { listIncludedDonorValues } from "./donor-results";
+import { findEstimateRow, valuesOfEstimate } from "./estimates";
 
 /**
  * Whether an exclusion of the donor result is in effect. Written with qualified names: Drizzle
@@ -23,27 +26,16 @@ export interface PartitionValues {
   censored: { below: number; above: number };
 }
 
-function partitionWhere(studyId: string, p: ChartPartition): SQL[] {
-  const parts: SQL[] = [eq(donorResults.studyId, studyId)];
-  if (p.sex) parts.push(eq(donorResults.sex, p.sex));
-  if (p.ageFrom !== undefined) parts.push(gte(donorResults.ageYears, p.ageFrom));
-  if (p.ageTo !== undefined) parts.push(lt(donorResults.ageYears, p.ageTo));
-  return parts;
-}
-
-async function valuesWhere(executor: Executor, where: SQL[]): Promise<PartitionValues> {
-  const rows = await executor
-    .select({ value: donorResults.value, side: donorResults.censoringSide })
-    .from(donorResults)
-    .where(and(...where))
-    .orderBy(asc(donorResults.value));
+function split(values: readonly (DonorValue | { value: number; censoringSide: "below" | "above" | null })[]): PartitionValues {
   const measured: number[] = [];
   const censored = { below: 0, above: 0 };
-  for (const r of rows) {
-    if (r.side === "below") censored.below++;
-    else if (r.side === "above") censored.above++;
-    else measured.push(r.value);
+  for (const v of values) {
+    const side = typeof v === "number" ? null : "censoringSide" in v ? v.censoringSide : v.side;
+    if (side === "below") censored.below++;
+    else if (side === "above") censored.above++;
+    else measured.push(typeof v === "number" ? v : v.value);
   }
+  measured.sort((a, b) => a - b);
   return { measured, censored };
 }
 
@@ -52,42 +44,27 @@ export async function partitionValues(
   executor: Executor,
   { studyId, partition }: { studyId: string; partition: ChartPartition },
 ): Promise<PartitionValues> {
-  return valuesWhere(executor, [...partitionWhere(studyId, partition), sql`NOT ${excludedNow}`]);
+  return split(await listIncludedDonorValues(executor, { studyId, partition }));
 }
 
 export interface EstimateValues extends PartitionValues {
-  estimate: { id: string; partition: ChartPartition; document: Record<string, unknown> };
+  estimate: Estimate;
 }
 
 /**
- * The values an estimate was made from: its partition's donor results less the exclusions that
- * were in effect when it was made (its `exclusionIds`), whatever has been excluded or undone since.
+ * The values an estimate was made from (valuesOfEstimate: its partition, uploads and the
+ * exclusions in effect then, whatever has been excluded or undone since), measured ones sorted.
  * 404 when the study has no such estimate.
  */
 export async function estimateValues(
   executor: Executor,
   { studyId, estimateId }: { studyId: string; estimateId: string },
 ): Promise<EstimateValues> {
-  const [row] = await executor
-    .select()
-    .from(estimates)
-    .where(and(eq(estimates.id, estimateId), eq(estimates.studyId, studyId)))
-    .limit(1);
-  if (!row) throw new AppError("not_found", `The study has no estimate with the id ${estimateId}.`);
-  const partition: ChartPartition = {};
-  if (row.sex === "F" || row.sex === "M") partition.sex = row.sex;
-  if (row.ageFrom !== null) partition.ageFrom = row.ageFrom;
-  if (row.ageTo !== null) partition.ageTo = row.ageTo;
-  const where = partitionWhere(studyId, partition);
-  if (row.exclusionIds.length > 0) {
-    const excludedIds = executor
-      .select({ id: exclusions.donorResultId })
-      .from(exclusions)
-      .where(and(eq(exclusions.studyId, studyId), inArray(exclusions.id, row.exclusionIds)));
-    where.push(sql`${donorResults.id} NOT IN ${excludedIds}`);
+  const estimate = await findEstimateRow(executor, { id: estimateId });
+  if (!estimate || estimate.studyId !== studyId) {
+    throw new AppError("not_found", `There is no estimate with the id ${estimateId} in this study.`);
   }
-  const values = await valuesWhere(executor, where);
-  return { ...values, estimate: { id: row.id, partition, document: row.document } };
+  return { ...split(await valuesOfEstimate(executor, { estimate })), estimate };
 }
 
 /** The study's donor results with the given donor codes, and whether an exclusion is in effect for each. */

@@ -9,8 +9,8 @@ export type IntervalVersionState = "draft" | "awaiting_signoff" | "in_force" | "
  * states its limits in that unit with those decimals, and changing either afterwards would
  * silently change what was signed. Drafts are still editable, so they do not lock anything.
  *
- * Interval versions do not exist yet; the versions work passes the states of the analyte's
- * versions here (updateAnalyte in db/queries/analytes.ts is the one caller).
+ * updateAnalyte in db/queries/analytes.ts is the one caller: it passes the states of the
+ * analyte's versions, read in its transaction.
  */
 export function unitAndDecimalsLocked(versionStates: readonly IntervalVersionState[]): boolean {
   return versionStates.some((state) => state !== "draft");

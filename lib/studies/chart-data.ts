@@ -25,11 +25,6 @@ export const partitionQuery = z
 
 export type PartitionQuery = z.output<typeof partitionQuery>;
 
-export const estimateIdParams = z.object({
-  id: z.uuid("The study id must be a UUID."),
-  estimateId: z.uuid("The estimate id must be a UUID."),
-});
-
 export const lookupQuery = z
   .object({
     codes: z

@@ -1,6 +1,6 @@
 import { z } from "zod";
-import { AppError } from "@/lib/api/errors";
-import { TEMPLATE_COLUMNS, type ColumnMapping } from "@/lib/uploads";
+import { AppError, type ErrorCode } from "@/lib/api/errors";
+import { TEMPLATE_COLUMNS, type ColumnMapping, type UploadError } from "@/lib/uploads";
 
 /** The multipart request's size limit: the 20 MB file plus room for the other fields and the boundaries. */
 export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
@@ -49,4 +49,11 @@ export function readUploadForm(form: FormData): UploadForm {
   const sheetText = form.get("sheet");
   const sheet = typeof sheetText === "string" && sheetText.trim() !== "" ? sheetText : undefined;
   return { file, mapping, decimalComma, sheet };
+}
+
+const REFUSAL_CODE: Record<413 | 415 | 422, ErrorCode> = { 413: "payload_too_large", 415: "unsupported_media_type", 422: "invalid" };
+
+/** A file refused whole, as the API answers it: the status lib/uploads gives, its message, its code and details. */
+export function uploadRefusal(err: UploadError): AppError {
+  return new AppError(REFUSAL_CODE[err.status], err.message, { ...err.details, uploadError: err.code });
 }

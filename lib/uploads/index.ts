@@ -23,5 +23,6 @@ export {
   type UploadProgress,
   type ValidationReport,
 } from "./check";
-export { previewUpload, type PreviewOptions, type UploadPreview } from "./preview";
+export { inspectUpload, previewUpload, type InspectOptions, type PreviewOptions, type UploadInspection, type UploadPreview } from "./preview";
+export { suggestMapping } from "./suggest";
 export { templateCsv, templateXlsx, type TemplateOptions } from "./template";

@@ -20,7 +20,12 @@ function list(items: readonly string[]): string {
   return items.map((h) => `"${h}"`).join(", ");
 }
 
-export function resolveColumns(headers: readonly string[], mapping: ColumnMapping = {}): ResolvedColumns {
+/**
+ * Matches the file's headers to the template's columns (the mapping first, then the template's
+ * own names) without requiring any column: refuses only a mapping that names an unknown template
+ * column, a header the file lacks, or one header for two columns.
+ */
+export function matchColumns(headers: readonly string[], mapping: ColumnMapping = {}): ResolvedColumns {
   const details = { headers: [...headers] };
   const known = new Set<string>(TEMPLATE_COLUMNS);
   for (const key of Object.keys(mapping)) {
@@ -74,20 +79,37 @@ export function resolveColumns(headers: readonly string[], mapping: ColumnMappin
       resolved[column] = null;
     }
   }
+  return { mapping: resolved, index };
+}
+
+/**
+ * Why the matched columns cannot be read as donor results (donor_code, sex, value or every
+ * complete age form unmapped), as the refusal that checking would throw; null when complete.
+ */
+export function incompleteMapping(headers: readonly string[], index: ResolvedColumns["index"]): UploadError | null {
+  const details = { headers: [...headers] };
   const missing = (["donor_code", "sex", "value"] as const).filter((c) => index[c] === -1);
   if (missing.length > 0) {
-    throw new UploadError(
+    return new UploadError(
       "mapping",
       `no column of the file is mapped to ${missing.join(", ")}; name the file's header for ${missing.length === 1 ? "it" : "each"} in the mapping (its headers: ${list(headers)})`,
       details,
     );
   }
   if (index.age_years === -1 && (index.birth_date === -1 || index.collected_on === -1)) {
-    throw new UploadError(
+    return new UploadError(
       "mapping",
       `no column of the file is mapped to the age; map age_years, or both birth_date and collected_on (its headers: ${list(headers)})`,
       details,
     );
   }
-  return { mapping: resolved, index };
+  return null;
+}
+
+/** {@link matchColumns}, refusing a result that cannot be read as donor results. */
+export function resolveColumns(headers: readonly string[], mapping: ColumnMapping = {}): ResolvedColumns {
+  const resolved = matchColumns(headers, mapping);
+  const refusal = incompleteMapping(headers, resolved.index);
+  if (refusal) throw refusal;
+  return resolved;
 }

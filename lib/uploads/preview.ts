@@ -4,7 +4,8 @@
  */
 import { TEMPLATE_COLUMNS, type ColumnMapping, type TemplateColumn } from "./columns";
 import { collectBytes, sniffFile, type UploadInput } from "./input";
-import { resolveColumns, type ResolvedMapping } from "./mapping";
+import { incompleteMapping, matchColumns, type ResolvedColumns, type ResolvedMapping } from "./mapping";
+import { suggestMapping } from "./suggest";
 import { readTable, type TableInfo } from "./table";
 import { cellText } from "./values";
 import { UploadError } from "./errors";
@@ -28,20 +29,40 @@ export interface UploadPreview {
   rows: { row: number; cells: Record<TemplateColumn, string | null> }[];
 }
 
+export interface InspectOptions extends PreviewOptions {
+  /** Without a mapping of the caller's, apply {@link suggestMapping}'s guess (default: the template's names only). */
+  suggest?: boolean;
+}
+
+export interface UploadInspection extends UploadPreview {
+  /** The guess for this file's headers (template column → header). */
+  suggested: ColumnMapping;
+  /** Whether the file's headers hold every template column under its own name. */
+  matchesTemplate: boolean;
+  /** Why the mapping applied cannot be read as donor results yet; null when it can. */
+  incomplete: string | null;
+  /** The same rows as the file has them, one text per header. */
+  fileRows: { row: number; cells: string[] }[];
+}
+
 /**
- * Throws UploadError like checkUpload for an unreadable, empty or too large file, an unknown
- * sheet, or a mapping it refuses; a refused mapping carries the file's headers in `details`.
+ * The headers, the mapping (the caller's, the guess or the template's names) and the first rows,
+ * also when the mapping is not complete yet. Throws UploadError like checkUpload for an
+ * unreadable, empty or too large file, an unknown sheet, or a mapping naming what the file lacks.
  */
-export async function previewUpload(input: UploadInput, options: PreviewOptions = {}): Promise<UploadPreview> {
+export async function inspectUpload(input: UploadInput, options: InspectOptions = {}): Promise<UploadInspection> {
   const limit = options.rows ?? 20;
   const file = sniffFile(await collectBytes(input));
   let info: TableInfo | null = null;
-  let resolved: ReturnType<typeof resolveColumns> | null = null;
+  let resolved: ResolvedColumns | null = null;
+  let suggested: ColumnMapping = {};
   const rows: UploadPreview["rows"] = [];
+  const fileRows: UploadInspection["fileRows"] = [];
   const found = await readTable(file, options.sheet, {
     onHeader: (table) => {
       info = table;
-      resolved = resolveColumns(table.headers, options.mapping);
+      suggested = suggestMapping(table.headers);
+      resolved = matchColumns(table.headers, options.mapping ?? (options.suggest ? suggested : undefined));
     },
     onRow: (cells, row) => {
       if (rows.length >= limit) return false;
@@ -49,12 +70,14 @@ export async function previewUpload(input: UploadInput, options: PreviewOptions 
       const out = {} as Record<TemplateColumn, string | null>;
       for (const column of TEMPLATE_COLUMNS) out[column] = index[column] === -1 ? null : cellText(cells[index[column]]);
       rows.push({ row, cells: out });
+      fileRows.push({ row, cells: info!.headers.map((_, i) => cellText(cells[i])) });
       return rows.length < limit;
     },
   });
   if (!found || info === null) throw new UploadError("empty", "the file is empty");
   if (rows.length === 0 && limit > 0) throw new UploadError("no_data_rows", "the file has a header row but no data rows");
   const table = info as TableInfo;
+  const lower = new Set(table.headers.map((h) => h.toLowerCase()));
   return {
     format: table.format,
     separator: table.separator,
@@ -63,5 +86,21 @@ export async function previewUpload(input: UploadInput, options: PreviewOptions 
     headers: table.headers,
     mapping: resolved!.mapping,
     rows,
+    suggested,
+    matchesTemplate: TEMPLATE_COLUMNS.every((c) => lower.has(c)),
+    incomplete: incompleteMapping(table.headers, resolved!.index)?.message ?? null,
+    fileRows,
   };
 }
+
+/**
+ * Like {@link inspectUpload} with the caller's mapping or the template's names, but refuses, with
+ * the file's headers in `details`, a mapping that leaves a required column unmapped.
+ */
+export async function previewUpload(input: UploadInput, options: PreviewOptions = {}): Promise<UploadPreview> {
+  const inspection = await inspectUpload(input, options);
+  if (inspection.incomplete !== null) throw new UploadError("mapping", inspection.incomplete, { headers: [...inspection.headers] });
+  const { format, separator, sheet, sheets, headers, mapping, rows } = inspection;
+  return { format, separator, sheet, sheets, headers, mapping, rows };
+}
+

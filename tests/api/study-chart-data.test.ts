@@ -39,24 +39,22 @@ beforeAll(async () => {
   const committed = await fetch(`${BASE_URL}/api/v1/studies/${studyId}/uploads/${report.id}/commit`, { method: "POST", headers: { cookie: cookies.scientist } });
   expect(await committed.json()).toEqual({ status: "committed", stored: 160 });
 
-  // The state an estimate of the women leaves behind: F001 excluded at the time, the parametric
-  // model on the ln scale. The estimate route is another section's; the rows are written here.
-  const { rows: [user] } = await pool.query("SELECT id FROM users WHERE email = $1", [demoUser("scientist").email]);
+  // F001 excluded, the women estimated on the ln scale, then the exclusion undone.
+  const send = (method: string, pathname: string, body?: unknown) =>
+    fetch(`${BASE_URL}${pathname}`, {
+      method,
+      headers: { cookie: cookies.scientist, ...(body ? { "content-type": "application/json" } : {}) },
+      body: body ? JSON.stringify(body) : undefined,
+    });
   const { rows: [f001] } = await pool.query("SELECT id FROM donor_results WHERE study_id = $1 AND donor_code = 'F001'", [studyId]);
-  const { rows: [ex] } = await pool.query(
-    "INSERT INTO exclusions (study_id, donor_result_id, source, reason, created_by) VALUES ($1, $2, 'manual', 'haemolysed', $3) RETURNING id",
-    [studyId, f001.id, user.id],
-  );
-  exclusionId = ex.id;
-  const document = { parametric: { transform: "ln", lambda: null } };
-  const { rows: [est] } = await pool.query(
-    `INSERT INTO estimates (study_id, sex, options, seed, n, document, exclusion_ids, upload_hashes, created_by)
-     VALUES ($1, 'F', '{}', 1, 79, $2, $3, '[]', $4) RETURNING id`,
-    [studyId, JSON.stringify(document), JSON.stringify([exclusionId]), user.id],
-  );
-  estimateId = est.id;
+  const excluded = await send("POST", `/api/v1/studies/${studyId}/exclusions`, { donorResultIds: [Number(f001.id)], reason: "Haemolysed specimen" });
+  expect(excluded.status).toBe(201);
+  exclusionId = (await excluded.json()).items[0].id;
+  const estimated = await send("POST", `/api/v1/studies/${studyId}/estimates`, { partition: { sex: "F" }, outliers: "none", transform: "ln", seed: 1 });
+  expect(estimated.status).toBe(201);
+  estimateId = (await estimated.json()).id;
   // Undone since: the chart of the estimate still leaves F001 out; the partition as it stands does not.
-  await pool.query("UPDATE exclusions SET undone_at = now(), undone_by = $2 WHERE id = $1", [exclusionId, user.id]);
+  expect((await send("DELETE", `/api/v1/studies/${studyId}/exclusions/${exclusionId}`)).status).toBe(200);
 });
 
 describe("GET /api/v1/studies/{id}/estimates/{estimateId}/chart-data", () => {
@@ -71,7 +69,7 @@ describe("GET /api/v1/studies/{id}/estimates/{estimateId}/chart-data", () => {
       expect(res.status).toBe(200);
       const body = await res.json();
       // 80 women, less F001 (excluded when the estimate was made) and F040 (censored).
-      expect(body).toMatchObject({ estimateId, partition: { sex: "F" }, n: 78, censored: { below: 1, above: 0 }, scale: { transform: "ln", lambda: null } });
+      expect(body).toMatchObject({ estimateId, partition: { sex: "F", ageFrom: null, ageTo: null }, n: 78, censored: { below: 1, above: 0 }, scale: { transform: "ln", lambda: null } });
       // R 4.2: x <- the 78 values; k <- nclass.FD(x) (8);
       // table(cut(x, seq(min(x), max(x), length.out = k + 1), include.lowest = TRUE, right = FALSE))
       expect(body.histogram.rule).toBe("freedman-diaconis");
@@ -96,7 +94,7 @@ describe("GET /api/v1/studies/{id}/estimates/{estimateId}/chart-data", () => {
     const missing = "00000000-0000-4000-8000-000000000000";
     const res = await get(`/api/v1/studies/${studyId}/estimates/${missing}/chart-data`, "scientist");
     expect(res.status).toBe(404);
-    expect((await res.json()).detail).toBe(`The study has no estimate with the id ${missing}.`);
+    expect((await res.json()).detail).toBe(`There is no estimate with the id ${missing} in this study.`);
     const other = await get(`/api/v1/studies/${missing}/estimates/${estimateId}/chart-data`, "scientist");
     expect(other.status).toBe(404);
     expect((await other.json()).detail).toBe(`There is no study with the id ${missing}.`);
@@ -119,9 +117,13 @@ describe("GET /api/v1/studies/{id}/chart-data (a partition as it stands)", () =>
   });
 
   it("leaves out a donor result whose exclusion is in effect", async () => {
-    const { rows: [user] } = await pool.query("SELECT id FROM users WHERE email = $1", [demoUser("director").email]);
     const { rows: [m017] } = await pool.query("SELECT id FROM donor_results WHERE study_id = $1 AND donor_code = 'M017'", [studyId]);
-    await pool.query("INSERT INTO exclusions (study_id, donor_result_id, source, reason, created_by) VALUES ($1, $2, 'manual', 'not fasting', $3)", [studyId, m017.id, user.id]);
+    const excluded = await fetch(`${BASE_URL}/api/v1/studies/${studyId}/exclusions`, {
+      method: "POST",
+      headers: { cookie: cookies.director, "content-type": "application/json" },
+      body: JSON.stringify({ donorResultIds: [Number(m017.id)], reason: "Not fasting" }),
+    });
+    expect(excluded.status).toBe(201);
     const body = await (await get(`/api/v1/studies/${studyId}/chart-data?sex=M&ageFrom=0&ageTo=130`, "scientist")).json();
     expect(body.n).toBe(79);
     expect(body.points.some((p: { value: number }) => p.value === 11.8)).toBe(false);

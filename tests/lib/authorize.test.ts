@@ -74,9 +74,9 @@ describe("authorize", () => {
 describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
     expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/audit", "/account"]);
-    // UX.md: Analytes for the scientist and the director only.
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/analytes", "/audit", "/account"]);
-    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/analytes", "/account"]);
+    // UX.md: Studies and Analytes for the scientist and the director only, Studies first.
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/studies", "/analytes", "/audit", "/account"]);
+    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/analytes", "/account"]);
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });
 });

@@ -1,4 +1,5 @@
 import type { ReactNode } from "react";
+import { StudySection } from "@/components/studies/study-section";
 import { errorMessage, nextStep } from "./api";
 
 /** An error as the page shows it: what went wrong, then what to do next. */
@@ -53,10 +54,7 @@ export interface SectionState {
   next?: ReactNode;
 }
 
-/**
- * A step of the study page, drawn like the page's other steps: its anchor, numbered heading,
- * "Done" and "Next" lines, then the work.
- */
+/** A step of the study page, in the page frame's StudySection: anchor, numbered heading, "Done" and "Next". */
 export function AnalysisSection({
   id,
   step,
@@ -71,33 +69,9 @@ export function AnalysisSection({
   children: ReactNode;
 }) {
   return (
-    <section id={id} aria-labelledby={`${id}-heading`} className="min-w-0 scroll-mt-4 rounded-lg border border-ink-200 bg-white">
-      <header className="border-b border-ink-100 px-4 py-3">
-        <h2 id={`${id}-heading`} className="flex items-baseline gap-2">
-          <span className="text-sm font-medium text-ink-400">{step}.</span>
-          {title}
-        </h2>
-        <dl className="mt-1.5 grid gap-x-4 gap-y-1 text-sm sm:grid-cols-[auto_1fr]">
-          {state.done ? (
-            <>
-              <dt className="font-medium text-ink-600">Done</dt>
-              <dd className="text-ink-800" data-testid={`${id}-done`}>
-                {state.done}
-              </dd>
-            </>
-          ) : null}
-          {state.next ? (
-            <>
-              <dt className="font-medium text-ink-600">Next</dt>
-              <dd className="text-ink-800" data-testid={`${id}-next`}>
-                {state.next}
-              </dd>
-            </>
-          ) : null}
-        </dl>
-      </header>
-      <div className="space-y-5 p-4">{children}</div>
-    </section>
+    <StudySection id={id} step={step} title={title} done={state.done} next={state.next}>
+      {children}
+    </StudySection>
   );
 }
 

@@ -3,7 +3,8 @@ import { findStudy } from "@/db/queries/studies";
 import { estimateValues } from "@/db/queries/study-charts";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
-import { estimateCharts, estimateIdParams, type Scale } from "@/lib/studies/chart-data";
+import { estimateCharts, type Scale } from "@/lib/studies/chart-data";
+import { estimateIdParams, partitionOut } from "@/lib/studies/estimate-input";
 
 export const dynamic = "force-dynamic";
 
@@ -17,5 +18,5 @@ export const GET = apiRoute({ permission: "donors:read", params: estimateIdParam
   const { estimate, measured, censored } = await estimateValues(db(), { studyId: id, estimateId });
   const parametric = (estimate.document.parametric ?? {}) as { transform?: Scale["transform"]; lambda?: number | null };
   const scale: Scale = { transform: parametric.transform ?? "none", lambda: parametric.lambda ?? null };
-  return { estimateId, partition: estimate.partition, n: measured.length, censored, scale, ...estimateCharts(measured, scale) };
+  return { estimateId, partition: partitionOut(estimate), n: measured.length, censored, scale, ...estimateCharts(measured, scale) };
 });

@@ -1,0 +1,36 @@
+import { z } from "zod";
+import { db } from "@/db/client";
+import { findAnalyteByCode } from "@/db/queries/analytes";
+import { AppError } from "@/lib/api/errors";
+import { apiRoute } from "@/lib/api/handler";
+import { templateCsv, templateXlsx } from "@/lib/uploads";
+
+export const dynamic = "force-dynamic";
+
+const templateQuery = z
+  .object({
+    format: z.enum(["csv", "xlsx"], "format is csv or xlsx."),
+    analyte: z.string().trim().min(1).max(16).optional(),
+  })
+  .strict();
+
+const XLSX_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
+
+/**
+ * The blank template for healthy-donor uploads, as CSV or XLSX. With `analyte` (a code), its
+ * example row is in that analyte's unit; without, the example's unit is left empty (the study's
+ * analyte's unit).
+ */
+export const GET = apiRoute({ permission: "studies:write", query: templateQuery }, async ({ query }) => {
+  let unit = "";
+  if (query.analyte) {
+    const analyte = await findAnalyteByCode(db(), { code: query.analyte });
+    if (!analyte) throw new AppError("invalid", `There is no analyte with the code ${query.analyte}.`);
+    unit = analyte.unit;
+  }
+  const name = `bellwether-donor-results${query.analyte ? `-${query.analyte}` : ""}.${query.format}`;
+  const headers = { "content-disposition": `attachment; filename="${name}"`, "cache-control": "no-store" };
+  if (query.format === "csv") return new Response(templateCsv({ unit }), { headers: { ...headers, "content-type": "text/csv; charset=utf-8" } });
+  const body = await templateXlsx({ unit });
+  return new Response(new Uint8Array(body), { headers: { ...headers, "content-type": XLSX_TYPE } });
+});

@@ -1,0 +1,421 @@
+import "server-only";
+import { and, asc, desc, eq, inArray, max, type SQL } from "drizzle-orm";
+import { alias } from "drizzle-orm/pg-core";
+import { AppError } from "@/lib/api/errors";
+import type { IntervalVersionState } from "@/lib/analytes/unit-lock";
+import { scoringModelSchema, scoringPartitionSchema, type ScoringModel } from "@/lib/scoring/model";
+import type { ReferenceIntervalEstimate } from "@/lib/stats/estimate";
+import { partitionLabel, partitionOut, type PartitionOut } from "@/lib/studies/estimate-input";
+import { ageYearsToDays } from "@/lib/versions/age-days";
+import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, VersionPartitionInput } from "@/lib/versions/input";
+import { firstOverlap } from "@/lib/versions/overlap";
+import { publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
+import type { Database, Executor } from "../client";
+import { analytes, estimates, intervalPartitions, intervalVersions, studies, users, type IntervalVersion } from "../schema";
+import { recordAuditEvent, type Actor } from "./audit";
+import { valuesOfEstimate } from "./estimates";
+
+/** Attempts at numbering a new version when another took the same number at the same moment. */
+const NUMBERING_ATTEMPTS = 5;
+
+function invalid(path: string, message: string): AppError {
+  return new AppError("invalid", message, { errors: [{ path, message }] });
+}
+
+function isUniqueViolation(err: unknown, constraint: string): boolean {
+  for (let e: unknown = err; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
+    const pg = e as { code?: unknown; constraint?: unknown };
+    if (pg.code === "23505" && pg.constraint === constraint) return true;
+  }
+  return false;
+}
+
+/** The states of an analyte's interval versions, for the unit-and-decimals lock. */
+export async function versionStatesOfAnalyte(executor: Executor, { analyteId }: { analyteId: string }): Promise<IntervalVersionState[]> {
+  const rows = await executor.select({ state: intervalVersions.state }).from(intervalVersions).where(eq(intervalVersions.analyteId, analyteId));
+  return rows.map((r) => r.state);
+}
+
+/** A partition resolved from its estimate and method, ready to store. */
+interface ResolvedPartition {
+  scope: PartitionOut;
+  sex: "F" | "M" | null;
+  ageFromDays: number | null;
+  ageToDays: number | null;
+  low: number;
+  high: number;
+  lowCi: [number, number] | null;
+  highCi: [number, number] | null;
+  method: PartitionMethod;
+  n: number;
+  model: ScoringModel;
+  estimateId: string;
+}
+
+/**
+ * Each requested partition from its estimate (which must belong to the study) and method (which
+ * must have limits there): the limits, their CIs, n and the scoring model, the age band in days.
+ * Refuses partitions that overlap.
+ */
+async function resolvePartitions(
+  executor: Executor,
+  { studyId, partitions }: { studyId: string; partitions: VersionPartitionInput[] },
+): Promise<ResolvedPartition[]> {
+  const resolved: ResolvedPartition[] = [];
+  for (const [i, request] of partitions.entries()) {
+    const path = `partitions.${i}`;
+    const [estimate] = await executor
+      .select()
+      .from(estimates)
+      .where(and(eq(estimates.id, request.estimate), eq(estimates.studyId, studyId)))
+      .limit(1);
+    if (!estimate) throw invalid(`${path}.estimate`, `${path}.estimate: there is no estimate with the id ${request.estimate} in the study ${studyId}.`);
+    const document = estimate.document as unknown as ReferenceIntervalEstimate;
+    const limits = document[request.method];
+    if (limits.lower === null || limits.upper === null) {
+      throw invalid(`${path}.method`, `${path}.method: the estimate ${estimate.id} has no ${request.method} limits; choose a method that gave both limits.`);
+    }
+    let values;
+    if (request.method === "nonparametric") {
+      values = await valuesOfEstimate(executor, { estimate });
+      if (values.length !== estimate.n) {
+        throw new AppError(
+          "conflict",
+          `${path}: the donor results behind the estimate ${estimate.id} no longer match it (${values.length} values found, ${estimate.n} estimated); estimate again.`,
+        );
+      }
+    }
+    let model: ScoringModel;
+    try {
+      model = scoringModelFor({ document, method: request.method, values });
+    } catch (err) {
+      if (err instanceof ScoringModelError) throw invalid(`${path}.method`, `${path}.method: ${err.message}.`);
+      throw err;
+    }
+    const scope = partitionOut(estimate);
+    resolved.push({
+      scope,
+      sex: scope.sex,
+      ageFromDays: ageYearsToDays(scope.ageFrom),
+      ageToDays: ageYearsToDays(scope.ageTo),
+      low: limits.lower,
+      high: limits.upper,
+      lowCi: limits.lowerCi,
+      highCi: limits.upperCi,
+      method: request.method,
+      n: estimate.n,
+      model,
+      estimateId: estimate.id,
+    });
+  }
+  const overlap = firstOverlap(resolved);
+  if (overlap) {
+    const [a, b] = overlap;
+    throw invalid(
+      "partitions",
+      `partitions.${a} (${partitionLabel(resolved[a].scope)}) and partitions.${b} (${partitionLabel(resolved[b].scope)}) overlap: each patient must fall in one partition only.`,
+    );
+  }
+  return resolved;
+}
+
+/**
+ * The critical limits against each other and against every partition's limits, as scoring will
+ * check them (lib/scoring/model.ts's partition schema), with the model validated once more.
+ */
+function assertScorable(
+  partitions: { low: number | null; high: number | null; model: unknown; n: number }[],
+  { unit, decimals, criticalLow, criticalHigh }: { unit: string; decimals: number; criticalLow: number | null; criticalHigh: number | null },
+): void {
+  if (criticalLow !== null && criticalHigh !== null && !(criticalLow < criticalHigh)) {
+    throw invalid("criticalLow", `criticalLow (${criticalLow}) must be below criticalHigh (${criticalHigh}).`);
+  }
+  for (const [i, p] of partitions.entries()) {
+    const parsed = scoringPartitionSchema.safeParse({
+      low: p.low,
+      high: p.high,
+      unit,
+      decimals,
+      criticalLow: criticalLow ?? undefined,
+      criticalHigh: criticalHigh ?? undefined,
+      model: p.model,
+      n: p.n,
+    });
+    if (!parsed.success) {
+      const issue = parsed.error.issues[0];
+      const field = issue.path.map(String).join(".");
+      const message =
+        field === "criticalLow"
+          ? `criticalLow (${criticalLow}) must not exceed the low limit of partitions.${i} (${p.low}).`
+          : field === "criticalHigh"
+            ? `criticalHigh (${criticalHigh}) must not be below the high limit of partitions.${i} (${p.high}).`
+            : `partitions.${i}: ${field ? `${field}: ` : ""}${issue.message}.`;
+      throw invalid(field === "criticalLow" || field === "criticalHigh" ? field : `partitions.${i}`, message);
+    }
+  }
+}
+
+function partitionRows(versionId: string, partitions: ResolvedPartition[]) {
+  return partitions.map((p, i) => ({
+    versionId,
+    position: i + 1,
+    sex: p.sex,
+    ageFromDays: p.ageFromDays,
+    ageToDays: p.ageToDays,
+    low: p.low,
+    high: p.high,
+    lowCiLower: p.lowCi?.[0] ?? null,
+    lowCiUpper: p.lowCi?.[1] ?? null,
+    highCiLower: p.highCi?.[0] ?? null,
+    highCiUpper: p.highCi?.[1] ?? null,
+    method: p.method,
+    n: p.n,
+    model: p.model as unknown as Record<string, unknown>,
+    estimateId: p.estimateId,
+  }));
+}
+
+/** What the audit trail keeps of a partition: enough to see what was drafted, without donor values. */
+function auditPartitions(partitions: ResolvedPartition[]) {
+  return partitions.map((p) => ({ ...p.scope, method: p.method, low: p.low, high: p.high, n: p.n, estimateId: p.estimateId }));
+}
+
+/**
+ * Drafts an interval version of the analyte from the study's estimates, numbered next for the
+ * analyte in the same transaction. Two drafts numbered at the same moment meet the unique index
+ * on (analyte, number): the loser tries again with the next number, and after a few attempts
+ * answers 409.
+ */
+export async function createIntervalVersion(
+  database: Database,
+  { input, actor }: { input: CreateVersionInput; actor: Actor },
+): Promise<VersionOut> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      const id = await database.transaction(async (tx) => {
+        const [analyte] = await tx.select().from(analytes).where(eq(analytes.code, input.analyte)).limit(1);
+        if (!analyte) throw invalid("analyte", `There is no analyte with the code ${input.analyte}.`);
+        const [study] = await tx.select().from(studies).where(eq(studies.id, input.study)).limit(1);
+        if (!study) throw invalid("study", `There is no study with the id ${input.study}.`);
+        if (study.analyteId !== analyte.id) {
+          throw invalid("study", `The study "${study.title}" is not a study of ${analyte.code}.`);
+        }
+        const partitions = await resolvePartitions(tx, { studyId: study.id, partitions: input.partitions });
+        const criticalLow = input.criticalLow === undefined ? analyte.criticalLow : input.criticalLow;
+        const criticalHigh = input.criticalHigh === undefined ? analyte.criticalHigh : input.criticalHigh;
+        assertScorable(partitions, { unit: analyte.unit, decimals: analyte.decimals, criticalLow, criticalHigh });
+        const [{ last }] = await tx.select({ last: max(intervalVersions.number) }).from(intervalVersions).where(eq(intervalVersions.analyteId, analyte.id));
+        const number = (last ?? 0) + 1;
+        const [version] = await tx
+          .insert(intervalVersions)
+          .values({
+            analyteId: analyte.id,
+            number,
+            studyId: study.id,
+            unit: analyte.unit,
+            decimals: analyte.decimals,
+            criticalLow,
+            criticalHigh,
+            note: input.note || null,
+            createdBy: actor.id,
+            updatedBy: actor.id,
+          })
+          .returning();
+        await tx.insert(intervalPartitions).values(partitionRows(version.id, partitions));
+        await recordAuditEvent(tx, {
+          actor,
+          action: "interval_version.created",
+          entityType: "interval_version",
+          entityId: version.id,
+          summary: `Drafted version ${number} of ${analyte.code} with ${partitions.length} partition${partitions.length === 1 ? "" : "s"}`,
+          details: { analyte: analyte.code, number, studyId: study.id, criticalLow, criticalHigh, note: version.note, partitions: auditPartitions(partitions) },
+        });
+        return version.id;
+      });
+      return await findIntervalVersion(database, { id });
+    } catch (err) {
+      if (!isUniqueViolation(err, "interval_versions_number_unique")) throw err;
+      if (attempt >= NUMBERING_ATTEMPTS) {
+        throw new AppError("conflict", `Other versions of ${input.analyte} were numbered at the same moment; try again.`);
+      }
+    }
+  }
+}
+
+/**
+ * Revises a draft: what the body gives replaces what the draft holds (partitions as a whole;
+ * null clears a critical limit or the note). 409 unless the version is a draft.
+ */
+export async function updateIntervalVersion(
+  database: Database,
+  { id, changes, actor }: { id: string; changes: UpdateVersionInput; actor: Actor },
+): Promise<VersionOut> {
+  await database.transaction(async (tx) => {
+    const [version] = await tx.select().from(intervalVersions).where(eq(intervalVersions.id, id)).for("update");
+    if (!version) throw new AppError("not_found", `There is no interval version with the id ${id}.`);
+    const [analyte] = await tx.select().from(analytes).where(eq(analytes.id, version.analyteId)).limit(1);
+    if (version.state !== "draft") {
+      throw new AppError(
+        "conflict",
+        `Version ${version.number} of ${analyte.code} is ${version.state.replace(/_/g, " ")}: only a draft can be changed.`,
+      );
+    }
+    let partitions: ResolvedPartition[] | null = null;
+    if (changes.partitions) {
+      if (!version.studyId) throw invalid("partitions", "This version has no study to take estimates from.");
+      partitions = await resolvePartitions(tx, { studyId: version.studyId, partitions: changes.partitions });
+    }
+    const criticalLow = changes.criticalLow === undefined ? version.criticalLow : changes.criticalLow;
+    const criticalHigh = changes.criticalHigh === undefined ? version.criticalHigh : changes.criticalHigh;
+    const note = changes.note === undefined ? version.note : changes.note === "" ? null : changes.note;
+    const kept = partitions ?? (await tx.select().from(intervalPartitions).where(eq(intervalPartitions.versionId, id)));
+    assertScorable(kept, { unit: version.unit, decimals: version.decimals, criticalLow, criticalHigh });
+
+    const diff: Record<string, { from: unknown; to: unknown }> = {};
+    if (criticalLow !== version.criticalLow) diff.criticalLow = { from: version.criticalLow, to: criticalLow };
+    if (criticalHigh !== version.criticalHigh) diff.criticalHigh = { from: version.criticalHigh, to: criticalHigh };
+    if (note !== version.note) diff.note = { from: version.note, to: note };
+    if (partitions) {
+      const before = await tx
+        .select({ estimateId: intervalPartitions.estimateId, method: intervalPartitions.method, low: intervalPartitions.low, high: intervalPartitions.high })
+        .from(intervalPartitions)
+        .where(eq(intervalPartitions.versionId, id))
+        .orderBy(asc(intervalPartitions.position));
+      diff.partitions = { from: before, to: auditPartitions(partitions) };
+      // The draft's partitions are replaced as a whole, in this transaction.
+      await tx.delete(intervalPartitions).where(eq(intervalPartitions.versionId, id));
+      await tx.insert(intervalPartitions).values(partitionRows(id, partitions));
+    }
+    await tx
+      .update(intervalVersions)
+      .set({ criticalLow, criticalHigh, note, updatedAt: new Date(), updatedBy: actor.id })
+      .where(eq(intervalVersions.id, id));
+    await recordAuditEvent(tx, {
+      actor,
+      action: "interval_version.updated",
+      entityType: "interval_version",
+      entityId: id,
+      summary: `Revised the draft version ${version.number} of ${analyte.code}${Object.keys(diff).length ? ` (${Object.keys(diff).join(", ")})` : " (nothing changed)"}`,
+      details: { analyte: analyte.code, number: version.number, changes: diff },
+    });
+  });
+  return findIntervalVersion(database, { id });
+}
+
+/** A partition as the API answers it; an empirical model shows its kind and n only. */
+export interface VersionPartitionOut {
+  id: string;
+  position: number;
+  sex: "F" | "M" | null;
+  ageFrom: number | null;
+  ageTo: number | null;
+  ageFromDays: number | null;
+  ageToDays: number | null;
+  low: number | null;
+  high: number | null;
+  lowCi: [number, number] | null;
+  highCi: [number, number] | null;
+  method: string;
+  n: number;
+  model: Record<string, unknown>;
+  estimateId: string | null;
+}
+
+export interface VersionOut {
+  id: string;
+  number: number;
+  state: IntervalVersion["state"];
+  analyte: { code: string; name: string };
+  studyId: string | null;
+  unit: string;
+  decimals: number;
+  criticalLow: number | null;
+  criticalHigh: number | null;
+  note: string | null;
+  returnComment: string | null;
+  createdAt: Date;
+  createdBy: { id: string; name: string } | null;
+  updatedAt: Date;
+  submittedAt: Date | null;
+  effectiveFrom: Date | null;
+  effectiveTo: Date | null;
+  partitions: VersionPartitionOut[];
+}
+
+const pair = (a: number | null, b: number | null): [number, number] | null => (a === null || b === null ? null : [a, b]);
+
+async function versionsWhere(executor: Executor, where: SQL | undefined): Promise<VersionOut[]> {
+  const creator = alias(users, "creator");
+  const rows = await executor
+    .select({ version: intervalVersions, analyte: { code: analytes.code, name: analytes.name }, creator: { id: creator.id, name: creator.name } })
+    .from(intervalVersions)
+    .innerJoin(analytes, eq(analytes.id, intervalVersions.analyteId))
+    .leftJoin(creator, eq(creator.id, intervalVersions.createdBy))
+    .where(where)
+    .orderBy(asc(analytes.code), desc(intervalVersions.number));
+  if (rows.length === 0) return [];
+  const parts = await executor
+    .select({ partition: intervalPartitions, ageFrom: estimates.ageFrom, ageTo: estimates.ageTo })
+    .from(intervalPartitions)
+    .leftJoin(estimates, eq(estimates.id, intervalPartitions.estimateId))
+    .where(inArray(intervalPartitions.versionId, rows.map((r) => r.version.id)))
+    .orderBy(asc(intervalPartitions.versionId), asc(intervalPartitions.position));
+  const byVersion = new Map<string, VersionPartitionOut[]>();
+  for (const { partition: p, ageFrom, ageTo } of parts) {
+    const list = byVersion.get(p.versionId) ?? [];
+    list.push({
+      id: p.id,
+      position: p.position,
+      sex: p.sex as "F" | "M" | null,
+      ageFrom,
+      ageTo,
+      ageFromDays: p.ageFromDays,
+      ageToDays: p.ageToDays,
+      low: p.low,
+      high: p.high,
+      lowCi: pair(p.lowCiLower, p.lowCiUpper),
+      highCi: pair(p.highCiLower, p.highCiUpper),
+      method: p.method,
+      n: p.n,
+      model: publicModel(scoringModelSchema.parse(p.model)),
+      estimateId: p.estimateId,
+    });
+    byVersion.set(p.versionId, list);
+  }
+  return rows.map(({ version: v, analyte, creator: c }) => ({
+    id: v.id,
+    number: v.number,
+    state: v.state,
+    analyte,
+    studyId: v.studyId,
+    unit: v.unit,
+    decimals: v.decimals,
+    criticalLow: v.criticalLow,
+    criticalHigh: v.criticalHigh,
+    note: v.note,
+    returnComment: v.returnComment,
+    createdAt: v.createdAt,
+    createdBy: c && c.id !== null ? { id: c.id, name: c.name } : null,
+    updatedAt: v.updatedAt,
+    submittedAt: v.submittedAt,
+    effectiveFrom: v.effectiveFrom,
+    effectiveTo: v.effectiveTo,
+    partitions: byVersion.get(v.id) ?? [],
+  }));
+}
+
+/** One interval version with its partitions; 404 when unknown. */
+export async function findIntervalVersion(executor: Executor, { id }: { id: string }): Promise<VersionOut> {
+  const [version] = await versionsWhere(executor, eq(intervalVersions.id, id));
+  if (!version) throw new AppError("not_found", `There is no interval version with the id ${id}.`);
+  return version;
+}
+
+/** Interval versions, by analyte code and newest number first, filtered by analyte and state. */
+export async function listIntervalVersions(executor: Executor, { query }: { query: ListVersionsQuery }): Promise<VersionOut[]> {
+  const parts: SQL[] = [];
+  if (query.analyte) parts.push(eq(analytes.code, query.analyte));
+  if (query.state) parts.push(eq(intervalVersions.state, query.state));
+  return versionsWhere(executor, parts.length ? and(...parts) : undefined);
+}
+

@@ -1,0 +1,52 @@
+import { z } from "zod";
+import { OUTLIER_OPTIONS, TRANSFORM_OPTIONS, type OutlierOption, type TransformOption } from "@/lib/stats/estimate";
+import { studyIdParams } from "./input";
+import { partitionLabel as labelOf, partitionSchema, type Partition } from "./partitions";
+
+export type { Partition };
+
+/** The partition as the API answers it: every field present, null for no restriction. */
+export interface PartitionOut {
+  sex: "F" | "M" | null;
+  ageFrom: number | null;
+  ageTo: number | null;
+}
+
+export function partitionOut(p: { sex?: string | null; ageFrom?: number | null; ageTo?: number | null }): PartitionOut {
+  return { sex: (p.sex ?? null) as "F" | "M" | null, ageFrom: p.ageFrom ?? null, ageTo: p.ageTo ?? null };
+}
+
+/** The partition with only its given fields, as lib/studies/partitions.ts takes it. */
+export function partitionOf(p: PartitionOut): Partition {
+  const out: Partition = {};
+  if (p.sex !== null) out.sex = p.sex;
+  if (p.ageFrom !== null) out.ageFrom = p.ageFrom;
+  if (p.ageTo !== null) out.ageTo = p.ageTo;
+  return out;
+}
+
+/** A partition in words (lib/studies/partitions.ts), from the answer's shape. */
+export function partitionLabel(p: PartitionOut): string {
+  return labelOf(partitionOf(p));
+}
+
+/** POST /api/v1/studies/{id}/estimates. */
+export const createEstimateBody = z
+  .object({
+    partition: partitionSchema.optional(),
+    outliers: z.enum(OUTLIER_OPTIONS as [OutlierOption, ...OutlierOption[]], `outliers is one of ${OUTLIER_OPTIONS.join(", ")}.`).default("horn"),
+    transform: z
+      .enum(TRANSFORM_OPTIONS as [TransformOption, ...TransformOption[]], `transform is one of ${TRANSFORM_OPTIONS.join(", ")}.`)
+      .default("auto"),
+    seed: z
+      .number("seed is a whole number.")
+      .int("seed is a whole number.")
+      .min(-2147483648, "seed fits in 32 bits (−2147483648 to 2147483647).")
+      .max(2147483647, "seed fits in 32 bits (−2147483648 to 2147483647).")
+      .default(1),
+  })
+  .strict();
+
+export type CreateEstimateInput = z.output<typeof createEstimateBody>;
+
+export const estimateIdParams = studyIdParams.extend({ estimateId: z.uuid("The estimate id must be a UUID.") });

@@ -1,0 +1,238 @@
+/**
+ * A study as an XLSX workbook for the laboratory's dossier: Summary, Donor results (with
+ * exclusions and reasons), Partitions (the assessments run) and Estimates (one row per estimate
+ * and method). Pure: plain data in, bytes out.
+ *
+ * Text is never a formula. Every string goes in as a string cell (exceljs makes a formula only
+ * from a `{formula}` object, never from text), and carries the Text number format "@", so that a
+ * donor code such as `=cmd|' /C calc'!A0`, `+1`, `-x` or `@SUM(…)` stays text even when someone
+ * edits the cell in a spreadsheet program. Donor codes keep their exact characters.
+ */
+import { PassThrough } from "node:stream";
+import ExcelJS from "exceljs";
+import type { ReferenceIntervalEstimate } from "@/lib/stats/estimate";
+import { partitionLabel, partitionOut } from "./estimate-input";
+
+type CellValue = string | number | boolean | Date | null;
+
+export interface StudyExportData {
+  study: {
+    id: string;
+    title: string;
+    status: string;
+    method: string | null;
+    specimen: string | null;
+    criteria: string | null;
+    collectedFrom: string | null;
+    collectedTo: string | null;
+    createdAt: Date;
+    partitionPlan: { sex: boolean; ageBands: [number, number][] | null } | null;
+  };
+  analyte: { code: string; name: string; unit: string; decimals: number };
+  uploads: {
+    fileName: string;
+    sha256: string;
+    status: string;
+    rowsTotal: number;
+    rowsValid: number;
+    rowsInvalid: number;
+    storedRows: number | null;
+    uploadedAt: Date;
+  }[];
+  donorResults: {
+    id: number;
+    uploadFile: string;
+    rowNumber: number;
+    donorCode: string;
+    sex: string;
+    ageYears: number;
+    ageDays: number;
+    birthDate: string | null;
+    collectedOn: string | null;
+    value: number;
+    censoringSide: "below" | "above" | null;
+    originalValue: number | null;
+    originalUnit: string | null;
+    exclusion: { source: string; rule: string | null; reason: string; createdAt: Date; by: string | null } | null;
+  }[];
+  assessments: { id: string; createdAt: Date; request: Record<string, unknown>; result: Record<string, unknown> }[];
+  estimates: {
+    id: string;
+    createdAt: Date;
+    sex: string | null;
+    ageFrom: number | null;
+    ageTo: number | null;
+    options: Record<string, unknown>;
+    seed: number;
+    n: number;
+    document: Record<string, unknown>;
+    exclusionIds: string[];
+    uploadHashes: string[];
+  }[];
+  exportedAt: Date;
+  exportedBy: string;
+}
+
+const TEXT_FORMAT = "@";
+
+/**
+ * Adds a row and commits it (the workbook is streamed, so a 200,000-row study never sits in
+ * memory as cells), marking every text cell as Text so that it can never be taken for a formula.
+ */
+function addRow(sheet: ExcelJS.Worksheet, values: readonly CellValue[], bold = false): void {
+  const row = sheet.addRow(values as CellValue[]);
+  for (let i = 0; i < values.length; i++) {
+    if (typeof values[i] === "string") {
+      const cell = row.getCell(i + 1);
+      cell.numFmt = TEXT_FORMAT;
+      if (bold) cell.font = { bold: true };
+    }
+  }
+  if (bold && typeof values[0] !== "string") row.getCell(1).font = { bold: true };
+  row.commit();
+}
+
+/** A sheet whose first row, the header, stays in view. */
+function tableSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, name: string, names: readonly string[]): ExcelJS.Worksheet {
+  const sheet = workbook.addWorksheet(name, { views: [{ state: "frozen", ySplit: 1 }] });
+  addRow(sheet, names, true);
+  return sheet;
+}
+
+function num(v: unknown): number | null {
+  return typeof v === "number" && Number.isFinite(v) ? v : null;
+}
+
+function str(v: unknown): string | null {
+  if (v === null || v === undefined) return null;
+  return typeof v === "string" ? v : JSON.stringify(v);
+}
+
+function bandsText(bands: unknown): string | null {
+  if (!Array.isArray(bands)) return null;
+  return bands.map((b) => (Array.isArray(b) ? `[${b[0]}, ${b[1]})` : String(b))).join(" ");
+}
+
+function planText(plan: StudyExportData["study"]["partitionPlan"]): string {
+  if (!plan) return "Not chosen: one partition of everyone";
+  const parts = [plan.sex ? "by sex" : null, plan.ageBands ? `age bands (years) ${bandsText(plan.ageBands)}` : null].filter(Boolean);
+  return parts.length ? parts.join(", ") : "One partition of everyone";
+}
+
+function summarySheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = workbook.addWorksheet("Summary");
+  sheet.columns = [{ width: 28 }, { width: 70 }, { width: 12 }, { width: 12 }, { width: 12 }, { width: 12 }, { width: 22 }];
+  const { study, analyte } = data;
+  const excluded = data.donorResults.filter((d) => d.exclusion !== null).length;
+  const censored = data.donorResults.filter((d) => d.censoringSide !== null).length;
+  const pairs: [string, CellValue][] = [
+    ["Study", study.title],
+    ["Study id", study.id],
+    ["Status", study.status],
+    ["Analyte", `${analyte.code} (${analyte.name})`],
+    ["Unit", analyte.unit],
+    ["Display decimals", analyte.decimals],
+    ["Method / instrument", study.method],
+    ["Specimen", study.specimen],
+    ["Reference individuals and criteria", study.criteria],
+    ["Collection period", study.collectedFrom || study.collectedTo ? `${study.collectedFrom ?? "…"} to ${study.collectedTo ?? "…"}` : null],
+    ["Opened", study.createdAt],
+    ["Donor results", data.donorResults.length],
+    ["Excluded (exclusion in effect)", excluded],
+    ["Used for estimation", data.donorResults.length - excluded],
+    ["Censored values", censored],
+    ["Partition plan", planText(study.partitionPlan)],
+    ["Partition assessments", data.assessments.length],
+    ["Estimates", data.estimates.length],
+    ["Exported", data.exportedAt],
+    ["Exported by", data.exportedBy],
+  ];
+  for (const pair of pairs) addRow(sheet, pair);
+  addRow(sheet, []);
+  addRow(sheet, ["Upload", "SHA-256", "Status", "Rows", "Valid", "Invalid", "Uploaded"], true);
+  for (const u of data.uploads) addRow(sheet, [u.fileName, u.sha256, u.status, u.rowsTotal, u.rowsValid, u.rowsInvalid, u.uploadedAt]);
+  sheet.commit();
+}
+
+function donorSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = tableSheet(workbook, "Donor results", [
+    "Id", "Upload", "Row", "Donor code", "Sex", "Age (years)", "Age (days)", "Birth date", "Collected on",
+    `Value (${data.analyte.unit})`, "Censored", "Original value", "Original unit", "Excluded", "Exclusion source", "Rule", "Reason", "Excluded at", "Excluded by",
+  ]);
+  for (const d of data.donorResults) {
+    const x = d.exclusion;
+    addRow(sheet, [
+      d.id, d.uploadFile, d.rowNumber, d.donorCode, d.sex, d.ageYears, d.ageDays, d.birthDate, d.collectedOn,
+      d.value, d.censoringSide === "below" ? "<" : d.censoringSide === "above" ? ">" : null, d.originalValue, d.originalUnit,
+      x ? "yes" : "no", x?.source ?? null, x?.rule ?? null, x?.reason ?? null, x?.createdAt ?? null, x?.by ?? null,
+    ]);
+  }
+  sheet.commit();
+}
+
+function partitionsSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = tableSheet(workbook, "Partitions", ["Assessment", "Made", "By", "Bands (years)", "Sex", "Verdict", "Group / comparison", "n", "Mean", "SD", "Median", "Harris-Boyd", "Lahti", "Summary"]);
+  for (const a of data.assessments) {
+    const r = a.result;
+    const base: CellValue[] = [a.id, a.createdAt, str(r.by ?? a.request.by), bandsText(r.bands ?? a.request.bands), str(r.sex ?? a.request.sex), str(r.verdict)];
+    const groups = Array.isArray(r.groups) ? (r.groups as Record<string, unknown>[]) : [];
+    const comparisons = Array.isArray(r.comparisons) ? (r.comparisons as Record<string, unknown>[]) : [];
+    for (const g of groups) addRow(sheet, [...base, str(g.label), num(g.n), num(g.mean), num(g.sd), num(g.median), null, null, null]);
+    for (const c of comparisons) {
+      const verdictOf = (v: unknown) => str((v as { verdict?: unknown } | null)?.verdict ?? null);
+      const between = Array.isArray(c.between) ? c.between.join(" vs ") : str(c.between);
+      addRow(sheet, [...base, between, null, null, null, null, verdictOf(c.harrisBoyd), verdictOf(c.lahti), null]);
+    }
+    addRow(sheet, [...base, null, null, null, null, null, null, null, str(r.summary)]);
+  }
+  sheet.commit();
+}
+
+const METHODS = ["nonparametric", "parametric", "robust"] as const;
+
+function estimatesSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+  const sheet = tableSheet(workbook, "Estimates", [
+    "Estimate", "Made", "Partition", "Sex", "Age from", "Age to", "Outliers", "Transform", "Seed", "n", "Method", "Recommended",
+    "Lower limit", "Lower CI low", "Lower CI high", "Upper limit", "Upper CI low", "Upper CI high", "Scale", "Lambda",
+    "Exclusions in effect", "Upload SHA-256", "Engine", "Warnings",
+  ]);
+  for (const e of data.estimates) {
+    const doc = e.document as unknown as ReferenceIntervalEstimate;
+    const engine = doc.provenance?.engine;
+    for (const method of METHODS) {
+      const m = doc[method];
+      const parametricScale = method === "nonparametric" ? null : doc.parametric;
+      addRow(sheet, [
+        e.id, e.createdAt, partitionLabel(partitionOut(e)), e.sex, e.ageFrom, e.ageTo, str(e.options.outliers), str(e.options.transform), e.seed, e.n,
+        method, doc.recommended === method ? "yes" : "no",
+        num(m?.lower), num(m?.lowerCi?.[0]), num(m?.lowerCi?.[1]), num(m?.upper), num(m?.upperCi?.[0]), num(m?.upperCi?.[1]),
+        parametricScale?.transform ?? null, num(parametricScale?.lambda),
+        e.exclusionIds.length, e.uploadHashes.join(" "),
+        engine ? `${engine.name} ${engine.version}${engine.commit ? ` ${engine.commit}` : ""}${engine.uncommittedChanges ? " (uncommitted changes)" : ""}` : null,
+        (doc.warnings ?? []).join(" "),
+      ]);
+    }
+  }
+  sheet.commit();
+}
+
+/** The workbook's bytes, written with exceljs's streaming writer. */
+export async function studyWorkbook(data: StudyExportData): Promise<Buffer> {
+  const stream = new PassThrough();
+  const chunks: Buffer[] = [];
+  stream.on("data", (chunk: Buffer) => chunks.push(chunk));
+  const ended = new Promise<void>((resolve, reject) => {
+    stream.on("end", resolve);
+    stream.on("error", reject);
+  });
+  const workbook = new ExcelJS.stream.xlsx.WorkbookWriter({ stream, useStyles: true, useSharedStrings: false });
+  workbook.creator = "Bellwether";
+  workbook.created = data.exportedAt;
+  summarySheet(workbook, data);
+  donorSheet(workbook, data);
+  partitionsSheet(workbook, data);
+  estimatesSheet(workbook, data);
+  await workbook.commit();
+  await ended;
+  return Buffer.concat(chunks);
+}
