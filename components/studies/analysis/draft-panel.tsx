@@ -52,6 +52,7 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
   const missing = partitions.filter((p) => !latest.has(partitionKey(p)));
   const items = drafts.data?.items ?? [];
   const ofThisStudy = items.filter((v) => v.studyId === study.id);
+  const others = items.filter((v) => v.studyId !== study.id);
 
   const state: SectionState = {
     done: ofThisStudy.length > 0 ? `${ofThisStudy.length} draft version${ofThisStudy.length === 1 ? "" : "s"} from this study.` : "No draft version from this study yet.",
@@ -96,24 +97,45 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
         {drafts.error ? <ErrorNotice error={drafts.error} action="The draft versions could not be loaded" /> : null}
         {drafts.isLoading ? <Skeleton lines={2} /> : null}
         {drafts.data && items.length === 0 ? <p className="text-sm text-ink-600">No draft version of {analyte.code} exists yet.</p> : null}
-        {items.map((v) => (
+        {ofThisStudy.map((v) => (
           <VersionCard
             key={v.id}
             version={v}
             highlight={v.id === created?.id || v.id === editing?.id}
-            title={`${v.id === created?.id ? "Draft version" : "Version"} ${v.number}${v.studyId === study.id ? "" : " (from another study)"}`}
+            title={`${v.id === created?.id ? "Draft version" : "Version"} ${v.number}`}
             action={
-              v.studyId === study.id && study.status !== "closed" && v.id !== editing?.id ? (
-                <Button type="button" variant="secondary" className="px-2 py-1 text-xs" onClick={() => {
+              study.status !== "closed" && v.id !== editing?.id ? (
+                <Button
+                  type="button"
+                  variant="secondary"
+                  className="px-2 py-1 text-xs"
+                  onClick={() => {
                     setNotice(null);
                     setEditing(v);
-                  }}>
+                  }}
+                >
                   Revise version {v.number}
                 </Button>
               ) : null
             }
           />
         ))}
+        {others.length > 0 ? (
+          <div className="space-y-1">
+            <p className="text-sm text-ink-700">
+              {others.length} draft version{others.length === 1 ? "" : "s"} of {analyte.code} from other studies:
+            </p>
+            <ul className="divide-y divide-ink-100 rounded-md border border-ink-200 text-sm" aria-label={`Draft versions of ${analyte.code} from other studies`}>
+              {others.map((v) => (
+                <li key={v.id} className="px-3 py-1.5">
+                  Version {v.number} · {v.partitions.map((p) => `${versionPartitionLabel(p)} ${formatValue(p.low, v.decimals)} – ${formatValue(p.high, v.decimals)}`).join("; ")} ·
+                  drafted {formatIsoDate(v.createdAt, true)}
+                  {v.createdBy ? ` by ${v.createdBy.name}` : ""}
+                </li>
+              ))}
+            </ul>
+          </div>
+        ) : null}
       </div>
     </AnalysisSection>
   );

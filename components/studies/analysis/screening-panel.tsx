@@ -1,5 +1,6 @@
 "use client";
 
+import { useRouter } from "next/navigation";
 import { useId, useMemo, useState, type FormEvent } from "react";
 import useSWR from "swr";
 import { StripChart } from "@/components/charts/strip-chart";
@@ -79,7 +80,10 @@ export function ScreeningPanel({ study, analyte }: SectionProps) {
     }
   }
 
+  const router = useRouter();
   function refreshLists() {
+    // The page header counts exclusions on the server: refresh it with the lists.
+    router.refresh();
     void decisions.mutate();
     void exclusions.mutate();
     void strip.mutate();
