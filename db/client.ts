@@ -1,11 +1,12 @@
 import { drizzle, type NodePgDatabase } from "drizzle-orm/node-postgres";
-import { Pool } from "pg";
+import { Pool, type PoolClient } from "pg";
 import { env } from "@/lib/env";
 import * as schema from "./schema";
 
-export type Database = NodePgDatabase<typeof schema>;
+/** The app's handle: Drizzle over a pool (`$client`). */
+export type Database = NodePgDatabase<typeof schema> & { $client: Pool };
 /** A database handle or an open transaction: queries accept either. */
-export type Executor = Database | Parameters<Parameters<Database["transaction"]>[0]>[0];
+export type Executor = NodePgDatabase<typeof schema> | Parameters<Parameters<Database["transaction"]>[0]>[0];
 
 // One pool per process, kept across hot reloads in development.
 const globalForDb = globalThis as unknown as { bellwetherPool?: Pool; bellwetherDb?: Database };
@@ -24,4 +25,36 @@ export async function closeDb(): Promise<void> {
   globalForDb.bellwetherPool = undefined;
   globalForDb.bellwetherDb = undefined;
   await pool?.end();
+}
+
+/**
+ * Runs `work` in one transaction on one connection of the pool, handing it a Drizzle executor and
+ * the connection itself for what Drizzle cannot do (COPY … FROM STDIN with pg-copy-streams). It
+ * commits when `work` resolves and rolls back when it throws; a connection that cannot even roll
+ * back is discarded rather than returned to the pool.
+ */
+export async function transactionWithClient<T>(
+  database: Database,
+  work: (tx: Executor, client: PoolClient) => Promise<T>,
+): Promise<T> {
+  const client = await database.$client.connect();
+  let broken: Error | undefined;
+  try {
+    await client.query("BEGIN").catch((err: Error) => {
+      broken = err;
+      throw err;
+    });
+    try {
+      const result = await work(drizzle(client, { schema }), client);
+      await client.query("COMMIT");
+      return result;
+    } catch (err) {
+      await client.query("ROLLBACK").catch((rollbackError: Error) => {
+        broken = rollbackError;
+      });
+      throw err;
+    }
+  } finally {
+    client.release(broken);
+  }
 }

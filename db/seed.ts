@@ -4,10 +4,11 @@
  */
 import { createAnalyteBody } from "@/lib/analytes/input";
 import type { Database } from "./client";
-import { createAnalyte } from "./queries/analytes";
+import { createAnalyte, listAnalytes } from "./queries/analytes";
 import { recordAuditEvent, SYSTEM_ACTOR } from "./queries/audit";
-import { countUsers, createUser } from "./queries/users";
+import { countUsers, createUser, findUserByEmail } from "./queries/users";
 import { DEMO_LABORATORY, DEMO_USERS } from "./demo-accounts";
+import { seedDemoStudies, type DemoActors } from "./demo-seed-studies";
 import { laboratory } from "./schema";
 
 export { DEMO_LABORATORY, DEMO_USERS };
@@ -43,23 +44,52 @@ export const DEMO_ANALYTES: Record<string, unknown>[] = [
   { code: "HGB", name: "Haemoglobin", unit: "g/L", decimals: 0, loinc: "718-7", specimen: "whole blood", criticalLow: 70, criticalHigh: 200 },
 ];
 
-/** Seeds the demo into an empty database; does nothing when any user exists. Returns whether it seeded. */
+/**
+ * Seeds the demo: into a database without users, the laboratory, its accounts, catalogue and
+ * studies; into a database that already holds the demo's accounts, whatever part of the catalogue
+ * and studies is missing (so an older demo gains the studies, and a seed stopped half-way
+ * finishes). A database with other users is not the demo's and is left alone. Running it again
+ * changes nothing. Returns whether it added anything.
+ */
 export async function seedDemo(database: Database): Promise<boolean> {
-  if ((await countUsers(database)) > 0) return false;
-  await database.insert(laboratory).values({ id: 1, name: DEMO_LABORATORY }).onConflictDoNothing();
-  for (const u of DEMO_USERS) {
-    await createUser(database, { input: u, actor: SYSTEM_ACTOR, allowPublishedPassword: true });
+  let added = false;
+  if ((await countUsers(database)) === 0) {
+    await database.insert(laboratory).values({ id: 1, name: DEMO_LABORATORY }).onConflictDoNothing();
+    for (const u of DEMO_USERS) {
+      await createUser(database, { input: u, actor: SYSTEM_ACTOR, allowPublishedPassword: true });
+    }
+    added = true;
   }
+  const people = await demoActors(database);
+  if (!people) return false;
+  const existing = new Set((await listAnalytes(database)).map((a) => a.code));
   for (const a of DEMO_ANALYTES) {
+    if (existing.has(String(a.code))) continue;
     // Through the API's own schema, so the demo's codes and units pass the checks a person's would.
     await createAnalyte(database, { input: createAnalyteBody.parse(a), actor: SYSTEM_ACTOR });
+    added = true;
   }
-  await recordAuditEvent(database, {
-    actor: SYSTEM_ACTOR,
-    action: "demo.seeded",
-    entityType: "laboratory",
-    entityId: "1",
-    summary: `Seeded the demo laboratory "${DEMO_LABORATORY}"`,
-  });
-  return true;
+  if (await seedDemoStudies(database, people)) added = true;
+  if (added) {
+    await recordAuditEvent(database, {
+      actor: SYSTEM_ACTOR,
+      action: "demo.seeded",
+      entityType: "laboratory",
+      entityId: "1",
+      summary: `Seeded the demo laboratory "${DEMO_LABORATORY}"`,
+    });
+  }
+  return added;
+}
+
+/** The demo's scientist and director, or null when this database does not hold the demo's accounts. */
+async function demoActors(database: Database): Promise<DemoActors | null> {
+  const actorFor = async (role: "scientist" | "director") => {
+    const account = DEMO_USERS.find((u) => u.role === role)!;
+    const user = await findUserByEmail(database, { email: account.email });
+    return user ? { id: user.id, label: user.email } : null;
+  };
+  const scientist = await actorFor("scientist");
+  const director = await actorFor("director");
+  return scientist && director ? { scientist, director } : null;
 }

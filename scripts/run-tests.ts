@@ -128,7 +128,8 @@ async function main(): Promise<number> {
       });
       step();
       await prepareSchema(database);
-      await seedDemoIfEmpty(database.url);
+      const { seconds } = await seedDemoIfEmpty(database.url);
+      console.log(`bellwether: seeded the demo laboratory (${seconds.toFixed(1)} s)`);
       await buildIfNeeded(lifetime.signal);
       step();
       const baseUrl = `http://127.0.0.1:${appPort}`;

@@ -104,8 +104,8 @@ async function start(): Promise<void> {
   await prepareSchema(database);
   step();
   if (demo) {
-    const { seeded } = await seedDemoIfEmpty(database.url);
-    say(seeded ? "bellwether: seeded the demo laboratory" : "bellwether: database ready (existing data kept)");
+    const { seeded, seconds } = await seedDemoIfEmpty(database.url);
+    say(seeded ? `bellwether: seeded the demo laboratory (${seconds.toFixed(1)} s)` : "bellwether: database ready (existing data kept)");
   } else {
     say("bellwether: database ready (not a demo: nothing seeded)");
   }

@@ -62,12 +62,16 @@ export async function prepareSchema(database: DatabaseHandle): Promise<void> {
   await assertSchemaCurrent(database.url);
 }
 
-/** Seeds the demo laboratory, as the app's role, into a database without users. */
-export async function seedDemoIfEmpty(url: string): Promise<{ seeded: boolean }> {
+/**
+ * Seeds the demo laboratory, as the app's role: all of it into a database without users, what is
+ * missing into one that holds the demo's accounts (db/seed.ts). `seconds` is how long it took.
+ */
+export async function seedDemoIfEmpty(url: string): Promise<{ seeded: boolean; seconds: number }> {
   const pool = new Pool({ connectionString: url, max: 2 });
+  const started = performance.now();
   try {
     const seeded = await seedDemo(drizzle(pool, { schema }));
-    return { seeded };
+    return { seeded, seconds: (performance.now() - started) / 1000 };
   } finally {
     await pool.end();
   }

@@ -332,3 +332,74 @@ describe("GET /api/v1/studies/{id}/donor-results", () => {
     });
   }
 });
+
+describe("committing an upload (COPY in one transaction)", () => {
+  let studyId: string;
+  beforeAll(async () => {
+    studyId = await openStudy("Commit");
+  });
+
+  it("stores text exactly as written, tabs, backslashes, line ends and a leading = included", async () => {
+    // Quoted CSV fields (RFC 4180) may hold the characters that COPY's text format escapes.
+    const csv = [HEADER, '"T\tAB",F,30,,,5.0,', '"BACK\\SLASH",M,31,,,5.1,', '"LINE\nEND",F,32,,,5.2,', '"=HYPERLINK(""x"")",M,33,,,5.3,', '"\\N",F,34,,,5.4,'].join("\n");
+    const { id } = await (await upload(studyId, "scientist", csv)).json();
+    const res = await send("POST", `/api/v1/studies/${studyId}/uploads/${id}/commit`, "scientist");
+    expect(res.status).toBe(200);
+    expect(await res.json()).toEqual({ status: "committed", stored: 5 });
+    const rows = (await pool.query("SELECT donor_code, value, birth_date FROM donor_results WHERE upload_id = $1 ORDER BY row_number", [id])).rows;
+    expect(rows).toEqual([
+      { donor_code: "T\tAB", value: 5, birth_date: null },
+      { donor_code: "BACK\\SLASH", value: 5.1, birth_date: null },
+      { donor_code: "LINE\nEND", value: 5.2, birth_date: null },
+      { donor_code: '=HYPERLINK("x")', value: 5.3, birth_date: null },
+      { donor_code: "\\N", value: 5.4, birth_date: null },
+    ]);
+  });
+
+  it("answers one of two simultaneous commits of the same file with 409 and stores the rows once", async () => {
+    const csv = [HEADER, "S1,F,30,,,5.0,", "S2,M,40,,,5.5,"].join("\n");
+    const first = (await (await upload(studyId, "scientist", csv)).json()).id;
+    const second = (await (await upload(studyId, "director", csv)).json()).id;
+    const before = await counts();
+    const answers = await Promise.all([first, second].map((id) => send("POST", `/api/v1/studies/${studyId}/uploads/${id}/commit`, "scientist")));
+    expect(answers.map((a) => a.status).sort()).toEqual([200, 409]);
+    const refused = answers.find((a) => a.status === 409)!;
+    expect((await refused.json()).detail).toMatch(/^The same file \((donors\.csv, )?by its SHA-256\) is already committed in this study/);
+    expect(await counts()).toEqual({ ...before, donor_results: before.donor_results + 2, audit_events: before.audit_events + 1 });
+  });
+
+  it("stores nothing when a row fails in the database: the upload stays pending, no audit event", async () => {
+    const csv = [HEADER, "F1,F,30,,,5.0,", "F2,M,40,,,5.5,", "F3,F,50,,,6.0,"].join("\n");
+    const { id } = await (await upload(studyId, "scientist", csv)).json();
+    // The check never lets such a sex through; written straight into the pending rows, the
+    // donor_results_sex constraint refuses it during the COPY, after the first row went in.
+    await pool.query(`UPDATE uploads SET pending_rows = jsonb_set(pending_rows, '{2,2}', '"X"') WHERE id = $1`, [id]);
+    const before = await counts();
+    const res = await send("POST", `/api/v1/studies/${studyId}/uploads/${id}/commit`, "scientist");
+    expect(res.status).toBe(500);
+    expect(await counts()).toEqual(before);
+    const [row] = (await pool.query("SELECT status, stored_rows, jsonb_array_length(pending_rows) AS pending FROM uploads WHERE id = $1", [id])).rows;
+    expect(row).toEqual({ status: "pending", stored_rows: null, pending: 3 });
+  });
+
+  it("commits an upload kept pending as row objects, the form used before rows were kept as tuples", async () => {
+    const { id } = await (await upload(studyId, "scientist", [HEADER, "O1,F,30,,,5.0,"].join("\n"))).json();
+    const legacy = [
+      { row: 1, donorCode: "O1", sex: "F", ageYears: 30, ageDays: 10958, ageFrom: "age_years", birthDate: null, collectedOn: "2026-01-05", value: 5, censoring: null, unit: "mmol/L", conversion: null },
+      { row: 2, donorCode: "O2", sex: "M", ageYears: 41, ageDays: 14975, ageFrom: "age_years", birthDate: null, collectedOn: null, value: 2, censoring: { side: "below", inclusive: true }, unit: "mmol/L", conversion: { fromUnit: "mg/dL", value: 36 } },
+    ];
+    await pool.query("UPDATE uploads SET pending_rows = $2::jsonb WHERE id = $1", [id, JSON.stringify(legacy)]);
+    const res = await send("POST", `/api/v1/studies/${studyId}/uploads/${id}/commit`, "scientist");
+    expect(await res.json()).toEqual({ status: "committed", stored: 2 });
+    const rows = (
+      await pool.query(
+        "SELECT row_number, donor_code, sex, age_years, age_days, collected_on, value, censoring_side, censoring_inclusive, original_value, original_unit FROM donor_results WHERE upload_id = $1 ORDER BY row_number",
+        [id],
+      )
+    ).rows;
+    expect(rows).toEqual([
+      { row_number: 1, donor_code: "O1", sex: "F", age_years: 30, age_days: 10958, collected_on: "2026-01-05", value: 5, censoring_side: null, censoring_inclusive: null, original_value: null, original_unit: null },
+      { row_number: 2, donor_code: "O2", sex: "M", age_years: 41, age_days: 14975, collected_on: null, value: 2, censoring_side: "below", censoring_inclusive: true, original_value: 36, original_unit: "mg/dL" },
+    ]);
+  });
+});
