@@ -7,6 +7,7 @@ import { PartitionsChart } from "@/components/charts/partitions-chart";
 import { QqChart, scaleWords } from "@/components/charts/qq-chart";
 import { Button } from "@/components/ui/button";
 import { formatCi, formatIsoDate, formatP, formatValue } from "@/lib/format";
+import { ROBUST_MAX_N, ROBUST_MIN_N } from "@/lib/stats/robust-horn";
 import { fetchJson, sendJson, studyApi } from "./api";
 import { AnalysisSection, EmptyState, ErrorNotice, inputClass, labelClass, type SectionState, Skeleton, tableClass, tdClass, thClass } from "./feedback";
 import { cleanPartition, partitionKey, partitionLabel } from "./partitions";
@@ -216,6 +217,11 @@ function EstimateView({ api, summary, analyte }: { api: string; summary: Estimat
                       {METHOD_WORDS[m]}
                       {m === "parametric" && hasLimits(l) ? <span className="block text-xs font-normal text-ink-600">{scaleWords(scale)}</span> : null}
                       {m === recommended ? <span className="mt-0.5 block text-xs font-semibold text-tide-700">Recommended</span> : null}
+                      {m === "robust" && !hasLimits(l) ? (
+                        <span className="block text-xs font-normal text-ink-600">
+                          Not computed: the robust method applies from {ROBUST_MIN_N} to {ROBUST_MAX_N} values
+                        </span>
+                      ) : null}
                     </th>
                     <td className={tdClass}>{np?.lowerCensored ? `${np.lowerCensored} ` : ""}{formatValue(l.lower, d)}</td>
                     <td className={`${tdClass} whitespace-nowrap`}>{formatCi(l.lowerCi, d)}</td>
