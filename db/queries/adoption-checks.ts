@@ -40,6 +40,13 @@ const DECISION_WORDS: Record<AdoptionDecision, string> = {
   not_verified: "not verified",
 };
 
+/** A check's state in a sentence: "The adoption check … is waiting for its second set". */
+const STATE_WORDS: Record<AdoptionDecision, string> = {
+  accepted: "accepted",
+  second_set_needed: "waiting for its second set",
+  not_verified: "not verified",
+};
+
 function describeInterval(lower: number | null, upper: number | null, unit: string): string {
   if (lower !== null && upper !== null) return `${lower}–${upper} ${unit}`;
   return lower !== null ? `≥ ${lower} ${unit}` : `≤ ${upper} ${unit}`;
@@ -172,8 +179,8 @@ export async function recordSecondSet(
       throw new AppError(
         "conflict",
         check.secondValues
-          ? `This adoption check already has its second set and is ${DECISION_WORDS[check.decision]}; enter a new check to test the interval again.`
-          : `This adoption check is ${DECISION_WORDS[check.decision]} on its first set: a second set is taken only when the first set calls for it.`,
+          ? `This adoption check already has its second set and is ${STATE_WORDS[check.decision]}; enter a new check to test the interval again.`
+          : `This adoption check is ${STATE_WORDS[check.decision]} on its first set: a second set is taken only when the first set calls for it.`,
       );
     }
     const policy = check.policy as unknown as AdoptionPolicy;
@@ -214,7 +221,7 @@ export async function acceptedAdoptionCheckForDraft(
   if (check.decision !== "accepted") {
     throw new AppError(
       "conflict",
-      `The adoption check ${id} is ${DECISION_WORDS[check.decision]}: only an accepted check can become a version.`,
+      `The adoption check ${id} is ${STATE_WORDS[check.decision]}: only an accepted check can become a version.`,
     );
   }
   return check;

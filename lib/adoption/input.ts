@@ -4,17 +4,10 @@ import { ADOPTION_POLICY } from "./policy";
 
 const N = ADOPTION_POLICY.valuesPerSet;
 
-/** Exactly the policy's number of finite numbers. */
+/** Exactly the policy's number of finite numbers (zod's number refuses NaN and ±Infinity). */
 export const adoptionValuesSchema = z
   .array(z.number(`each value is a number in the analyte's unit.`), `values is a list of ${N} numbers.`)
-  .refine((v) => v.length === N, { message: `Give exactly ${N} values.` })
-  .superRefine((v, ctx) => {
-    if (v.length !== N) return;
-    // JSON carries no NaN or Infinity, but values from a form or a file may.
-    v.forEach((x, i) => {
-      if (!Number.isFinite(x)) ctx.addIssue({ code: "custom", path: [i], message: "each value is a finite number." });
-    });
-  });
+  .refine((v) => v.length === N, { message: `Give exactly ${N} values.` });
 
 const limit = (name: string) => z.number(`${name} is a number in the analyte's unit, or null.`).nullable().optional().transform((v) => v ?? null);
 
