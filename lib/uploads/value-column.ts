@@ -31,8 +31,13 @@ export async function readValueColumn(input: UploadInput, { decimalComma = false
     else out.problems.push({ row, message });
   };
   let rows = 0;
+  // Cells beyond the first row's width mean the row was split where it should not have been
+  // (most often a decimal comma in a comma-separated file): refused, never read as a value.
+  let width = 1;
   const found = await readTable(file, undefined, {
     onHeader: ({ headers }) => {
+      width = Math.max(1, headers.length - [...headers].reverse().findIndex((h) => h !== ""));
+      if (headers.every((h) => h === "")) width = 1;
       const first = headers[0] ?? "";
       if (readNumberText(first, decimalComma, "value", number) === null) read(first, 1);
       else out.header = first;
@@ -43,6 +48,13 @@ export async function readValueColumn(input: UploadInput, { decimalComma = false
         throw new UploadError("too_many_rows", `the file has more than ${MAX_VALUE_ROWS} rows; an adoption check takes 20 values`);
       }
       const text = typeof cells[0] === "number" ? String(cells[0]) : cellText(cells[0]);
+      let last = cells.length - 1;
+      while (last > 0 && cellText(cells[last]) === "") last--;
+      if (last + 1 > width) {
+        const written = Array.from(cells.slice(0, last + 1), (c) => cellText(c)).join(file.format === "csv" ? "," : " | ");
+        out.problems.push({ row: row + 1, message: `"${written}" has more cells than the first row; write one value per row with a decimal point` });
+        return;
+      }
       if (text === "") out.problems.push({ row: row + 1, message: "value is missing" });
       else read(text, row + 1);
     },
