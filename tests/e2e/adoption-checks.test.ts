@@ -39,7 +39,7 @@ describe("a scientist verifies a manufacturer's potassium interval", () => {
 
     const form = page.getByRole("form", { name: "New adoption check" });
     // A mistake first: 19 values. The form keeps what was typed and says what is wrong.
-    await form.getByLabel("Analyte").selectOption("K");
+    await form.getByLabel("Analyte", { exact: true }).selectOption("K");
     await form.getByLabel("Lower limit (mmol/L)").fill("3.5");
     await form.getByLabel("Upper limit (mmol/L)").fill("5.1");
     await form.getByLabel("Source of the interval").fill("Manufacturer's insert, potassium reagent, lot E2E");
