@@ -84,7 +84,9 @@ export default async function AdoptionCheckPage({ params }: { params: Promise<{ 
           <Panel title="The policy applied">
             <p className="text-sm text-ink-800">
               {check.policy.name} (policy of {check.policy.version}): at most {check.policy.firstSet.acceptAtMost} of {check.policy.valuesPerSet} outside
-              accepts; {check.policy.firstSet.acceptAtMost + 1} to {check.policy.firstSet.notVerifiedFrom - 1} call for a second set of{" "}
+              accepts; {check.policy.firstSet.acceptAtMost + 1}
+              {check.policy.firstSet.notVerifiedFrom - 1 === check.policy.firstSet.acceptAtMost + 2 ? " or " : " to "}
+              {check.policy.firstSet.notVerifiedFrom - 1} call for a second set of{" "}
               {check.policy.valuesPerSet}, accepted with at most {check.policy.secondSet.acceptAtMost} outside;{" "}
               {check.policy.firstSet.notVerifiedFrom} or more in the first set is not verified.
             </p>
