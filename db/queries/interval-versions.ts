@@ -9,9 +9,10 @@ import { partitionLabel, partitionOut, type PartitionOut } from "@/lib/studies/e
 import { ageYearsToDays } from "@/lib/versions/age-days";
 import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, VersionPartitionInput } from "@/lib/versions/input";
 import { firstOverlap } from "@/lib/versions/overlap";
-import { publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
+import { adoptedScoringModel, publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
 import type { Database, Executor } from "../client";
-import { analytes, estimates, intervalPartitions, intervalVersions, studies, users, type IntervalVersion } from "../schema";
+import { analytes, estimates, intervalPartitions, intervalVersions, studies, users, type AdoptionCheck, type IntervalVersion } from "../schema";
+import { acceptedAdoptionCheckForDraft } from "./adoption-checks";
 import { recordAuditEvent, type Actor } from "./audit";
 import { valuesOfEstimate } from "./estimates";
 
@@ -42,14 +43,37 @@ interface ResolvedPartition {
   sex: "F" | "M" | null;
   ageFromDays: number | null;
   ageToDays: number | null;
-  low: number;
-  high: number;
+  low: number | null;
+  high: number | null;
   lowCi: [number, number] | null;
   highCi: [number, number] | null;
-  method: PartitionMethod;
+  method: PartitionMethod | "adopted";
   n: number;
   model: ScoringModel;
-  estimateId: string;
+  estimateId: string | null;
+}
+
+/**
+ * The one partition of a version drafted from an accepted adoption check: the check's sex and
+ * limits, no CIs (the laboratory verified the limits, it did not estimate them), n the local
+ * values the check used, and the adopted scoring model (zlog, or limits only when one-sided).
+ */
+function adoptedPartition(check: AdoptionCheck): ResolvedPartition {
+  const sex = check.sex as "F" | "M" | null;
+  return {
+    scope: { sex, ageFrom: null, ageTo: null },
+    sex,
+    ageFromDays: null,
+    ageToDays: null,
+    low: check.lower,
+    high: check.upper,
+    lowCi: null,
+    highCi: null,
+    method: "adopted",
+    n: check.firstValues.length + (check.secondValues?.length ?? 0),
+    model: adoptedScoringModel({ lower: check.lower, upper: check.upper }),
+    estimateId: null,
+  };
 }
 
 /**
@@ -181,7 +205,8 @@ function auditPartitions(partitions: ResolvedPartition[]) {
 }
 
 /**
- * Drafts an interval version of the analyte from the study's estimates, numbered next for the
+ * Drafts an interval version of the analyte from the study's estimates, or from an accepted
+ * adoption check of the analyte (one partition, method "adopted"), numbered next for the
  * analyte in the same transaction. Two drafts numbered at the same moment meet the unique index
  * on (analyte, number): the loser tries again with the next number, and after a few attempts
  * answers 409.
@@ -195,12 +220,23 @@ export async function createIntervalVersion(
       const id = await database.transaction(async (tx) => {
         const [analyte] = await tx.select().from(analytes).where(eq(analytes.code, input.analyte)).limit(1);
         if (!analyte) throw invalid("analyte", `There is no analyte with the code ${input.analyte}.`);
-        const [study] = await tx.select().from(studies).where(eq(studies.id, input.study)).limit(1);
-        if (!study) throw invalid("study", `There is no study with the id ${input.study}.`);
-        if (study.analyteId !== analyte.id) {
-          throw invalid("study", `The study "${study.title}" is not a study of ${analyte.code}.`);
+        let partitions: ResolvedPartition[];
+        let studyId: string | null = null;
+        let adoptionCheckId: string | null = null;
+        if (input.adoptionCheck !== undefined) {
+          const check = await acceptedAdoptionCheckForDraft(tx, { id: input.adoptionCheck, analyteId: analyte.id, analyteCode: analyte.code });
+          adoptionCheckId = check.id;
+          partitions = [adoptedPartition(check)];
+        } else {
+          // The body's schema guarantees study and partitions when there is no adoption check.
+          const [study] = await tx.select().from(studies).where(eq(studies.id, input.study!)).limit(1);
+          if (!study) throw invalid("study", `There is no study with the id ${input.study}.`);
+          if (study.analyteId !== analyte.id) {
+            throw invalid("study", `The study "${study.title}" is not a study of ${analyte.code}.`);
+          }
+          studyId = study.id;
+          partitions = await resolvePartitions(tx, { studyId: study.id, partitions: input.partitions! });
         }
-        const partitions = await resolvePartitions(tx, { studyId: study.id, partitions: input.partitions });
         const criticalLow = input.criticalLow === undefined ? analyte.criticalLow : input.criticalLow;
         const criticalHigh = input.criticalHigh === undefined ? analyte.criticalHigh : input.criticalHigh;
         assertScorable(partitions, { unit: analyte.unit, decimals: analyte.decimals, criticalLow, criticalHigh });
@@ -211,7 +247,8 @@ export async function createIntervalVersion(
           .values({
             analyteId: analyte.id,
             number,
-            studyId: study.id,
+            studyId,
+            adoptionCheckId,
             unit: analyte.unit,
             decimals: analyte.decimals,
             criticalLow,
@@ -228,7 +265,7 @@ export async function createIntervalVersion(
           entityType: "interval_version",
           entityId: version.id,
           summary: `Drafted version ${number} of ${analyte.code} with ${partitions.length} partition${partitions.length === 1 ? "" : "s"}`,
-          details: { analyte: analyte.code, number, studyId: study.id, criticalLow, criticalHigh, note: version.note, partitions: auditPartitions(partitions) },
+          details: { analyte: analyte.code, number, studyId, ...(adoptionCheckId ? { adoptionCheckId } : {}), criticalLow, criticalHigh, note: version.note, partitions: auditPartitions(partitions) },
         });
         return version.id;
       });
@@ -327,6 +364,8 @@ export interface VersionOut {
   state: IntervalVersion["state"];
   analyte: { code: string; name: string };
   studyId: string | null;
+  /** The accepted adoption check the version was drafted from, if any. */
+  adoptionCheckId: string | null;
   unit: string;
   decimals: number;
   criticalLow: number | null;
@@ -388,6 +427,7 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
     state: v.state,
     analyte,
     studyId: v.studyId,
+    adoptionCheckId: v.adoptionCheckId,
     unit: v.unit,
     decimals: v.decimals,
     criticalLow: v.criticalLow,

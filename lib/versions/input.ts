@@ -17,17 +17,34 @@ const partitionsField = z
 const criticalField = (name: string) => z.number(`${name} is a number in the analyte's unit, or null.`).nullable().optional();
 const noteField = z.string("note is text.").trim().max(4000, "Keep the note within 4000 characters.").nullable().optional();
 
-/** POST /api/v1/interval-versions. Critical limits default to the analyte's. */
+/**
+ * POST /api/v1/interval-versions: from a study's estimates (`study` and `partitions`), or from an
+ * accepted adoption check (`adoptionCheck`: one partition with the check's limits). Critical
+ * limits default to the analyte's.
+ */
 export const createVersionBody = z
   .object({
     analyte: analyteCodeSchema,
-    study: z.uuid("study is a study id (UUID)."),
-    partitions: partitionsField,
+    study: z.uuid("study is a study id (UUID).").optional(),
+    partitions: partitionsField.optional(),
+    adoptionCheck: z.uuid("adoptionCheck is an adoption check id (UUID).").optional(),
     criticalLow: criticalField("criticalLow"),
     criticalHigh: criticalField("criticalHigh"),
     note: noteField,
   })
-  .strict();
+  .strict()
+  .superRefine((b, ctx) => {
+    if (b.adoptionCheck !== undefined) {
+      for (const key of ["study", "partitions"] as const) {
+        if (b[key] !== undefined) {
+          ctx.addIssue({ code: "custom", path: [key], message: "A version drafted from an adoption check takes no study or partitions: its one partition is the check's." });
+        }
+      }
+      return;
+    }
+    if (b.study === undefined) ctx.addIssue({ code: "custom", path: ["study"], message: "Give study and partitions, or adoptionCheck." });
+    if (b.partitions === undefined) ctx.addIssue({ code: "custom", path: ["partitions"], message: "Give study and partitions, or adoptionCheck." });
+  });
 
 /** PATCH /api/v1/interval-versions/{id}: what is given replaces what the draft holds; null clears. */
 export const updateVersionBody = z

@@ -71,6 +71,7 @@ describe("POST /api/v1/interval-versions", () => {
       state: "draft",
       analyte: { code: "GLU", name: "Glucose" },
       studyId,
+      adoptionCheckId: null,
       unit: "mmol/L",
       decimals: 1,
       // The analyte's default critical limits (db/seed.ts: GLU 2.5 and 25).
