@@ -100,10 +100,10 @@ const DUTY_WORDS: [keyof IntervalVersion, string][] = [
 function assertDuties(move: VersionMove, version: IntervalVersion, analyte: Analyte, userId: string): void {
   const roles = DUTY_WORDS.filter(([column]) => version[column] === userId).map(([, word]) => word);
   if (roles.length === 0) return;
-  const what = { return: "return", sign: "sign off", review: "review", withdraw: "withdraw", reinstate: "reinstate", submit: "submit" }[move];
+  const what = { return: "return it", sign: "sign it off", review: "review it", withdraw: "withdraw it", reinstate: "reinstate it", submit: "submit it" }[move];
   throw new AppError(
     "forbidden",
-    `You ${roles.join(" and ")} version ${version.number} of ${analyte.code}: another director must ${what} it (a director never signs off, returns or withdraws a version they drafted, revised or submitted).`,
+    `You ${roles.join(" and ")} version ${version.number} of ${analyte.code}: another director must ${what} (a director never signs off, returns or withdraws a version they drafted, revised or submitted).`,
   );
 }
 
