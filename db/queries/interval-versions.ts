@@ -11,7 +11,7 @@ import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, Version
 import { firstOverlap } from "@/lib/versions/overlap";
 import { publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
 import type { Database, Executor } from "../client";
-import { SIGNATURE_MEANING_LABELS } from "@/lib/versions/state-machine";
+import { SIGNATURE_MEANING_LABELS, VERSION_STATE_LABELS } from "@/lib/versions/state-machine";
 import { analytes, estimates, intervalPartitions, intervalVersions, signatures, studies, users, type IntervalVersion, type Signature } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { valuesOfEstimate } from "./estimates";
@@ -258,7 +258,7 @@ export async function updateIntervalVersion(
     if (version.state !== "draft") {
       throw new AppError(
         "conflict",
-        `Version ${version.number} of ${analyte.code} is ${version.state.replace(/_/g, " ")}: only a draft can be changed.`,
+        `Version ${version.number} of ${analyte.code} is ${VERSION_STATE_LABELS[version.state].toLowerCase()}: only a draft can be changed.`,
       );
     }
     let partitions: ResolvedPartition[] | null = null;
