@@ -119,7 +119,9 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     const code = await new Promise((resolve) => server.on("close", resolve));
     expect(code).toBe(1);
     expect(log).toContain("bellwether: refusing to serve: these accounts still have the demo passwords published in the README: clinician@harrowmere.example.");
-  });
+    // The demo seed signs its nine versions in force, each after a bcrypt check of the director's
+    // password: on a loaded 2-core machine the whole test takes longer than the default 30 s.
+  }, 120_000);
 
   it("without BELLWETHER_MIGRATION_URL changes nothing and names it when the schema is not there", async () => {
     const db = await scratchDatabase("unmigrated");
