@@ -82,7 +82,8 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     for (const p of PUBLISHED) {
       expect(await verifyPassword(p.password, users.find((u) => u.email === p.email)!.password_hash), p.email).toBe(true);
     }
-  });
+    // As below: the seed's password-checked signatures need more than the default 30 s under load.
+  }, 120_000);
 
   it("refuses to serve while a demo account keeps its published password, also when the server is started by other means", async () => {
     const db = await scratchDatabase("published");
