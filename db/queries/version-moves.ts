@@ -147,7 +147,9 @@ async function recordSigningFailure(
       summary: `A signature by ${user.email} was refused: ${reason} (${row.failures} in a row)`,
       details: { reason, failures: row.failures },
     });
-    if (row.failures < SIGNING_FAILURE_LIMIT || row.lockedAt) {
+    // Another failure at the same moment locked it already.
+    if (row.lockedAt) return `Signing refused: ${reason} ${SIGNING_LOCKED_MESSAGE}`;
+    if (row.failures < SIGNING_FAILURE_LIMIT) {
       const left = SIGNING_FAILURE_LIMIT - row.failures;
       return `Signing refused: ${reason} ${left} attempt${left === 1 ? "" : "s"} left before signing locks for your account.`;
     }
