@@ -276,6 +276,22 @@ describe("POST /api/v1/interval-versions/{id}/sign", () => {
     expect((await ok(await sign(submitted.id, directors.third.cookie, { password: PASSWORD, email: directors.third.email }))).state).toBe("in_force");
   });
 
+  it("refuses (409) a version whose unit or decimals no longer match the analyte's", async () => {
+    const v = await awaiting();
+    const d = await draft();
+    // Changed behind the API's back (the API refuses it once a version has left draft).
+    await pool.query("UPDATE analytes SET decimals = 3 WHERE code = $1", [CODE]);
+    try {
+      const before = await counts();
+      const detail = (n: number) => `Version ${n} of ${CODE} states its limits in mmol/L with 2 decimals, but ${CODE} is now in mmol/L with 3 decimals: draft a new version.`;
+      expect(await problem(await sign(v.id, cookies.director, { password: demoDirector.password }))).toEqual({ status: 409, detail: detail(v.number) });
+      expect(await problem(await submit(d.id))).toEqual({ status: 409, detail: detail(d.number) });
+      expect(await counts()).toEqual(before);
+    } finally {
+      await pool.query("UPDATE analytes SET decimals = 2 WHERE code = $1", [CODE]);
+    }
+  });
+
   it("reads the signer's authority from the database at the moment of signing", async () => {
     const v = await awaiting();
     // The role changes in the database while the session (its version unchanged) lives on.
