@@ -143,6 +143,8 @@ async function main(): Promise<number> {
       const appEnv: NodeJS.ProcessEnv = {
         ...process.env,
         ...mail.env,
+        // Delivery every 2 s, so that a browser test sees a message reach the fake provider soon.
+        BELLWETHER_MAIL_INTERVAL_SECONDS: "2",
         NODE_ENV: "production" as const,
         DATABASE_URL: database.url,
         BELLWETHER_DEMO: "1",
