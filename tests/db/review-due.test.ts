@@ -34,7 +34,7 @@ beforeAll(async () => {
   for (const v of inForce) versions[v.code] = v.id;
   // Review-by dates chosen for the test, as the schema's owner: sodium due in 30 days, glucose
   // overdue by 10, potassium due in 61.5 days (outside the 60-day window until day 1.5), the rest far off.
-  await queryRows(scratch.ownerUrl, `UPDATE interval_versions SET review_by = '${days(400).toISOString()}' WHERE state = 'in_force'`);
+  await queryRows(scratch.ownerUrl, `UPDATE interval_versions SET review_by = '${days(4000).toISOString()}' WHERE state = 'in_force'`);
   const set = (code: string, d: Date) => queryRows(scratch.ownerUrl, `UPDATE interval_versions SET review_by = '${d.toISOString()}' WHERE id = '${versions[code]}'`);
   await set("NA", days(30));
   await set("GLU", days(-10));
