@@ -14,3 +14,30 @@ export async function refuseUnsafeDatabase(): Promise<void> {
     process.exit(1);
   }
 }
+
+/**
+ * The app's scheduled mail work (lib/mail/scheduler.ts): delivery of the outbox every
+ * BELLWETHER_MAIL_INTERVAL_SECONDS through Resend's SDK (at RESEND_BASE_URL when set), and the
+ * daily review-due job. Without RESEND_API_KEY messages stay queued. Stopped on SIGTERM and
+ * SIGINT before scripts/serve.ts closes the server.
+ */
+export async function startScheduledJobs(): Promise<void> {
+  const settings = env();
+  const [{ db }, { startMailJobs }, { resendSender }] = await Promise.all([
+    import("./db/client"),
+    import("./lib/mail/scheduler"),
+    import("./lib/mail/sender"),
+  ]);
+  const sender = settings.RESEND_API_KEY ? resendSender({ apiKey: settings.RESEND_API_KEY, baseUrl: settings.RESEND_BASE_URL }) : null;
+  if (!sender) console.error("bellwether: RESEND_API_KEY is not set: e-mail stays queued in the outbox");
+  const jobs = startMailJobs({
+    database: db(),
+    sender,
+    from: settings.MAIL_FROM,
+    intervalMs: settings.BELLWETHER_MAIL_INTERVAL_SECONDS * 1000,
+    appUrl: settings.NEXTAUTH_URL,
+  });
+  const stop = () => void jobs.stop();
+  process.once("SIGTERM", stop);
+  process.once("SIGINT", stop);
+}

@@ -44,6 +44,20 @@ const schema = engineSchema.extend({
   BELLWETHER_SIGN_IN_WINDOW_MINUTES: whole(60, 1),
   BELLWETHER_SIGN_IN_MAX_FAILURES: replaced("BELLWETHER_SIGN_IN_FREE_FAILURES and BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES"),
   BELLWETHER_SIGN_IN_LOCK_MINUTES: replaced("BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES and BELLWETHER_SIGN_IN_WINDOW_MINUTES"),
+  // E-mail through Resend's SDK (lib/mail). Without a key nothing is sent: messages stay queued in
+  // the outbox. `npm start` and the tests point RESEND_BASE_URL at the local fake provider.
+  RESEND_API_KEY: z.string().trim().min(1, "RESEND_API_KEY must not be empty; leave it unset to keep mail queued").optional(),
+  RESEND_BASE_URL: z
+    .url("RESEND_BASE_URL must be a URL such as http://127.0.0.1:4010 (the local fake) or https://api.resend.com")
+    .transform((u) => u.replace(/\/+$/, ""))
+    .optional(),
+  MAIL_FROM: z
+    .string()
+    .trim()
+    .regex(/^(?:[^<>]+<[^\s@<>]+@[^\s@<>]+>|[^\s@<>]+@[^\s@<>]+)$/, 'MAIL_FROM must be an address, or "Name <address>"')
+    .default("Bellwether <bellwether@localhost>"),
+  /** How often the app's mail job looks for messages to deliver. */
+  BELLWETHER_MAIL_INTERVAL_SECONDS: whole(30, 1),
   /** Proxies whose X-Forwarded-For is believed (scripts/serve.ts); none by default. */
   BELLWETHER_TRUSTED_PROXIES: z
     .string()

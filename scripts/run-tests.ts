@@ -10,7 +10,8 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { stopClustersUnder, stopServer, superuserUrl } from "../db/local-server";
-import { buildIfNeeded, prepareDatabase, prepareSchema, ROOT, seedDemoIfEmpty, serveApp, stopApp, type DatabaseHandle } from "./lib/app-stack";
+import type { FakeMailProvider } from "../lib/mail/fake-server";
+import { buildIfNeeded, prepareDatabase, prepareMail, prepareSchema, ROOT, seedDemoIfEmpty, serveApp, stopApp, type DatabaseHandle } from "./lib/app-stack";
 import { onShutdown, say } from "./lib/shutdown";
 
 const SUITES = ["unit", "integration", "e2e"] as const;
@@ -26,6 +27,7 @@ const dataRoot = path.resolve(ROOT, process.env.BELLWETHER_TEST_DATA_DIR ?? ".te
 
 let database: DatabaseHandle | null = null;
 let app: ChildProcess | null = null;
+let mailFake: FakeMailProvider | null = null;
 /** The vitest, tsc or eslint run in progress. */
 let running: ChildProcess | null = null;
 const lifetime = new AbortController();
@@ -39,6 +41,7 @@ const exit = onShutdown(
     // The step in progress ends (once aborted, main starts nothing new); then what it started is stopped.
     await finished.catch(() => undefined);
     await stopApp(app);
+    await mailFake?.close();
     if (database?.server) stopServer(database.server);
   },
   { signalExitCode: (signal) => 128 + os.constants.signals[signal] },
@@ -137,8 +140,14 @@ async function main(): Promise<number> {
       step();
       const baseUrl = `http://127.0.0.1:${appPort}`;
       const secret = crypto.randomBytes(32).toString("base64url");
+      // The app sends e-mail to the local fake provider, never to a real one.
+      const mail = await prepareMail(dataRoot, {});
+      mailFake = mail.fake;
       const appEnv: NodeJS.ProcessEnv = {
         ...process.env,
+        ...mail.env,
+        // Delivery every 2 s, so that a browser test sees a message reach the fake provider soon.
+        BELLWETHER_MAIL_INTERVAL_SECONDS: "2",
         NODE_ENV: "production" as const,
         DATABASE_URL: database.url,
         BELLWETHER_DEMO: "1",
@@ -169,6 +178,8 @@ async function main(): Promise<number> {
         // For the tests that run the start command itself, beside the app under test.
         BELLWETHER_TEST_SPARE_PORT: String(appPort + 10),
         BELLWETHER_TEST_SPARE_PG_PORT: String(pgPort + 10),
+        // The fake provider the served app sends to, for tests that look at what it received.
+        BELLWETHER_TEST_MAIL_URL: mail.env.RESEND_BASE_URL,
       };
       if (database.migrationUrl) testEnv.BELLWETHER_MIGRATION_URL = database.migrationUrl;
       // Tests that create scratch databases need the cluster's superuser; only ours has one.

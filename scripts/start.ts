@@ -5,20 +5,23 @@
  *
  * Stopping: however the command ends (Ctrl-C, SIGTERM, SIGHUP when the terminal closes, the app
  * exiting, an error during start-up), one stop runs: it lets the start-up step in progress end
- * (a build is killed), stops the app, then the private cluster, then exits. scripts/start.sh
+ * (a build is killed), stops the app, the local fake mail provider, then the private cluster, then exits. scripts/start.sh
  * `exec`s node with tsx loaded in-process, so signals reach this process itself.
  */
 import fs from "node:fs";
 import path from "node:path";
 import type { ChildProcess } from "node:child_process";
+import type { FakeMailProvider } from "../lib/mail/fake-server";
 import { stopServer } from "../db/local-server";
 import { assertSafeToServe } from "../db/preflight";
 import { demoMode, parseStartEnv } from "../lib/env";
 import {
   buildIfNeeded,
   ensureSecret,
+  fakeMailFile,
   hasExited,
   prepareDatabase,
+  prepareMail,
   prepareSchema,
   ROOT,
   seedDemoIfEmpty,
@@ -30,6 +33,7 @@ import { onShutdown, say } from "./lib/shutdown";
 
 let database: DatabaseHandle | null = null;
 let app: ChildProcess | null = null;
+let mailFake: FakeMailProvider | null = null;
 let releaseDataFolder = () => {};
 const lifetime = new AbortController();
 let startup: Promise<void> = Promise.resolve();
@@ -40,6 +44,7 @@ const exit = onShutdown(
     if (reason !== "start-up failed") say(`bellwether: stopping (${reason})`);
     await startup;
     await stopApp(app);
+    await mailFake?.close();
     if (database?.server) {
       stopServer(database.server);
       say("bellwether: stopped the private PostgreSQL");
@@ -115,9 +120,18 @@ async function start(): Promise<void> {
   const secret = ensureSecret(dataRoot);
   await buildIfNeeded(lifetime.signal);
   step();
+  const mail = await prepareMail(dataRoot);
+  mailFake = mail.fake;
+  say(
+    mailFake
+      ? `bellwether: e-mail goes to the local fake provider at ${mailFake.url} (messages kept in ${path.relative(ROOT, fakeMailFile(dataRoot))}; the outbox is at /admin/outbox)`
+      : `bellwether: e-mail goes through Resend${process.env.RESEND_BASE_URL ? ` at ${process.env.RESEND_BASE_URL}` : ""}`,
+  );
+  step();
   const url = `http://127.0.0.1:${settings.PORT}`;
   const appEnv: NodeJS.ProcessEnv = {
     ...process.env,
+    ...mail.env,
     NODE_ENV: "production",
     DATABASE_URL: database.url,
     BELLWETHER_DEMO: demo ? "1" : "0",

@@ -1,9 +1,13 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { AuditEventList } from "@/components/audit/audit-event-list";
+import { ReviewsDueList } from "@/components/versions/reviews-due-list";
 import { PageHeader, Panel } from "@/components/ui/panel";
 import { db } from "@/db/client";
 import { listAuditEvents } from "@/db/queries/audit";
+import { listReviewsDue } from "@/db/queries/outbox";
+import { formatDate } from "@/lib/format";
+import { REVIEW_WINDOW_DAYS, reviewDueWording } from "@/lib/versions/review-due";
 import { requirePageCaller } from "@/lib/auth/session";
 import { can, PERMISSION_DESCRIPTIONS, PERMISSIONS, ROLE_LABELS, type Permission } from "@/lib/auth/roles";
 
@@ -15,6 +19,20 @@ export default async function OverviewPage() {
   const recent = can(caller.role, "audit:read")
     ? (await listAuditEvents(db(), { filter: {}, limit: 8, offset: 0 })).rows
     : null;
+  const now = new Date();
+  const reviewsDue = can(caller.role, "versions:sign")
+    ? (await listReviewsDue(db(), { until: new Date(now.getTime() + REVIEW_WINDOW_DAYS * 86_400_000) })).map((v) => {
+        const wording = reviewDueWording(v.reviewBy, now);
+        return {
+          versionId: v.versionId,
+          analyte: `${v.analyteName} (${v.analyteCode})`,
+          number: v.number,
+          reviewBy: formatDate(v.reviewBy),
+          wording: wording.long,
+          overdue: wording.overdue,
+        };
+      })
+    : null;
 
   return (
     <>
@@ -23,6 +41,11 @@ export default async function OverviewPage() {
         lead={`Signed in as ${ROLE_LABELS[caller.role].toLowerCase()}. Bellwether keeps the laboratory's reference intervals: how they were established, who signed them off, and how a patient value sits against them.`}
       />
       <div className="grid gap-5 lg:grid-cols-2">
+        {reviewsDue ? (
+          <Panel title="Reviews coming due" className="lg:col-span-2">
+            <ReviewsDueList rows={reviewsDue} />
+          </Panel>
+        ) : null}
         <Panel title="What your role can do">
           <ul className="space-y-2 text-sm" data-testid="role-abilities">
             {permissions.map((p) => (

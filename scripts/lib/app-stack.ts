@@ -14,6 +14,7 @@ import { assertSchemaCurrent, migrateDatabase } from "../../db/migrate";
 import * as schema from "../../db/schema";
 import { seedDemo } from "../../db/seed";
 import { parseEnv } from "../../lib/env";
+import { startFakeMailProvider, type FakeMailProvider } from "../../lib/mail/fake-server";
 
 export const ROOT = path.resolve(__dirname, "..", "..");
 
@@ -202,4 +203,24 @@ export function stopApp(child: ChildProcess | null): Promise<void> {
     });
     child.kill("SIGTERM");
   });
+}
+
+/** The file where the local fake provider keeps the messages it accepted (JSON lines). */
+export function fakeMailFile(dataRoot: string): string {
+  return path.join(dataRoot, "mail", "messages.jsonl");
+}
+
+/**
+ * Where the app sends e-mail. With RESEND_BASE_URL, or RESEND_API_KEY alone (the real provider),
+ * the environment decides and nothing is started; otherwise the local fake of the provider's API
+ * starts on a free loopback port, keeping messages in `dataRoot`/mail/messages.jsonl, and the app
+ * is pointed at it with a dummy key.
+ */
+export async function prepareMail(
+  dataRoot: string,
+  source: Record<string, string | undefined> = process.env,
+): Promise<{ env: Record<string, string>; fake: FakeMailProvider | null }> {
+  if (source.RESEND_BASE_URL || source.RESEND_API_KEY) return { env: {}, fake: null };
+  const fake = await startFakeMailProvider({ file: fakeMailFile(dataRoot) });
+  return { env: { RESEND_BASE_URL: fake.url, RESEND_API_KEY: "re_local_fake_provider" }, fake };
 }

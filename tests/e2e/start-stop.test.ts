@@ -20,7 +20,7 @@ import { launchBrowser } from "./support/browser";
 /**
  * `npm start` (scripts/start.sh, as npm runs it) in a folder and on ports of its own, stopped in
  * every way it can end. After each, the requirement: the app's port and the cluster's port are
- * free and no PostgreSQL process of that folder remains, unless every process of the command
+ * free (and the local fake mail provider's) and no PostgreSQL process of that folder remains, unless every process of the command
  * was killed at once, and then the next start takes the cluster over instead of failing.
  */
 const dataDir = path.join(TEST_DATA_DIR, "start-stop");
@@ -79,7 +79,15 @@ async function startAndBrowse(): Promise<{ run: StartCommand; postmaster: number
   return { run, postmaster: postmasterPid(), page: () => context.close() };
 }
 
-async function expectEverythingStopped(postmaster: number) {
+/** The port of the local fake mail provider that the command says it started. */
+function mailFakePort(run: StartCommand): number {
+  const match = /bellwether: e-mail goes to the local fake provider at http:\/\/127\.0\.0\.1:(\d+) /.exec(run.output());
+  if (!match) throw new Error(`the start command did not start the fake mail provider:\n${run.output()}`);
+  return Number(match[1]);
+}
+
+async function expectEverythingStopped(postmaster: number, run: StartCommand) {
+  expect(await portIsFree(mailFakePort(run))).toBe(true);
   expect(await portIsFree(SPARE_PORT)).toBe(true);
   expect(await portIsFree(SPARE_PG_PORT)).toBe(true);
   expect(isAlive(postmaster)).toBe(false);
@@ -96,7 +104,7 @@ describe("npm start stops the app and its private PostgreSQL however it ends", (
     await page();
     // The command and the app both received SIGINT, and the app's exit also asks for a stop: one stop runs.
     expect(run.output().split("bellwether: stopped the private PostgreSQL").length - 1).toBe(1);
-    await expectEverythingStopped(postmaster);
+    await expectEverythingStopped(postmaster, run);
   });
 
   it("on SIGTERM sent to the start command alone", async () => {
@@ -104,7 +112,7 @@ describe("npm start stops the app and its private PostgreSQL however it ends", (
     process.kill(run.child.pid!, "SIGTERM");
     expect(await run.exited).toEqual({ code: 0, signal: null });
     await page();
-    await expectEverythingStopped(postmaster);
+    await expectEverythingStopped(postmaster, run);
   });
 
   it("on SIGHUP to the process group, as when the terminal closes", async () => {
@@ -112,7 +120,7 @@ describe("npm start stops the app and its private PostgreSQL however it ends", (
     process.kill(-run.child.pid!, "SIGHUP");
     expect(await run.exited).toEqual({ code: 0, signal: null });
     await page();
-    await expectEverythingStopped(postmaster);
+    await expectEverythingStopped(postmaster, run);
   });
 
   it("when the app crashes (SIGKILL of the app alone), with a failure exit code", async () => {
@@ -123,7 +131,7 @@ describe("npm start stops the app and its private PostgreSQL however it ends", (
     expect(await run.exited).toEqual({ code: 1, signal: null });
     await page();
     expect(run.output()).toContain("bellwether: the app stopped unexpectedly (SIGKILL)");
-    await expectEverythingStopped(postmaster);
+    await expectEverythingStopped(postmaster, run);
   });
 
   it("takes over a cluster left running when every process of an earlier start was killed", async () => {
@@ -142,6 +150,6 @@ describe("npm start stops the app and its private PostgreSQL however it ends", (
     process.kill(-second.run.child.pid!, "SIGINT");
     expect(await second.run.exited).toEqual({ code: 0, signal: null });
     await second.page();
-    await expectEverythingStopped(second.postmaster);
+    await expectEverythingStopped(second.postmaster, second.run);
   });
 });

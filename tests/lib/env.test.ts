@@ -50,6 +50,22 @@ describe("parseEnv", () => {
     );
   });
 
+  it("reads the mail settings: no key and no base URL by default, a sender address, a 30 s interval", () => {
+    // The defaults the README's environment table states.
+    const env = parseEnv(valid);
+    expect(env.RESEND_API_KEY).toBeUndefined();
+    expect(env.RESEND_BASE_URL).toBeUndefined();
+    expect(env.MAIL_FROM).toBe("Bellwether <bellwether@localhost>");
+    expect(env.BELLWETHER_MAIL_INTERVAL_SECONDS).toBe(30);
+    const set = parseEnv({ ...valid, RESEND_API_KEY: "re_123", RESEND_BASE_URL: "http://127.0.0.1:4010/", MAIL_FROM: "lab@harrowmere.example" });
+    expect([set.RESEND_API_KEY, set.RESEND_BASE_URL, set.MAIL_FROM]).toEqual(["re_123", "http://127.0.0.1:4010", "lab@harrowmere.example"]);
+    expect(() => parseEnv({ ...valid, RESEND_BASE_URL: "fake provider" })).toThrow(
+      "  - RESEND_BASE_URL: RESEND_BASE_URL must be a URL such as http://127.0.0.1:4010 (the local fake) or https://api.resend.com",
+    );
+    expect(() => parseEnv({ ...valid, MAIL_FROM: "Bellwether" })).toThrow('  - MAIL_FROM: MAIL_FROM must be an address, or "Name <address>"');
+    expect(() => parseEnv({ ...valid, RESEND_API_KEY: " " })).toThrow("  - RESEND_API_KEY: RESEND_API_KEY must not be empty; leave it unset to keep mail queued");
+  });
+
   it("reads the trusted proxies as addresses and ranges, and names a bad entry", () => {
     expect(parseEnv({ ...valid, BELLWETHER_TRUSTED_PROXIES: "127.0.0.1,10.0.0.0/8" }).BELLWETHER_TRUSTED_PROXIES.map((r) => r.prefix)).toEqual([32, 8]);
     expect(() => parseEnv({ ...valid, BELLWETHER_TRUSTED_PROXIES: "127.0.0.1, proxy.lan" })).toThrow(
