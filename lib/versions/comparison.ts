@@ -11,6 +11,8 @@
  * is flagged at its censoring limit, as the scoring models take it.
  */
 import { flagValue } from "@/lib/scoring/flag";
+import { partitionLabel } from "@/lib/studies/partitions";
+import { DAYS_PER_YEAR } from "./age-days";
 
 export type SimpleFlag = "L" | "N" | "H";
 
@@ -147,4 +149,13 @@ export function compareVersions({
       byPartition,
     },
   };
+}
+
+/**
+ * A partition's scope in words, from its age range in days (shown in years to two decimals, by
+ * age-days.ts's rule read backwards): "F, age 18 to under 65", "All donors".
+ */
+export function scopeLabel(scope: PartitionScope): string {
+  const years = (days: number | null) => (days === null ? undefined : Math.round((days / DAYS_PER_YEAR) * 100) / 100);
+  return partitionLabel({ sex: scope.sex ?? undefined, ageFrom: years(scope.ageFromDays), ageTo: years(scope.ageToDays) });
 }

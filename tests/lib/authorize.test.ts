@@ -33,6 +33,9 @@ const DESIGN_TABLE: Record<Permission, Role[]> = {
   "analytes:write": ["director", "scientist"],
   "donors:read": ["director", "scientist"],
   "versions:sign": ["director"],
+  // The issue on sign-off: "Donor rows go only to roles that may read donor data; an admin's
+  // dossier has everything else." Clinicians and LIS keys get none.
+  "dossiers:read": ["admin", "director", "scientist"],
   "intervals:read": ["admin", "director", "scientist", "clinician"],
   "scores:create": ["admin", "director", "scientist", "clinician"],
 };

@@ -1,0 +1,57 @@
+import "server-only";
+import { AppError } from "@/lib/api/errors";
+import { compareVersions, scopeLabel, type PartitionScope, type VersionComparisonResult } from "@/lib/versions/comparison";
+import type { Database } from "../client";
+import { listIncludedDonorAgesAndValues } from "./donor-results";
+import { findIntervalVersion, listIntervalVersions, type VersionOut } from "./interval-versions";
+
+type Labelled<T extends { partition: PartitionScope }> = Omit<T, "partition"> & { partition: PartitionScope & { label: string } };
+
+export interface VersionComparisonOut {
+  version: { id: string; number: number; state: VersionOut["state"]; analyte: VersionOut["analyte"]; unit: string };
+  /**
+   * What the version is compared with: for a draft or a version awaiting sign-off, the version in
+   * force now ("in_force"); for one that is or was in force, the version in force before it
+   * ("previous"). Null when there is none.
+   */
+  inForce: VersionOut | null;
+  basis: "in_force" | "previous";
+  partitions: Labelled<VersionComparisonResult["partitions"][number]>[];
+  removedPartitions: Labelled<VersionComparisonResult["removedPartitions"][number]>[];
+  donorFlagChanges: Omit<VersionComparisonResult["donorFlagChanges"], "byPartition"> & {
+    byPartition: Labelled<VersionComparisonResult["donorFlagChanges"]["byPartition"][number]>[];
+  };
+}
+
+const labelled = <T extends { partition: PartitionScope }>(row: T): Labelled<T> => ({ ...row, partition: { ...row.partition, label: scopeLabel(row.partition) } });
+
+/**
+ * The version beside the one in force of its analyte (or the one it followed), in one snapshot:
+ * limits per partition and the flag changes among the study's donors without an exclusion in effect.
+ */
+export async function versionComparison(database: Database, { id }: { id: string }): Promise<VersionComparisonOut> {
+  return database.transaction(
+    async (tx) => {
+      const version = await findIntervalVersion(tx, { id });
+      const pending = version.state === "draft" || version.state === "awaiting_signoff";
+      const others = await listIntervalVersions(tx, { query: { analyte: version.analyte.code } });
+      const inForce = pending
+        ? (others.find((v) => v.state === "in_force") ?? null)
+        : (others.filter((v) => v.number < version.number && v.effectiveFrom !== null).sort((a, b) => b.number - a.number)[0] ?? null);
+      if (inForce && inForce.unit !== version.unit) {
+        throw new AppError("conflict", `Version ${inForce.number} of ${version.analyte.code} is in ${inForce.unit} and this one in ${version.unit}: the limits cannot be compared.`);
+      }
+      const donors = version.studyId ? await listIncludedDonorAgesAndValues(tx, { studyId: version.studyId }) : [];
+      const result = compareVersions({ next: version.partitions, current: inForce ? inForce.partitions : null, donors });
+      return {
+        version: { id: version.id, number: version.number, state: version.state, analyte: version.analyte, unit: version.unit },
+        inForce,
+        basis: pending ? "in_force" : "previous",
+        partitions: result.partitions.map(labelled),
+        removedPartitions: result.removedPartitions.map(labelled),
+        donorFlagChanges: { ...result.donorFlagChanges, byPartition: result.donorFlagChanges.byPartition.map(labelled) },
+      };
+    },
+    { isolationLevel: "repeatable read", accessMode: "read only" },
+  );
+}
