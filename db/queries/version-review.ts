@@ -6,6 +6,7 @@ import { analytes, studies } from "../schema";
 import { findEstimateRow } from "./estimates";
 import { listExclusions, type ExclusionItem } from "./exclusions";
 import { findIntervalVersion, type VersionOut } from "./interval-versions";
+import { studyUploadRows } from "./study-export";
 import { listPartitionAssessments, type PartitionAssessmentItem } from "./partition-assessments";
 import { comparisonOf, type VersionComparisonOut } from "./version-comparison";
 import { versionPeople, versionSignatures, type SignatureOut, type VersionPeople } from "./version-record";
@@ -26,6 +27,8 @@ export interface VersionReview {
     collectedFrom: string | null;
     collectedTo: string | null;
   } | null;
+  /** The study's uploads (file, SHA-256, status, rows), oldest first. */
+  uploads: { fileName: string; sha256: string; status: string; rowsTotal: number }[];
   /** The exclusions in effect in the study, oldest first; null when the caller may not read donor-level data. */
   exclusions: ExclusionItem[] | null;
   assessments: PartitionAssessmentItem[];
@@ -44,6 +47,7 @@ export async function versionReview(database: Database, { id, donorLevel }: { id
       const [analyte] = await tx.select().from(analytes).where(eq(analytes.code, version.analyte.code)).limit(1);
       const [study] = version.studyId ? await tx.select().from(studies).where(eq(studies.id, version.studyId)).limit(1) : [];
       const exclusions = donorLevel && study ? (await listExclusions(tx, { studyId: study.id })).reverse() : donorLevel ? [] : null;
+      const uploads = study ? await studyUploadRows(tx, { studyId: study.id }) : [];
       const assessments = study ? (await listPartitionAssessments(tx, { studyId: study.id })).reverse() : [];
       const estimates = [];
       for (const p of version.partitions) {
@@ -68,6 +72,7 @@ export async function versionReview(database: Database, { id, donorLevel }: { id
               collectedTo: study.collectedTo,
             }
           : null,
+        uploads: uploads.map((u) => ({ fileName: u.fileName, sha256: u.sha256, status: u.status, rowsTotal: u.rowsTotal })),
         exclusions,
         assessments,
         estimates,
