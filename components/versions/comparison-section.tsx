@@ -1,6 +1,6 @@
 import { StudySection } from "@/components/studies/study-section";
 import { SimpleTable } from "@/components/ui/simple-table";
-import type { VersionComparisonOut } from "@/db/queries/version-comparison";
+import type { ComparisonAnswer } from "@/lib/versions/comparison";
 import { limitsText } from "./numbers";
 
 const FLAG_WORDS: Record<string, string> = { L: "low", N: "normal", H: "high" };
@@ -11,7 +11,7 @@ function transitionsText(transitions: { from: string | null; to: string; count: 
 }
 
 /** What the version changes against the one in force: limits side by side and donors whose flag would change. */
-export function ComparisonSection({ comparison, decimals, step }: { comparison: VersionComparisonOut; decimals: number; step: number }) {
+export function ComparisonSection({ comparison, decimals, step }: { comparison: ComparisonAnswer<{ number: number }>; decimals: number; step: number }) {
   const { inForce, donorFlagChanges: changes } = comparison;
   const code = comparison.version.analyte.code;
   const oldName = inForce ? `Version ${inForce.number}` : null;

@@ -1,6 +1,6 @@
 import { StudySection } from "@/components/studies/study-section";
 import { SimpleTable } from "@/components/ui/simple-table";
-import type { VersionReview } from "@/db/queries/version-review";
+import type { VersionReviewView as VersionReview } from "./types";
 import { scopeLabel } from "@/lib/versions/comparison";
 import { ciText, fixed, METHOD_WORDS } from "./numbers";
 

@@ -1,7 +1,7 @@
 import Link from "next/link";
 import { StudySection } from "@/components/studies/study-section";
 import { SimpleTable } from "@/components/ui/simple-table";
-import type { VersionReview } from "@/db/queries/version-review";
+import type { VersionReviewView as VersionReview } from "./types";
 import { formatDate } from "@/lib/format";
 import { fixed } from "./numbers";
 

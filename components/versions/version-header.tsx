@@ -1,7 +1,7 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
 import { Badge } from "@/components/ui/badge";
-import type { VersionReview } from "@/db/queries/version-review";
+import type { VersionReviewView as VersionReview } from "./types";
 import { formatDate, formatDateTime } from "@/lib/format";
 import { VERSION_STATE_WORDS } from "@/lib/versions/labels";
 

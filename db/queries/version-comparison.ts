@@ -1,27 +1,11 @@
 import "server-only";
 import { AppError } from "@/lib/api/errors";
-import { compareVersions, scopeLabel, type PartitionScope, type VersionComparisonResult } from "@/lib/versions/comparison";
+import { compareVersions, scopeLabel, type ComparisonAnswer, type Labelled, type PartitionScope } from "@/lib/versions/comparison";
 import type { Database, Executor } from "../client";
 import { listIncludedDonorAgesAndValues } from "./donor-results";
 import { findIntervalVersion, listIntervalVersions, type VersionOut } from "./interval-versions";
 
-type Labelled<T extends { partition: PartitionScope }> = Omit<T, "partition"> & { partition: PartitionScope & { label: string } };
-
-export interface VersionComparisonOut {
-  version: { id: string; number: number; state: VersionOut["state"]; analyte: VersionOut["analyte"]; unit: string };
-  /**
-   * What the version is compared with: for a draft or a version awaiting sign-off, the version in
-   * force now ("in_force"); for one that is or was in force, the version in force before it
-   * ("previous"). Null when there is none.
-   */
-  inForce: VersionOut | null;
-  basis: "in_force" | "previous";
-  partitions: Labelled<VersionComparisonResult["partitions"][number]>[];
-  removedPartitions: Labelled<VersionComparisonResult["removedPartitions"][number]>[];
-  donorFlagChanges: Omit<VersionComparisonResult["donorFlagChanges"], "byPartition"> & {
-    byPartition: Labelled<VersionComparisonResult["donorFlagChanges"]["byPartition"][number]>[];
-  };
-}
+export type VersionComparisonOut = ComparisonAnswer<VersionOut>;
 
 const labelled = <T extends { partition: PartitionScope }>(row: T): Labelled<T> => ({ ...row, partition: { ...row.partition, label: scopeLabel(row.partition) } });
 

@@ -159,3 +159,23 @@ export function scopeLabel(scope: PartitionScope): string {
   const years = (days: number | null) => (days === null ? undefined : Math.round((days / DAYS_PER_YEAR) * 100) / 100);
   return partitionLabel({ sex: scope.sex ?? undefined, ageFrom: years(scope.ageFromDays), ageTo: years(scope.ageToDays) });
 }
+
+/** A row of the comparison with its partition's scope also in words. */
+export type Labelled<T extends { partition: PartitionScope }> = Omit<T, "partition"> & { partition: PartitionScope & { label: string } };
+
+/** The comparison as the API answers it; `V` is the version's shape (the in-force one included). */
+export interface ComparisonAnswer<V> {
+  version: { id: string; number: number; state: string; analyte: { code: string; name: string }; unit: string };
+  /**
+   * What the version is compared with: for a draft or a version awaiting sign-off, the version in
+   * force now ("in_force"); for one that is or was in force, the version in force before it
+   * ("previous"). Null when there is none.
+   */
+  inForce: V | null;
+  basis: "in_force" | "previous";
+  partitions: Labelled<VersionComparisonResult["partitions"][number]>[];
+  removedPartitions: Labelled<VersionComparisonResult["removedPartitions"][number]>[];
+  donorFlagChanges: Omit<VersionComparisonResult["donorFlagChanges"], "byPartition"> & {
+    byPartition: Labelled<VersionComparisonResult["donorFlagChanges"]["byPartition"][number]>[];
+  };
+}
