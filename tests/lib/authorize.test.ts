@@ -77,8 +77,9 @@ describe("authorize", () => {
 describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
     expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/audit", "/account"]);
-    // UX.md: Studies and Analytes for the scientist and the director only, Studies first.
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/studies", "/analytes", "/audit", "/account"]);
+    // UX.md: Studies and Analytes for the scientist and the director only, Studies first; the
+    // director's Sign-off queue right after the overview.
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/signoff", "/studies", "/analytes", "/audit", "/account"]);
     expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/analytes", "/account"]);
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });
