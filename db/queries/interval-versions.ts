@@ -9,9 +9,22 @@ import { partitionLabel, partitionOut, type PartitionOut } from "@/lib/studies/e
 import { ageYearsToDays } from "@/lib/versions/age-days";
 import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, VersionPartitionInput } from "@/lib/versions/input";
 import { firstOverlap } from "@/lib/versions/overlap";
-import { publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
+import { adoptedScoringModel, publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
 import type { Database, Executor } from "../client";
-import { analytes, estimates, intervalPartitions, intervalVersions, studies, users, type IntervalVersion } from "../schema";
+import { SIGNATURE_MEANING_LABELS, VERSION_STATE_LABELS } from "@/lib/versions/state-machine";
+import {
+  analytes,
+  estimates,
+  intervalPartitions,
+  intervalVersions,
+  signatures,
+  studies,
+  users,
+  type AdoptionCheck,
+  type IntervalVersion,
+  type Signature,
+} from "../schema";
+import { acceptedAdoptionCheckForDraft } from "./adoption-checks";
 import { recordAuditEvent, type Actor } from "./audit";
 import { valuesOfEstimate } from "./estimates";
 
@@ -42,14 +55,37 @@ interface ResolvedPartition {
   sex: "F" | "M" | null;
   ageFromDays: number | null;
   ageToDays: number | null;
-  low: number;
-  high: number;
+  low: number | null;
+  high: number | null;
   lowCi: [number, number] | null;
   highCi: [number, number] | null;
-  method: PartitionMethod;
+  method: PartitionMethod | "adopted";
   n: number;
   model: ScoringModel;
-  estimateId: string;
+  estimateId: string | null;
+}
+
+/**
+ * The one partition of a version drafted from an accepted adoption check: the check's sex and
+ * limits, no CIs (the laboratory verified the limits, it did not estimate them), n the local
+ * values the check used, and the adopted scoring model (zlog, or limits only when one-sided).
+ */
+function adoptedPartition(check: AdoptionCheck): ResolvedPartition {
+  const sex = check.sex as "F" | "M" | null;
+  return {
+    scope: { sex, ageFrom: null, ageTo: null },
+    sex,
+    ageFromDays: null,
+    ageToDays: null,
+    low: check.lower,
+    high: check.upper,
+    lowCi: null,
+    highCi: null,
+    method: "adopted",
+    n: check.firstValues.length + (check.secondValues?.length ?? 0),
+    model: adoptedScoringModel({ lower: check.lower, upper: check.upper }),
+    estimateId: null,
+  };
 }
 
 /**
@@ -181,7 +217,8 @@ function auditPartitions(partitions: ResolvedPartition[]) {
 }
 
 /**
- * Drafts an interval version of the analyte from the study's estimates, numbered next for the
+ * Drafts an interval version of the analyte from the study's estimates, or from an accepted
+ * adoption check of the analyte (one partition, method "adopted"), numbered next for the
  * analyte in the same transaction. Two drafts numbered at the same moment meet the unique index
  * on (analyte, number): the loser tries again with the next number, and after a few attempts
  * answers 409.
@@ -195,12 +232,23 @@ export async function createIntervalVersion(
       const id = await database.transaction(async (tx) => {
         const [analyte] = await tx.select().from(analytes).where(eq(analytes.code, input.analyte)).limit(1);
         if (!analyte) throw invalid("analyte", `There is no analyte with the code ${input.analyte}.`);
-        const [study] = await tx.select().from(studies).where(eq(studies.id, input.study)).limit(1);
-        if (!study) throw invalid("study", `There is no study with the id ${input.study}.`);
-        if (study.analyteId !== analyte.id) {
-          throw invalid("study", `The study "${study.title}" is not a study of ${analyte.code}.`);
+        let partitions: ResolvedPartition[];
+        let studyId: string | null = null;
+        let adoptionCheckId: string | null = null;
+        if (input.adoptionCheck !== undefined) {
+          const check = await acceptedAdoptionCheckForDraft(tx, { id: input.adoptionCheck, analyteId: analyte.id, analyteCode: analyte.code });
+          adoptionCheckId = check.id;
+          partitions = [adoptedPartition(check)];
+        } else {
+          // The body's schema guarantees study and partitions when there is no adoption check.
+          const [study] = await tx.select().from(studies).where(eq(studies.id, input.study!)).limit(1);
+          if (!study) throw invalid("study", `There is no study with the id ${input.study}.`);
+          if (study.analyteId !== analyte.id) {
+            throw invalid("study", `The study "${study.title}" is not a study of ${analyte.code}.`);
+          }
+          studyId = study.id;
+          partitions = await resolvePartitions(tx, { studyId: study.id, partitions: input.partitions! });
         }
-        const partitions = await resolvePartitions(tx, { studyId: study.id, partitions: input.partitions });
         const criticalLow = input.criticalLow === undefined ? analyte.criticalLow : input.criticalLow;
         const criticalHigh = input.criticalHigh === undefined ? analyte.criticalHigh : input.criticalHigh;
         assertScorable(partitions, { unit: analyte.unit, decimals: analyte.decimals, criticalLow, criticalHigh });
@@ -211,7 +259,8 @@ export async function createIntervalVersion(
           .values({
             analyteId: analyte.id,
             number,
-            studyId: study.id,
+            studyId,
+            adoptionCheckId,
             unit: analyte.unit,
             decimals: analyte.decimals,
             criticalLow,
@@ -228,7 +277,7 @@ export async function createIntervalVersion(
           entityType: "interval_version",
           entityId: version.id,
           summary: `Drafted version ${number} of ${analyte.code} with ${partitions.length} partition${partitions.length === 1 ? "" : "s"}`,
-          details: { analyte: analyte.code, number, studyId: study.id, criticalLow, criticalHigh, note: version.note, partitions: auditPartitions(partitions) },
+          details: { analyte: analyte.code, number, studyId, ...(adoptionCheckId ? { adoptionCheckId } : {}), criticalLow, criticalHigh, note: version.note, partitions: auditPartitions(partitions) },
         });
         return version.id;
       });
@@ -257,7 +306,7 @@ export async function updateIntervalVersion(
     if (version.state !== "draft") {
       throw new AppError(
         "conflict",
-        `Version ${version.number} of ${analyte.code} is ${version.state.replace(/_/g, " ")}: only a draft can be changed.`,
+        `Version ${version.number} of ${analyte.code} is ${VERSION_STATE_LABELS[version.state].toLowerCase()}: only a draft can be changed.`,
       );
     }
     let partitions: ResolvedPartition[] | null = null;
@@ -321,12 +370,25 @@ export interface VersionPartitionOut {
   estimateId: string | null;
 }
 
+/** A signature as every answer shows it: who, when, what it means, and the hash it covers. */
+export interface SignatureOut {
+  id: string;
+  signer: { id: string; name: string };
+  at: Date;
+  meaning: Signature["meaning"];
+  meaningLabel: string;
+  contentSha256: string;
+  comment: string | null;
+}
+
 export interface VersionOut {
   id: string;
   number: number;
   state: IntervalVersion["state"];
   analyte: { code: string; name: string };
   studyId: string | null;
+  /** The accepted adoption check the version was drafted from, if any. */
+  adoptionCheckId: string | null;
   unit: string;
   decimals: number;
   criticalLow: number | null;
@@ -337,20 +399,41 @@ export interface VersionOut {
   createdBy: { id: string; name: string } | null;
   updatedAt: Date;
   submittedAt: Date | null;
+  submittedBy: { id: string; name: string } | null;
+  returnedAt: Date | null;
+  returnedBy: { id: string; name: string } | null;
   effectiveFrom: Date | null;
   effectiveTo: Date | null;
+  reviewBy: Date | null;
+  withdrawnAt: Date | null;
+  withdrawnBy: { id: string; name: string } | null;
+  withdrawnReason: string | null;
   partitions: VersionPartitionOut[];
+  signatures: SignatureOut[];
 }
 
 const pair = (a: number | null, b: number | null): [number, number] | null => (a === null || b === null ? null : [a, b]);
 
 async function versionsWhere(executor: Executor, where: SQL | undefined): Promise<VersionOut[]> {
   const creator = alias(users, "creator");
+  const submitter = alias(users, "submitter");
+  const returner = alias(users, "returner");
+  const withdrawer = alias(users, "withdrawer");
   const rows = await executor
-    .select({ version: intervalVersions, analyte: { code: analytes.code, name: analytes.name }, creator: { id: creator.id, name: creator.name } })
+    .select({
+      version: intervalVersions,
+      analyte: { code: analytes.code, name: analytes.name },
+      creator: { id: creator.id, name: creator.name },
+      submitter: { id: submitter.id, name: submitter.name },
+      returner: { id: returner.id, name: returner.name },
+      withdrawer: { id: withdrawer.id, name: withdrawer.name },
+    })
     .from(intervalVersions)
     .innerJoin(analytes, eq(analytes.id, intervalVersions.analyteId))
     .leftJoin(creator, eq(creator.id, intervalVersions.createdBy))
+    .leftJoin(submitter, eq(submitter.id, intervalVersions.submittedBy))
+    .leftJoin(returner, eq(returner.id, intervalVersions.returnedBy))
+    .leftJoin(withdrawer, eq(withdrawer.id, intervalVersions.withdrawnBy))
     .where(where)
     .orderBy(asc(analytes.code), desc(intervalVersions.number));
   if (rows.length === 0) return [];
@@ -382,12 +465,33 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
     });
     byVersion.set(p.versionId, list);
   }
-  return rows.map(({ version: v, analyte, creator: c }) => ({
+  const signed = await executor
+    .select()
+    .from(signatures)
+    .where(inArray(signatures.versionId, rows.map((r) => r.version.id)))
+    .orderBy(asc(signatures.signedAt), asc(signatures.id));
+  const signaturesOf = new Map<string, SignatureOut[]>();
+  for (const s of signed) {
+    const list = signaturesOf.get(s.versionId) ?? [];
+    list.push({
+      id: s.id,
+      signer: { id: s.signerId, name: s.signerName },
+      at: s.signedAt,
+      meaning: s.meaning,
+      meaningLabel: SIGNATURE_MEANING_LABELS[s.meaning],
+      contentSha256: s.contentSha256,
+      comment: s.comment,
+    });
+    signaturesOf.set(s.versionId, list);
+  }
+  const person = (p: { id: string | null; name: string | null } | null) => (p && p.id !== null && p.name !== null ? { id: p.id, name: p.name } : null);
+  return rows.map(({ version: v, analyte, creator: c, submitter, returner, withdrawer }) => ({
     id: v.id,
     number: v.number,
     state: v.state,
     analyte,
     studyId: v.studyId,
+    adoptionCheckId: v.adoptionCheckId,
     unit: v.unit,
     decimals: v.decimals,
     criticalLow: v.criticalLow,
@@ -395,12 +499,20 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
     note: v.note,
     returnComment: v.returnComment,
     createdAt: v.createdAt,
-    createdBy: c && c.id !== null ? { id: c.id, name: c.name } : null,
+    createdBy: person(c),
     updatedAt: v.updatedAt,
     submittedAt: v.submittedAt,
+    submittedBy: person(submitter),
+    returnedAt: v.returnedAt,
+    returnedBy: person(returner),
     effectiveFrom: v.effectiveFrom,
     effectiveTo: v.effectiveTo,
+    reviewBy: v.reviewBy,
+    withdrawnAt: v.withdrawnAt,
+    withdrawnBy: person(withdrawer),
+    withdrawnReason: v.withdrawnReason,
     partitions: byVersion.get(v.id) ?? [],
+    signatures: signaturesOf.get(v.id) ?? [],
   }));
 }
 

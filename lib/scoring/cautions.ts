@@ -12,7 +12,9 @@ export type CautionCode =
   | "value-censored"
   | "review-overdue"
   | "partition-chosen"
-  | "partition-default";
+  | "partition-default"
+  | "limits-only"
+  | "flag-only";
 
 export interface Caution {
   code: CautionCode;
@@ -79,6 +81,24 @@ export const REVIEW_OVERDUE_CAUTION: Caution = {
   text:
     "This reference interval is past its scheduled review date: the laboratory has not yet " +
     "re-confirmed that it still fits the current method and population.",
+};
+
+/** A zlog score: z comes from the interval's two limits, not from reference values. */
+export const LIMITS_ONLY_CAUTION: Caution = {
+  code: "limits-only",
+  text:
+    "This interval was adopted from an external source and verified locally; the laboratory holds " +
+    "only its limits. The z-score and percentile come from those limits alone (the zlog method), " +
+    "assuming the healthy values are log-normal between them, and are approximate.",
+};
+
+/** A one-sided interval: a flag and no z or percentile. */
+export const FLAG_ONLY_CAUTION: Caution = {
+  code: "flag-only",
+  text:
+    "This interval has a single limit, so only a flag is given: one limit says nothing of where " +
+    "the healthy values centre or how widely they spread, so no z-score or percentile can be " +
+    "computed from it.",
 };
 
 export type PartitionChoice = "sex" | "age" | "age-and-sex" | "default";

@@ -30,7 +30,28 @@ export const empiricalModelSchema = z.object({
     .refine((v) => v.every((x, i) => i === 0 || v[i - 1] <= x), "values must be sorted ascending"),
 });
 
-export const scoringModelSchema = z.discriminatedUnion("kind", [gaussianModelSchema, empiricalModelSchema]);
+/**
+ * zlog: z from the partition's two limits alone (Hoffmann et al. 2017), on the log scale (the
+ * published method) or, for a lower limit ≤ 0, the linear scale. For adopted intervals, whose
+ * reference values the laboratory does not hold.
+ */
+export const zlogModelSchema = z.object({
+  kind: z.literal("zlog"),
+  scale: z.enum(["log", "linear"]).default("log"),
+});
+
+/**
+ * Limits only: a flag and no z or percentile, for a one-sided adopted interval (one limit says
+ * nothing of the distribution's centre or spread).
+ */
+export const limitsModelSchema = z.object({ kind: z.literal("limits") });
+
+export const scoringModelSchema = z.discriminatedUnion("kind", [
+  gaussianModelSchema,
+  empiricalModelSchema,
+  zlogModelSchema,
+  limitsModelSchema,
+]);
 
 /**
  * One partition of an interval version as scoring sees it: inclusive limits (either may be null
@@ -49,6 +70,14 @@ export const scoringPartitionSchema = z
     n: z.number().int().positive().optional(),
   })
   .refine((p) => p.low !== null || p.high !== null, { message: "a partition needs a low or a high limit" })
+  .refine((p) => p.model.kind !== "zlog" || (p.low !== null && p.high !== null && p.low < p.high), {
+    message: "a zlog model needs a low limit below a high limit",
+    path: ["model"],
+  })
+  .refine((p) => p.model.kind !== "zlog" || p.model.scale !== "log" || (p.low !== null && p.low > 0), {
+    message: "a zlog model on the log scale needs a positive low limit",
+    path: ["model"],
+  })
   .refine((p) => p.low === null || p.high === null || p.low <= p.high, {
     message: "low must not exceed high",
     path: ["low"],
@@ -64,6 +93,7 @@ export const scoringPartitionSchema = z
 
 export type GaussianModel = z.infer<typeof gaussianModelSchema>;
 export type EmpiricalModel = z.infer<typeof empiricalModelSchema>;
+export type ZlogModel = z.infer<typeof zlogModelSchema>;
 export type ScoringModel = z.infer<typeof scoringModelSchema>;
 export type ScoringPartition = z.infer<typeof scoringPartitionSchema>;
 /** A partition before defaults are applied (decimals optional). */

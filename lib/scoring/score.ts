@@ -3,7 +3,9 @@ import { boxCoxOfValue } from "../stats/box-cox";
 import { rankType6 } from "../stats/quantile";
 import { assertFiniteNumber, StatsInputError } from "../stats/validate";
 import {
+  FLAG_ONLY_CAUTION,
   GENERAL_CAUTION,
+  LIMITS_ONLY_CAUTION,
   outsideReferenceDataCaution,
   partitionCaution,
   REVIEW_OVERDUE_CAUTION,
@@ -18,6 +20,7 @@ import { flagCensored, flagValue, type Flag } from "./flag";
 import { gaussianTransform } from "./gaussian";
 import { obx7, obx8 } from "./hl7";
 import type { ScoringPartition } from "./model";
+import { zlog } from "./zlog";
 
 export interface ScoreInput {
   /** The partition that applies, already validated with scoringPartitionSchema. */
@@ -34,8 +37,9 @@ export interface ScoreInput {
 }
 
 export interface Score {
-  z: number;
-  percentile: number;
+  /** Null for a limits-only (flag-only) model. */
+  z: number | null;
+  percentile: number | null;
   /** Non-null when the percentile (and z) is only a bound: the true value is further out. */
   percentileBound: "below" | "above" | null;
   flag: Flag;
@@ -54,6 +58,10 @@ export interface ModelScore {
 const phi = normal.cdf.factory(0, 1);
 const phiInverse = normal.quantile.factory(0, 1);
 
+function flagOnly(): never {
+  throw new StatsInputError("this partition's model gives a flag only (a one-sided interval): it has no z-score or percentile");
+}
+
 /** Largest |z| that the reference data themselves reach: Φ⁻¹(n/(n+1)), or 3 without n. */
 function dataReach(n: number | undefined): number {
   return n === undefined ? 3 : normal.quantile(n / (n + 1), 0, 1);
@@ -62,12 +70,14 @@ function dataReach(n: number | undefined): number {
 /**
  * Prepare a partition's model once and return a function that scores one value against it.
  * Gaussian: z = (g(x) − mean)/sd, percentile = 100·Φ(z). Empirical: the inverse type-6 quantile
- * (see scoreEmpirical), with bounds outside the data.
+ * (see scoreEmpirical), with bounds outside the data. zlog: z from the partition's limits
+ * (lib/scoring/zlog.ts). A limits-only model has no z: asking for a scorer throws.
  *
  * @see CLSI EP28-A3c (2010); Hyndman RJ, Fan Y. Am Stat 1996;50:361–365 (definition 6).
  * @param partition a validated partition
  * @returns a scorer; it throws StatsInputError for a non-finite value or a value ≤ 0 under
- *   ln or Box-Cox
+ *   ln, Box-Cox or log-scale zlog
+ * @throws StatsInputError for a limits-only model
  * Complexity: O(n) to prepare an empirical model, then O(1) (gaussian) or O(log n) per value.
  * @example
  * const score = createScorer(partition); score(4.9); // → { z, percentile, bound }
@@ -83,6 +93,12 @@ export function createScorer(partition: ScoringPartition): (x: number) => ModelS
       return { z, percentile: 100 * normal.cdf(z, 0, 1), bound: null };
     };
   }
+  if (model.kind === "zlog") {
+    const { low, high } = partition;
+    if (low === null || high === null) throw new StatsInputError("a zlog model needs both limits");
+    return (x) => ({ ...zlog(x, low, high, { scale: model.scale }), bound: null });
+  }
+  if (model.kind === "limits") flagOnly();
   const idx: EmpiricalIndex = indexEmpirical(model);
   return (x) => {
     assertFiniteNumber(x, "value");
@@ -133,6 +149,20 @@ export function scoreMany(
       z[i] = zi;
       percentile[i] = 100 * phi(zi);
     }
+  } else if (model.kind === "zlog" || model.kind === "limits") {
+    const scorer = createScorer(partition);
+    for (let i = 0; i < m; i++) {
+      try {
+        const s = scorer(values[i]);
+        z[i] = s.z;
+        percentile[i] = s.percentile;
+      } catch (err) {
+        if (!(err instanceof StatsInputError)) throw err;
+        z[i] = NaN;
+        percentile[i] = NaN;
+        invalid.push(i);
+      }
+    }
   } else {
     // The bound is read from the ends here rather than through empiricalRank, so that no
     // result object is made per value.
@@ -178,7 +208,9 @@ export function scoreValue(input: ScoreInput, scorer?: (x: number) => ModelScore
   if (typeof value !== "number" || !Number.isFinite(value)) {
     throw new StatsInputError(`value must be a finite number (got ${String(value)})`);
   }
-  const s = (scorer ?? createScorer(partition))(value);
+  const model = partition.model;
+  const s: ModelScore =
+    model.kind === "limits" ? { z: NaN, percentile: NaN, bound: null } : (scorer ?? createScorer(partition))(value);
   const censored = input.censored ?? null;
   const limits = {
     low: partition.low,
@@ -190,24 +222,28 @@ export function scoreValue(input: ScoreInput, scorer?: (x: number) => ModelScore
 
   const cautions: Caution[] = [GENERAL_CAUTION];
   let percentileBound = s.bound;
-  const model = partition.model;
-  if (s.bound !== null && model.kind === "empirical") {
+  if (model.kind === "limits") {
+    cautions.push(FLAG_ONLY_CAUTION);
+  } else if (model.kind === "zlog") {
+    cautions.push(LIMITS_ONLY_CAUTION);
+  } else if (s.bound !== null && model.kind === "empirical") {
     cautions.push(outsideReferenceDataCaution(s.bound, s.percentile, model.values.length));
   } else if (model.kind === "gaussian" && Math.abs(s.z) > dataReach(partition.n)) {
     cautions.push(tailExtrapolatedCaution(s.z, partition.n));
   }
   if (censored) {
     // "<c": the true value is below c, so its percentile is below the one computed at c.
-    percentileBound = censored === "<" ? "below" : "above";
+    if (model.kind !== "limits") percentileBound = censored === "<" ? "below" : "above";
     cautions.push(valueCensoredCaution(censored, value, partition.unit));
   }
   if (input.unitConverted) cautions.push(unitConvertedCaution(input.unitConverted.from, partition.unit));
   if (input.reviewOverdue) cautions.push(REVIEW_OVERDUE_CAUTION);
   if (input.partitionChosenBy) cautions.push(partitionCaution(input.partitionChosenBy));
 
+  const flagOnlyModel = model.kind === "limits";
   return {
-    z: s.z,
-    percentile: s.percentile,
+    z: flagOnlyModel ? null : s.z,
+    percentile: flagOnlyModel ? null : s.percentile,
     percentileBound,
     flag,
     hl7: { obx7: obx7(partition.low, partition.high, partition.decimals), obx8: obx8(flag) },

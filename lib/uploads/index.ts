@@ -26,3 +26,4 @@ export {
 export { inspectUpload, previewUpload, type InspectOptions, type PreviewOptions, type UploadInspection, type UploadPreview } from "./preview";
 export { suggestMapping } from "./suggest";
 export { templateCsv, templateXlsx, type TemplateOptions } from "./template";
+export { readValueColumn, MAX_VALUE_ROWS, type ValueColumn } from "./value-column";

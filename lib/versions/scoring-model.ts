@@ -78,3 +78,14 @@ export function scoringModelFor({
 export function publicModel(model: ScoringModel): Record<string, unknown> {
   return model.kind === "empirical" ? { kind: "empirical", n: model.values.length } : model;
 }
+
+/**
+ * The scoring model of a partition adopted from an accepted adoption check, whose reference
+ * values the laboratory does not hold: zlog from the two limits (log scale, Hoffmann et al.
+ * 2017; the linear variant when the lower limit is not positive), or, for a one-sided interval,
+ * limits only (a flag, no z: one limit says nothing of the distribution's centre or spread).
+ */
+export function adoptedScoringModel({ lower, upper }: { lower: number | null; upper: number | null }): ScoringModel {
+  if (lower === null || upper === null) return { kind: "limits" };
+  return { kind: "zlog", scale: lower > 0 ? "log" : "linear" };
+}

@@ -74,7 +74,8 @@ export async function run(args: string[]): Promise<number> {
 
   const partition = await loadPartition(modelPath);
   const values = rawValues.map(parseValue);
-  const scorer = createScorer(partition);
+  // A limits-only model gives a flag and no z: scoreValue handles it without a scorer.
+  const scorer = partition.model.kind === "limits" ? undefined : createScorer(partition);
   const scores = values.map(({ value, censored }, i) => {
     try {
       const s = scoreValue({ partition, value, censored }, scorer);
@@ -98,7 +99,9 @@ export async function run(args: string[]): Promise<number> {
     model:
       partition.model.kind === "gaussian"
         ? { kind: "gaussian", transform: partition.model.transform }
-        : { kind: "empirical", n: partition.model.values.length },
+        : partition.model.kind === "empirical"
+          ? { kind: "empirical", n: partition.model.values.length }
+          : partition.model,
     scores,
   };
   process.stdout.write(`${JSON.stringify(output, null, 2)}\n`);

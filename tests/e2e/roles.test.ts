@@ -6,8 +6,8 @@ import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
 
 /** UX.md, "Navigation by role (sidebar order)", written out. */
 const UX_NAVIGATION: Record<Role, string[]> = {
-  scientist: ["Overview", "Studies", "Analytes", "Intervals", "Score", "Account"],
-  director: ["Overview", "Sign-off queue", "Studies", "Analytes", "Intervals", "Score", "Audit trail", "Account"],
+  scientist: ["Overview", "Studies", "Adoption checks", "Analytes", "Intervals", "Score", "Account"],
+  director: ["Overview", "Sign-off queue", "Studies", "Adoption checks", "Analytes", "Intervals", "Score", "Audit trail", "Account"],
   clinician: ["Overview", "Score", "Intervals", "Account"],
   admin: ["Overview", "Users", "LIS connections", "Outbox", "Audit trail", "Intervals", "Score", "Account"],
 };
@@ -15,7 +15,7 @@ const UX_NAVIGATION: Record<Role, string[]> = {
  * The sections whose pages exist so far; each later capability adds its own here. The sidebar
  * must show exactly UX.md's items among these, in UX.md's order.
  */
-const BUILT_SECTIONS = ["Overview", "Users", "Sign-off queue", "Studies", "Analytes", "Audit trail", "Account"];
+const BUILT_SECTIONS = ["Overview", "Users", "Sign-off queue", "Studies", "Adoption checks", "Analytes", "Audit trail", "Account"];
 
 let browser: Browser;
 beforeAll(async () => {

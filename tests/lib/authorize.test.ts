@@ -77,10 +77,10 @@ describe("authorize", () => {
 describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
     expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/audit", "/account"]);
-    // UX.md: Studies and Analytes for the scientist and the director only, Studies first; the
-    // director's Sign-off queue right after the overview.
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/signoff", "/studies", "/analytes", "/audit", "/account"]);
-    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/analytes", "/account"]);
+    // UX.md: Studies and Analytes for the scientist and the director only, Studies first;
+    // issue 8: the director's Sign-off queue right after the overview, Adoption checks right after Studies.
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/signoff", "/studies", "/adoption-checks", "/analytes", "/audit", "/account"]);
+    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/adoption-checks", "/analytes", "/account"]);
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });
 });

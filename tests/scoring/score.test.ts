@@ -140,6 +140,10 @@ describe("scoreMany", () => {
         expect(s.bound, label).toBe(c.bound[i] === -1 ? "below" : c.bound[i] === 1 ? "above" : null);
       });
     }
+    // zlog and limits (adopted intervals) are checked in tests/scoring/adopted-models.test.ts
+    // against METHODS.md §10.1's zlog table; they have no R fixture here.
+    covered.add("zlog");
+    covered.add("limits");
     // Every member of the union (lib/scoring/model.ts), so a new kind cannot go unchecked.
     const union = scoringModelSchema.options.flatMap((o) =>
       o.shape.kind.value === "gaussian"

@@ -82,7 +82,50 @@ describe("verifyInterval (CLSI EP28-A3c 20-sample rule)", () => {
     expect(verifyInterval(sample(0, 4, 40), interval).probabilities.atMost).toBeCloseTo(0.95197173974578, 12);
   });
 
+  it("grades the first set with notVerifiedFrom: 3 or 4 outside call for a second set, 5 or more are not verified", () => {
+    const four = verifyInterval(sample(2, 2), interval, { notVerifiedFrom: 5 });
+    expect(four.verdict).toBe("second-set-needed");
+    // R: 1 - pbinom(3, 20, 0.05) = 0.0159015260197636 (P(X ≥ 4); METHODS.md §7.1: 1 − 0.98410); 1 - pbinom(4, 20, 0.05) = 0.00257394033465
+    // (METHODS.md §7.1: P(X ≥ 5) = 0.0026).
+    expect(four.probabilities.atLeast).toBeCloseTo(0.0159015260197636, 12);
+    expect(four.probabilities.rejectIfIntervalRight).toBeCloseTo(0.00257394033465, 12);
+    const five = verifyInterval(sample(3, 2), interval, { notVerifiedFrom: 5 });
+    expect(five.verdict).toBe("not-verified");
+    expect(five.reasons[0]).toBe(
+      "5 of 20 values (25.0%) fall outside 3.5–5.1 (3 below, 2 above); at most 2 are allowed, " +
+        "and 5 or more outside in the first set means the interval is not verified for this population",
+    );
+    expect(five.reasons[1]).toBe("if the interval were right, 5 or more outside would happen with probability 0.00257");
+    // A second set is never graded: 3 outside there is not verified.
+    const second = verifyInterval(sample(2, 1), interval, { secondSet: true, notVerifiedFrom: 5 });
+    expect(second.verdict).toBe("not-verified");
+    expect(second.probabilities.rejectIfIntervalRight).toBeNull();
+    expect(verifyInterval(sample(1, 1), interval).probabilities.rejectIfIntervalRight).toBeNull();
+  });
+
+  it("verifies a one-sided interval by the side it has", () => {
+    // Upper limit only: values below 3.5 are not outside.
+    const upper = verifyInterval(sample(4, 2), { low: null, high: 5.1 });
+    expect(upper).toMatchObject({ below: 0, above: 2, outside: 2, verdict: "verified" });
+    expect(upper.reasons[0]).toBe(
+      "2 of 20 values (10.0%) fall above the upper limit 5.1; at most 2 are allowed, so the interval is verified",
+    );
+    const lower = verifyInterval(sample(3, 5), { low: 3.5, high: null }, { notVerifiedFrom: 5 });
+    expect(lower).toMatchObject({ below: 3, above: 0, outside: 3, verdict: "second-set-needed" });
+    expect(lower.reasons[0]).toBe(
+      "3 of 20 values (15.0%) fall below the lower limit 3.5; at most 2 are allowed, so a second set of 20 is needed",
+    );
+    // R: 1 - pbinom(2, 20, 0.05) = 0.0754836737885 (a one-sided 95th percentile: p = 0.05 too).
+    expect(lower.probabilities.atLeast).toBeCloseTo(0.0754836737885, 12);
+  });
+
   it("rejects bad input", () => {
+    expect(() => verifyInterval([1, 2], { low: null, high: null })).toThrow(
+      "the interval needs a low limit, a high limit or both",
+    );
+    expect(() => verifyInterval(sample(0, 0), interval, { notVerifiedFrom: 3 })).toThrow(
+      "notVerifiedFrom must be an integer above 3, so that some counts call for a second set (got 3)",
+    );
     expect(() => verifyInterval([], interval)).toThrow("values is empty");
     expect(() => verifyInterval([1, NaN], interval)).toThrow(StatsInputError);
     expect(() => verifyInterval([1, 2], { low: 5, high: 4 })).toThrow(

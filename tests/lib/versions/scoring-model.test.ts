@@ -17,7 +17,9 @@ function logNormal(n: number, seed: number, sdLog: number): number[] {
 }
 
 function score(model: ScoringModel, x: number): number {
-  return model.kind === "gaussian" ? scoreGaussian(model, x).percentile : scoreEmpirical(model, x).percentile;
+  if (model.kind === "gaussian") return scoreGaussian(model, x).percentile;
+  if (model.kind === "empirical") return scoreEmpirical(model, x).percentile;
+  throw new Error(`scoringModelFor never builds a ${model.kind} model`);
 }
 
 // Expected: a 95% reference interval runs from the 2.5th to the 97.5th percentile (DESIGN.md,
