@@ -13,10 +13,12 @@ import type { Database } from "./client";
 import { cohortCsv } from "./demo-donors";
 import { DEMO_STAGES, DEMO_STUDIES, type DemoStage, type DemoStudy } from "./demo-studies";
 import { findAnalyteByCode } from "./queries/analytes";
-import { recordAuditEvent, type Actor } from "./queries/audit";
+import type { Actor } from "./queries/audit";
 import { createEstimate } from "./queries/estimates";
 import { createExclusions } from "./queries/exclusions";
+import { DEMO_USERS } from "./demo-accounts";
 import { createIntervalVersion } from "./queries/interval-versions";
+import { signIntervalVersion, submitIntervalVersion } from "./queries/version-moves";
 import { createOutlierDecision } from "./queries/outlier-decisions";
 import { createPartitionAssessment } from "./queries/partition-assessments";
 import { screenEvidenceOf, screenStudy } from "./queries/screens";
@@ -190,40 +192,33 @@ async function ensureDraft(
   return { id: version.id, state: version.state, added: true };
 }
 
+/** The demo's in-force versions were signed at 09:30 UTC on their effective day, submitted a week before. */
+const signedAt = (spec: DemoStudy) => new Date(`${spec.effectiveFrom}T09:30:00Z`);
+const WEEK_MS = 7 * 24 * 60 * 60 * 1000;
+
+/** The session the demo's director signs in: its first signature gives the e-mail, later ones the password. */
+const DEMO_SIGNING_SESSION = "demo-seed";
+
 /**
- * Moves a demo version on to "awaiting_signoff" (submitted by the scientist) or "in_force" (as
- * signed before Bellwether kept signatures: the demo's versions in force carry no electronic
- * signature, and the audit trail says so). Sign-off itself belongs to the director's workflow.
+ * Moves a demo version on through the same queries as the API: submitted by the demo scientist,
+ * and for a version in force signed off by the demo director with the published demo password,
+ * at the moment the demo's story puts it (so the signature, its hash and the superseding are
+ * those of a real sign-off).
  */
 async function advanceVersion(
   database: Database,
-  { versionId, to, spec, actors }: { versionId: string; to: "awaiting_signoff" | "in_force"; spec: DemoStudy; actors: DemoActors },
+  { versionId, to, spec, actors, submitted = false }: { versionId: string; to: "awaiting_signoff" | "in_force"; spec: DemoStudy; actors: DemoActors; submitted?: boolean },
 ): Promise<void> {
-  await database.transaction(async (tx) => {
-    const [version] = await tx.select().from(intervalVersions).where(eq(intervalVersions.id, versionId)).for("update");
-    const submittedAt = to === "in_force" ? new Date(`${spec.effectiveFrom}T00:00:00Z`) : new Date();
-    await tx
-      .update(intervalVersions)
-      .set({
-        state: to,
-        submittedBy: actors.scientist.id,
-        submittedAt,
-        effectiveFrom: to === "in_force" ? new Date(`${spec.effectiveFrom}T00:00:00Z`) : null,
-        updatedBy: actors.scientist.id,
-        updatedAt: new Date(),
-      })
-      .where(eq(intervalVersions.id, versionId));
-    await recordAuditEvent(tx, {
-      actor: to === "in_force" ? actors.director : actors.scientist,
-      action: to === "in_force" ? "demo.version-in-force" : "interval-version.submitted",
-      entityType: "interval-version",
-      entityId: versionId,
-      summary:
-        to === "in_force"
-          ? `Demo: version ${version.number} of ${spec.analyte} in force from ${spec.effectiveFrom} (signed off before Bellwether; no electronic signature)`
-          : `Submitted version ${version.number} of ${spec.analyte} for sign-off`,
-      details: { from: version.state, to, effectiveFrom: to === "in_force" ? spec.effectiveFrom : null },
-    });
+  const at = to === "in_force" ? signedAt(spec) : new Date();
+  const scientist = { id: actors.scientist.id!, email: actors.scientist.label, sessionId: null };
+  if (!submitted) await submitIntervalVersion(database, { id: versionId, caller: scientist, at: to === "in_force" ? new Date(at.getTime() - WEEK_MS) : at });
+  if (to !== "in_force") return;
+  const account = DEMO_USERS.find((u) => u.role === "director")!;
+  await signIntervalVersion(database, {
+    id: versionId,
+    credentials: { password: account.password, email: account.email },
+    caller: { id: actors.director.id!, email: actors.director.label, sessionId: DEMO_SIGNING_SESSION },
+    at,
   });
 }
 
@@ -245,6 +240,10 @@ export async function seedDemoStudies(database: Database, actors: DemoActors): P
     const target = spec.stage === "in_force" || spec.stage === "awaiting_signoff" ? spec.stage : null;
     if (target && version.state === "draft") {
       await advanceVersion(database, { versionId: version.id, to: target, spec, actors });
+      added = true;
+    } else if (target === "in_force" && version.state === "awaiting_signoff") {
+      // A seed stopped between submission and signature: sign now.
+      await advanceVersion(database, { versionId: version.id, to: target, spec, actors, submitted: true });
       added = true;
     }
   }

@@ -58,12 +58,15 @@ function run(bin: string, args: string[], env?: NodeJS.ProcessEnv): Promise<numb
   });
 }
 
+/** Arguments after the suite names (test file paths or name filters) narrow what vitest runs. */
+const vitestFilters = () => process.argv.slice(2).filter((a) => !(SUITES as readonly string[]).includes(a));
+
 async function runVitest(suite: Suite, env: NodeJS.ProcessEnv): Promise<Tally> {
   const report = path.join(dataRoot, `${suite}-report.json`);
   fs.rmSync(report, { force: true });
   const status = await run(
     "vitest",
-    ["run", "--project", suite, "--reporter=default", "--reporter=json", `--outputFile.json=${report}`, "--passWithNoTests"],
+    ["run", "--project", suite, "--reporter=default", "--reporter=json", `--outputFile.json=${report}`, "--passWithNoTests", ...vitestFilters()],
     env,
   );
   if (!fs.existsSync(report)) {

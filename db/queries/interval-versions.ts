@@ -11,7 +11,8 @@ import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, Version
 import { firstOverlap } from "@/lib/versions/overlap";
 import { publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
 import type { Database, Executor } from "../client";
-import { analytes, estimates, intervalPartitions, intervalVersions, studies, users, type IntervalVersion } from "../schema";
+import { SIGNATURE_MEANING_LABELS, VERSION_STATE_LABELS } from "@/lib/versions/state-machine";
+import { analytes, estimates, intervalPartitions, intervalVersions, signatures, studies, users, type IntervalVersion, type Signature } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { valuesOfEstimate } from "./estimates";
 
@@ -257,7 +258,7 @@ export async function updateIntervalVersion(
     if (version.state !== "draft") {
       throw new AppError(
         "conflict",
-        `Version ${version.number} of ${analyte.code} is ${version.state.replace(/_/g, " ")}: only a draft can be changed.`,
+        `Version ${version.number} of ${analyte.code} is ${VERSION_STATE_LABELS[version.state].toLowerCase()}: only a draft can be changed.`,
       );
     }
     let partitions: ResolvedPartition[] | null = null;
@@ -321,6 +322,17 @@ export interface VersionPartitionOut {
   estimateId: string | null;
 }
 
+/** A signature as every answer shows it: who, when, what it means, and the hash it covers. */
+export interface SignatureOut {
+  id: string;
+  signer: { id: string; name: string };
+  at: Date;
+  meaning: Signature["meaning"];
+  meaningLabel: string;
+  contentSha256: string;
+  comment: string | null;
+}
+
 export interface VersionOut {
   id: string;
   number: number;
@@ -337,20 +349,41 @@ export interface VersionOut {
   createdBy: { id: string; name: string } | null;
   updatedAt: Date;
   submittedAt: Date | null;
+  submittedBy: { id: string; name: string } | null;
+  returnedAt: Date | null;
+  returnedBy: { id: string; name: string } | null;
   effectiveFrom: Date | null;
   effectiveTo: Date | null;
+  reviewBy: Date | null;
+  withdrawnAt: Date | null;
+  withdrawnBy: { id: string; name: string } | null;
+  withdrawnReason: string | null;
   partitions: VersionPartitionOut[];
+  signatures: SignatureOut[];
 }
 
 const pair = (a: number | null, b: number | null): [number, number] | null => (a === null || b === null ? null : [a, b]);
 
 async function versionsWhere(executor: Executor, where: SQL | undefined): Promise<VersionOut[]> {
   const creator = alias(users, "creator");
+  const submitter = alias(users, "submitter");
+  const returner = alias(users, "returner");
+  const withdrawer = alias(users, "withdrawer");
   const rows = await executor
-    .select({ version: intervalVersions, analyte: { code: analytes.code, name: analytes.name }, creator: { id: creator.id, name: creator.name } })
+    .select({
+      version: intervalVersions,
+      analyte: { code: analytes.code, name: analytes.name },
+      creator: { id: creator.id, name: creator.name },
+      submitter: { id: submitter.id, name: submitter.name },
+      returner: { id: returner.id, name: returner.name },
+      withdrawer: { id: withdrawer.id, name: withdrawer.name },
+    })
     .from(intervalVersions)
     .innerJoin(analytes, eq(analytes.id, intervalVersions.analyteId))
     .leftJoin(creator, eq(creator.id, intervalVersions.createdBy))
+    .leftJoin(submitter, eq(submitter.id, intervalVersions.submittedBy))
+    .leftJoin(returner, eq(returner.id, intervalVersions.returnedBy))
+    .leftJoin(withdrawer, eq(withdrawer.id, intervalVersions.withdrawnBy))
     .where(where)
     .orderBy(asc(analytes.code), desc(intervalVersions.number));
   if (rows.length === 0) return [];
@@ -382,7 +415,27 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
     });
     byVersion.set(p.versionId, list);
   }
-  return rows.map(({ version: v, analyte, creator: c }) => ({
+  const signed = await executor
+    .select()
+    .from(signatures)
+    .where(inArray(signatures.versionId, rows.map((r) => r.version.id)))
+    .orderBy(asc(signatures.signedAt), asc(signatures.id));
+  const signaturesOf = new Map<string, SignatureOut[]>();
+  for (const s of signed) {
+    const list = signaturesOf.get(s.versionId) ?? [];
+    list.push({
+      id: s.id,
+      signer: { id: s.signerId, name: s.signerName },
+      at: s.signedAt,
+      meaning: s.meaning,
+      meaningLabel: SIGNATURE_MEANING_LABELS[s.meaning],
+      contentSha256: s.contentSha256,
+      comment: s.comment,
+    });
+    signaturesOf.set(s.versionId, list);
+  }
+  const person = (p: { id: string | null; name: string | null } | null) => (p && p.id !== null && p.name !== null ? { id: p.id, name: p.name } : null);
+  return rows.map(({ version: v, analyte, creator: c, submitter, returner, withdrawer }) => ({
     id: v.id,
     number: v.number,
     state: v.state,
@@ -395,12 +448,20 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
     note: v.note,
     returnComment: v.returnComment,
     createdAt: v.createdAt,
-    createdBy: c && c.id !== null ? { id: c.id, name: c.name } : null,
+    createdBy: person(c),
     updatedAt: v.updatedAt,
     submittedAt: v.submittedAt,
+    submittedBy: person(submitter),
+    returnedAt: v.returnedAt,
+    returnedBy: person(returner),
     effectiveFrom: v.effectiveFrom,
     effectiveTo: v.effectiveTo,
+    reviewBy: v.reviewBy,
+    withdrawnAt: v.withdrawnAt,
+    withdrawnBy: person(withdrawer),
+    withdrawnReason: v.withdrawnReason,
     partitions: byVersion.get(v.id) ?? [],
+    signatures: signaturesOf.get(v.id) ?? [],
   }));
 }
 

@@ -1,6 +1,6 @@
 import "server-only";
 import type { z } from "zod";
-import { currentCaller } from "@/lib/auth/session";
+import { currentSession } from "@/lib/auth/session";
 import { authorize, type Caller } from "@/lib/auth/authorize";
 import type { Permission } from "@/lib/auth/roles";
 import { AppError } from "./errors";
@@ -24,6 +24,8 @@ interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodT
 
 interface RouteInput<P, Q, B> {
   caller: Caller;
+  /** The next-auth session's own id (token `sid`), e.g. for the first signature of a session. */
+  sessionId: string | null;
   params: P;
   query: Q;
   body: B;
@@ -33,8 +35,8 @@ interface RouteInput<P, Q, B> {
 }
 
 /** Resolves who is calling: the session cookie (LIS keys join here with their issue). */
-async function resolveCaller(): Promise<Caller | null> {
-  return currentCaller();
+async function resolveCaller(): Promise<{ caller: Caller; sessionId: string | null } | null> {
+  return currentSession();
 }
 
 async function readJson(request: Request, maxBytes: number): Promise<unknown> {
@@ -100,12 +102,14 @@ export function apiRoute<
   return async (request: Request, context: RouteContext): Promise<Response> => {
     const url = new URL(request.url);
     try {
-      const caller = authorize(await resolveCaller(), config.permission);
+      const session = await resolveCaller();
+      const caller = authorize(session?.caller ?? null, config.permission);
+      const sessionId = session?.sessionId ?? null;
       const params = config.params ? config.params.parse(await context.params) : {};
       const query = config.query ? config.query.parse(Object.fromEntries(url.searchParams)) : {};
       const body = config.body ? config.body.parse(await readJson(request, config.maxBodyBytes ?? 1 << 20)) : undefined;
       const form = config.multipart ? await readMultipart(request, config.multipart.maxBytes) : null;
-      const result = await handler({ caller, params, query, body, form, request } as RouteInput<
+      const result = await handler({ caller, sessionId, params, query, body, form, request } as RouteInput<
         z.output<P>,
         z.output<Q>,
         z.output<B>

@@ -48,3 +48,35 @@ export type CreateVersionInput = z.output<typeof createVersionBody>;
 export type UpdateVersionInput = z.output<typeof updateVersionBody>;
 export type VersionPartitionInput = z.output<typeof versionPartitionInput>;
 export type ListVersionsQuery = z.output<typeof listVersionsQuery>;
+
+const commentField = (name: string, what: string) =>
+  z.string(`${name} is text.`).trim().min(1, `Give ${what}.`).max(4000, `Keep ${name} within 4000 characters.`);
+const passwordField = z.string("password is your password, as text.").min(1, "Give your password.").max(1024, "password is too long.");
+const emailField = z.string("email is your e-mail address, as text.").trim().max(320, "email is too long.").optional();
+
+/** POST …/{id}/return: the comment the author reads. */
+export const returnVersionBody = z.object({ comment: commentField("comment", "a comment saying what to change") }).strict();
+
+/** POST …/{id}/sign: `email` too at the first signature of a session. */
+export const signVersionBody = z
+  .object({
+    password: passwordField,
+    meaning: z.literal("approved_for_clinical_use", 'meaning is "approved_for_clinical_use": the one meaning of a sign-off.'),
+    email: emailField,
+  })
+  .strict();
+
+/** POST …/{id}/review: the comment says why the version still fits. */
+export const reviewVersionBody = z.object({ password: passwordField, comment: commentField("comment", "a comment saying why the version still fits"), email: emailField }).strict();
+
+/** POST …/{id}/withdraw. */
+export const withdrawVersionBody = z
+  .object({
+    password: passwordField,
+    reason: commentField("reason", "the reason for withdrawing the version"),
+    reinstatePrevious: z.boolean("reinstatePrevious is true or false.").optional(),
+    email: emailField,
+  })
+  .strict();
+
+export const userIdParams = z.object({ id: z.uuid("The user id must be a UUID.") });

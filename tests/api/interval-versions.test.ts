@@ -82,8 +82,16 @@ describe("POST /api/v1/interval-versions", () => {
       createdBy: { id: expect.any(String), name: demoUser("scientist").name },
       updatedAt: expect.any(String),
       submittedAt: null,
+      submittedBy: null,
+      returnedAt: null,
+      returnedBy: null,
       effectiveFrom: null,
       effectiveTo: null,
+      reviewBy: null,
+      withdrawnAt: null,
+      withdrawnBy: null,
+      withdrawnReason: null,
+      signatures: [],
       partitions: [
         {
           id: expect.any(String), position: 1, sex: "F", ageFrom: null, ageTo: null, ageFromDays: null, ageToDays: null,
@@ -259,7 +267,7 @@ describe("GET and PATCH /api/v1/interval-versions", () => {
     const before = await counts();
     const res = await send("PATCH", `/api/v1/interval-versions/${submitted.id}`, "scientist", { note: "late change" });
     expect(res.status).toBe(409);
-    expect((await res.json()).detail).toBe(`Version ${submitted.number} of GLU is awaiting signoff: only a draft can be changed.`);
+    expect((await res.json()).detail).toBe(`Version ${submitted.number} of GLU is awaiting sign-off: only a draft can be changed.`);
     expect(await counts()).toEqual(before);
     expect((await pool.query("SELECT note FROM interval_versions WHERE id = $1", [submitted.id])).rows[0].note).toBeNull();
   });

@@ -1,3 +1,4 @@
+import { createHash } from "node:crypto";
 import { drizzle } from "drizzle-orm/node-postgres";
 import { Pool } from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -10,7 +11,7 @@ import { createScratchDatabase, SUPERUSER_URL, type ScratchDatabase } from "../s
 /** Every table the seed may write, to show that a second run adds nothing. */
 const TABLES = [
   "laboratory", "users", "analytes", "studies", "uploads", "donor_results", "exclusions", "outlier_decisions",
-  "partition_assessments", "estimates", "interval_versions", "interval_partitions", "audit_events",
+  "partition_assessments", "estimates", "interval_versions", "interval_partitions", "audit_events", "signatures", "outbox",
 ];
 
 /** The demo's studies and the donor results each holds (db/demo-studies.ts, written out). */
@@ -224,6 +225,30 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
       ALT: ["gaussian"], CA: ["gaussian"], CREA: ["empirical"], GLU: ["empirical"], HGB: ["gaussian"],
       K: ["empirical"], NA: ["empirical"], TSH: ["empirical"], UREA: ["empirical"],
     });
+  });
+
+  it("signs every version in force once, as the demo director, with a hash that recomputes from its canonical content", async () => {
+    const signed = await rows<{ code: string; state: string; meaning: string; signer: string; signer_role: string; canonical_content: string; content_sha256: string; signed_at: Date; effective_from: Date; session_id: string }>(`
+      SELECT a.code, v.state::text AS state, s.meaning::text AS meaning, u.email AS signer, s.signer_role::text AS signer_role,
+        s.canonical_content, s.content_sha256, s.signed_at, v.effective_from, s.session_id
+      FROM signatures s JOIN interval_versions v ON v.id = s.version_id JOIN analytes a ON a.id = v.analyte_id JOIN users u ON u.id = s.signer_id
+      ORDER BY a.code`);
+    const inForce = await rows<{ code: string }>("SELECT a.code FROM interval_versions v JOIN analytes a ON a.id = v.analyte_id WHERE v.state = 'in_force' ORDER BY a.code");
+    expect(signed.map((s) => s.code)).toEqual(inForce.map((v) => v.code));
+    for (const s of signed) {
+      expect({ state: s.state, meaning: s.meaning, signer: s.signer, role: s.signer_role, session: s.session_id }, s.code).toEqual({
+        state: "in_force", meaning: "approved_for_clinical_use", signer: "director@harrowmere.example", role: "director", session: "demo-seed",
+      });
+      // The hash is SHA-256 of the stored text's UTF-8 bytes (node:crypto here; sha256sum gives the same, see tests/lib/versions).
+      expect(createHash("sha256").update(s.canonical_content, "utf8").digest("hex"), s.code).toBe(s.content_sha256);
+      expect(JSON.parse(s.canonical_content)).toMatchObject({ analyte: { code: s.code }, number: 1 });
+      expect(s.signed_at.getTime(), s.code).toBe(s.effective_from.getTime());
+    }
+    // Submitted by the scientist, so the director's signature keeps the duties apart.
+    const submitters = await rows<{ email: string; n: number }>(`
+      SELECT u.email, count(*)::int AS n FROM interval_versions v JOIN users u ON u.id = v.submitted_by
+      WHERE v.state IN ('in_force', 'awaiting_signoff') GROUP BY u.email`);
+    expect(submitters).toEqual([{ email: "scientist@harrowmere.example", n: 10 }]);
   });
 
   it("changes nothing when it runs again", async () => {

@@ -82,7 +82,8 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     for (const p of PUBLISHED) {
       expect(await verifyPassword(p.password, users.find((u) => u.email === p.email)!.password_hash), p.email).toBe(true);
     }
-  });
+    // As below: the seed's password-checked signatures need more than the default 30 s under load.
+  }, 120_000);
 
   it("refuses to serve while a demo account keeps its published password, also when the server is started by other means", async () => {
     const db = await scratchDatabase("published");
@@ -119,7 +120,9 @@ describe.skipIf(!SUPERUSER_URL)("the start command with DATABASE_URL (a real ins
     const code = await new Promise((resolve) => server.on("close", resolve));
     expect(code).toBe(1);
     expect(log).toContain("bellwether: refusing to serve: these accounts still have the demo passwords published in the README: clinician@harrowmere.example.");
-  });
+    // The demo seed signs its nine versions in force, each after a bcrypt check of the director's
+    // password: on a loaded 2-core machine the whole test takes longer than the default 30 s.
+  }, 120_000);
 
   it("without BELLWETHER_MIGRATION_URL changes nothing and names it when the schema is not there", async () => {
     const db = await scratchDatabase("unmigrated");
