@@ -3,14 +3,14 @@ import type { ReactNode } from "react";
 import { Badge } from "@/components/ui/badge";
 import type { VersionReviewView as VersionReview } from "./types";
 import { formatDate, formatDateTime } from "@/lib/format";
-import { VERSION_STATE_WORDS } from "@/lib/versions/labels";
+import { VERSION_STATE_LABELS } from "@/lib/versions/state-machine";
 
 const TONE = { draft: "neutral", awaiting_signoff: "warn", in_force: "ok", superseded: "off", withdrawn: "off" } as const;
 
 /** The version's state in words; a draft that a director sent back says so. */
 export function versionStateWords(review: Pick<VersionReview, "version">): string {
   const v = review.version;
-  return v.state === "draft" && v.returnComment ? "Returned to draft" : VERSION_STATE_WORDS[v.state];
+  return v.state === "draft" && v.returnComment ? "Returned to draft" : VERSION_STATE_LABELS[v.state];
 }
 
 /** The version's header: analyte, number, state, who drafted and moved it, and its records. */

@@ -5,7 +5,7 @@ import { recordAuditEvent, type Actor } from "./audit";
 import { listExclusions } from "./exclusions";
 import { findIntervalVersion } from "./interval-versions";
 import { readStudyExport } from "./study-export";
-import { versionAuditEvents, versionPeople, versionSignatures } from "./version-record";
+import { versionAuditEvents } from "./version-record";
 
 /**
  * Everything a version's dossier holds, in one snapshot (repeatable read), audited as
@@ -18,7 +18,7 @@ export async function versionDossierData(
   return database.transaction(
     async (tx) => {
       const version = await findIntervalVersion(tx, { id });
-      const [people, signatures] = [await versionPeople(tx, { versionId: id }), await versionSignatures(tx, { versionId: id })];
+      const { signatures } = version;
       const study = version.studyId ? await readStudyExport(tx, { studyId: version.studyId, donors: donorLevel }) : null;
       const exclusions = donorLevel && version.studyId ? await listExclusions(tx, { studyId: version.studyId }) : [];
       const auditEvents = await versionAuditEvents(tx, { versionId: id, studyId: version.studyId });
@@ -34,12 +34,9 @@ export async function versionDossierData(
         version: {
           ...version,
           createdBy: version.createdBy?.name ?? null,
-          submittedBy: people.submittedBy?.name ?? null,
-          reviewBy: people.reviewBy,
-          withdrawnAt: people.withdrawnAt,
-          withdrawnReason: people.withdrawnReason,
+          submittedBy: version.submittedBy?.name ?? null,
         },
-        signatures: signatures.map((s) => ({ signer: s.signer.name, role: s.signerRole, at: s.at, meaning: s.meaningLabel, contentSha256: s.contentSha256, comment: s.comment })),
+        signatures: signatures.map((s) => ({ signer: s.signer.name, at: s.at, meaning: s.meaningLabel, contentSha256: s.contentSha256, comment: s.comment })),
         study,
         donorLevel,
         exclusions: exclusions

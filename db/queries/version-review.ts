@@ -5,11 +5,14 @@ import type { Database } from "../client";
 import { analytes, studies } from "../schema";
 import { findEstimateRow } from "./estimates";
 import { listExclusions, type ExclusionItem } from "./exclusions";
-import { findIntervalVersion, type VersionOut } from "./interval-versions";
+import { findIntervalVersion, type SignatureOut, type VersionOut } from "./interval-versions";
 import { studyUploadRows } from "./study-export";
 import { listPartitionAssessments, type PartitionAssessmentItem } from "./partition-assessments";
 import { comparisonOf, type VersionComparisonOut } from "./version-comparison";
-import { versionPeople, versionSignatures, type SignatureOut, type VersionPeople } from "./version-record";
+
+
+/** Who moved the version through its states, and its review date. */
+export type VersionPeople = Pick<VersionOut, "submittedBy" | "returnedBy" | "returnedAt" | "withdrawnBy" | "withdrawnAt" | "withdrawnReason" | "reviewBy">;
 
 export interface VersionReview {
   version: VersionOut;
@@ -41,8 +44,8 @@ export async function versionReview(database: Database, { id, donorLevel }: { id
   return database.transaction(
     async (tx) => {
       const version = await findIntervalVersion(tx, { id });
-      const people = await versionPeople(tx, { versionId: id });
-      const signatures = await versionSignatures(tx, { versionId: id });
+      const { submittedBy, returnedBy, returnedAt, withdrawnBy, withdrawnAt, withdrawnReason, reviewBy, signatures } = version;
+      const people = { submittedBy, returnedBy, returnedAt, withdrawnBy, withdrawnAt, withdrawnReason, reviewBy };
       const comparison = await comparisonOf(tx, { version });
       const [analyte] = await tx.select().from(analytes).where(eq(analytes.code, version.analyte.code)).limit(1);
       const [study] = version.studyId ? await tx.select().from(studies).where(eq(studies.id, version.studyId)).limit(1) : [];

@@ -8,7 +8,7 @@
 import { donorSheet, estimatesSheet, num, partitionsSheet, str, type StudyExportData } from "@/lib/studies/export-workbook";
 import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWriter } from "@/lib/xlsx/streamed-workbook";
 import { scopeLabel } from "./comparison";
-import { VERSION_STATE_WORDS } from "./labels";
+import { VERSION_STATE_LABELS } from "./state-machine";
 import type { VersionState } from "@/db/schema";
 
 export interface DossierPartition {
@@ -49,7 +49,7 @@ export interface DossierData {
     withdrawnReason: string | null;
     partitions: DossierPartition[];
   };
-  signatures: { signer: string; role: string; at: Date; meaning: string; contentSha256: string; comment: string | null }[];
+  signatures: { signer: string; at: Date; meaning: string; contentSha256: string; comment: string | null }[];
   /** The version's study; null for a version drafted from an adoption check. */
   study: Omit<StudyExportData, "exportedAt" | "exportedBy"> | null;
   /** Whether donor-level data (donor results, exclusions) is in the workbook. */
@@ -78,7 +78,7 @@ function summarySheet(workbook: WorkbookWriter, data: DossierData): void {
   const pairs: [string, CellValue][] = [
     ["Interval version", `${v.analyte.code} version ${v.number}`],
     ["Version id", v.id],
-    ["State", VERSION_STATE_WORDS[v.state]],
+    ["State", VERSION_STATE_LABELS[v.state]],
     ["Analyte", `${v.analyte.code} (${v.analyte.name})`],
     ["Unit", v.unit],
     ["Display decimals", v.decimals],
@@ -125,9 +125,9 @@ function summarySheet(workbook: WorkbookWriter, data: DossierData): void {
 }
 
 function signaturesSheet(workbook: WorkbookWriter, data: DossierData): void {
-  const sheet = tableSheet(workbook, "Signatures", ["Signer", "Role", "Signed at", "Meaning", "Content SHA-256", "Comment"]);
+  const sheet = tableSheet(workbook, "Signatures", ["Signer", "Signed at", "Meaning", "Content SHA-256", "Comment"]);
   if (data.signatures.length === 0) addRow(sheet, ["No electronic signature on this version."]);
-  for (const s of data.signatures) addRow(sheet, [s.signer, s.role, s.at, s.meaning, s.contentSha256, s.comment]);
+  for (const s of data.signatures) addRow(sheet, [s.signer, s.at, s.meaning, s.contentSha256, s.comment]);
   sheet.commit();
 }
 

@@ -8,7 +8,7 @@ import { donorCsv, excludeDirectly, generatedRows, openStudy, sender, signInAll,
 const { pool } = testDatabase();
 afterAll(() => pool.end());
 
-const TABLES = ["studies", "donor_results", "exclusions", "estimates", "interval_versions", "interval_partitions", "signatures", "audit_events"];
+const TABLES = ["studies", "donor_results", "exclusions", "estimates", "interval_versions", "interval_partitions", "signatures", "outbox", "audit_events"];
 const counts = () => tableCounts(pool, TABLES);
 let cookies: Cookies;
 let send: ReturnType<typeof sender>;
@@ -54,16 +54,16 @@ beforeAll(async () => {
     { estimate: women.id, method: "parametric" },
     { estimate: men.id, method: "parametric" },
   ]);
-  // Version 1 goes in force the way the demo seed moves its versions (the sign-off routes are
-  // another engineer's), and carries one signature row as the signing would write it.
-  await pool.query("UPDATE interval_versions SET state = 'awaiting_signoff', submitted_at = now() WHERE id = $1", [v1.id]);
-  await pool.query("UPDATE interval_versions SET state = 'in_force', effective_from = now() WHERE id = $1", [v1.id]);
-  const director = (await pool.query("SELECT id, name FROM users WHERE email = $1", [demoUser("director").email])).rows[0];
-  await pool.query(
-    `INSERT INTO signatures (version_id, signer_id, signer_name, signer_role, meaning, canonical_content, content_sha256)
-     VALUES ($1, $2, $3, 'director', 'approved_for_clinical_use', '{}', $4)`,
-    [v1.id, director.id, director.name, "a".repeat(64)],
-  );
+  // Version 1 goes in force through the sign-off routes: submitted by the scientist, signed by the director.
+  expect((await send("POST", `/api/v1/interval-versions/${v1.id}/submit`, "scientist")).status).toBe(200);
+  const director = demoUser("director");
+  const signed = await send("POST", `/api/v1/interval-versions/${v1.id}/sign`, "director", {
+    password: director.password,
+    email: director.email,
+    meaning: "approved_for_clinical_use",
+  });
+  expect(signed.status, await signed.clone().text()).toBe(200);
+  v1 = await signed.json();
 });
 
 /** DESIGN.md's flag rule written out: L below the lower limit, H above the upper, N within (inclusive). */
@@ -184,9 +184,10 @@ describe("GET /api/v1/interval-versions/{id}/dossier", () => {
     expect(field("Donor-level data")).toBe("Included: the Exclusions and Donor results sheets");
 
     const signatures = rowsOf(workbook.getWorksheet("Signatures")!);
-    expect(signatures[1].slice(0, 2)).toEqual([demoUser("director").name, "director"]);
-    expect(signatures[1][3]).toBe("Approved for clinical use");
-    expect(signatures[1][4]).toBe("a".repeat(64));
+    expect(signatures[1][0]).toBe(demoUser("director").name);
+    expect(signatures[1][2]).toBe("Approved for clinical use");
+    expect(signatures[1][3]).toBe(v1.signatures[0].contentSha256);
+    expect(signatures[1][3]).toMatch(/^[0-9a-f]{64}$/);
 
     const partitions = rowsOf(workbook.getWorksheet("Partitions")!);
     expect(partitions.slice(1).map((r) => [r[1], r[5], r[8], r[11], r[12]])).toEqual([["All donors", v1.partitions[0].low, v1.partitions[0].high, "nonparametric", 199]]);

@@ -4,7 +4,6 @@ import { PageHeader } from "@/components/ui/panel";
 import { SimpleTable } from "@/components/ui/simple-table";
 import { db } from "@/db/client";
 import { listIntervalVersions } from "@/db/queries/interval-versions";
-import { versionPeople } from "@/db/queries/version-record";
 import { requirePageCaller } from "@/lib/auth/session";
 import { formatDateTime } from "@/lib/format";
 
@@ -14,8 +13,7 @@ export const metadata: Metadata = { title: "Sign-off queue" };
 export default async function SignoffQueuePage() {
   await requirePageCaller("versions:sign");
   const waiting = await listIntervalVersions(db(), { query: { state: "awaiting_signoff" } });
-  const rows = await Promise.all(waiting.map(async (v) => ({ v, people: await versionPeople(db(), { versionId: v.id }) })));
-  rows.sort((a, b) => (a.v.submittedAt?.getTime() ?? 0) - (b.v.submittedAt?.getTime() ?? 0));
+  const rows = waiting.map((v) => ({ v })).sort((a, b) => (a.v.submittedAt?.getTime() ?? 0) - (b.v.submittedAt?.getTime() ?? 0));
   return (
     <>
       <PageHeader
@@ -32,13 +30,13 @@ export default async function SignoffQueuePage() {
           </>
         }
         head={["Analyte", "Version", "Drafted by", "Submitted by", "Submitted at", ""]}
-        rows={rows.map(({ v, people }) => [
+        rows={rows.map(({ v }) => [
           <span key="a">
             <span className="font-mono font-semibold">{v.analyte.code}</span> · {v.analyte.name}
           </span>,
           String(v.number),
           v.createdBy?.name ?? "—",
-          people.submittedBy?.name ?? "—",
+          v.submittedBy?.name ?? "—",
           formatDateTime(v.submittedAt),
           <Link key="r" href={`/versions/${v.id}`} className="font-medium">
             Review version {v.number} of {v.analyte.code}
