@@ -120,3 +120,18 @@ export async function listIncludedDonorValues(
     )
     .orderBy(asc(donorResults.id));
 }
+
+/**
+ * Sex, age in days and value of every donor result of a study without an exclusion in effect, in
+ * id order: the people a new interval would flag, placed as scoring places a patient.
+ */
+export async function listIncludedDonorAgesAndValues(
+  executor: Executor,
+  { studyId }: { studyId: string },
+): Promise<{ sex: string; ageDays: number; value: number }[]> {
+  return executor
+    .select({ sex: donorResults.sex, ageDays: donorResults.ageDays, value: donorResults.value })
+    .from(donorResults)
+    .where(and(eq(donorResults.studyId, studyId), sql`NOT EXISTS ${hasActiveExclusion}`))
+    .orderBy(asc(donorResults.id));
+}

@@ -11,6 +11,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/", label: "Overview" },
   { href: "/admin/users", label: "Users", permission: "users:manage" },
   { href: "/admin/outbox", label: "Outbox", permission: "users:manage" },
+  { href: "/signoff", label: "Sign-off queue", permission: "versions:sign" },
   { href: "/studies", label: "Studies", permission: "studies:write" },
   { href: "/adoption-checks", label: "Adoption checks", permission: "studies:write" },
   // Everyone signed in may read the catalogue (the API serves it to all); the section is for the

@@ -11,6 +11,7 @@ export const PERMISSIONS = {
   "analytes:write": ["director", "scientist"],
   "donors:read": ["director", "scientist"],
   "versions:sign": ["director"],
+  "dossiers:read": ["admin", "director", "scientist"],
   "intervals:read": ["admin", "director", "scientist", "clinician"],
   "scores:create": ["admin", "director", "scientist", "clinician"],
 } as const satisfies Record<string, readonly Role[]>;
@@ -36,6 +37,7 @@ export const PERMISSION_DESCRIPTIONS: Record<Permission, string> = {
   "analytes:write": "Add analytes to the catalogue and edit their units, codes and critical limits.",
   "donors:read": "Read donor-level results of studies.",
   "versions:sign": "Sign off interval versions drafted by others, return them with comments, withdraw them.",
+  "dossiers:read": "Print an interval version's sign-off record and download its dossier (donor rows only with access to donor-level data).",
   "intervals:read": "Read the reference intervals in force.",
   "scores:create": "Score a patient value against the interval in force: z-score, percentile and flag, with cautions.",
 };

@@ -3,17 +3,12 @@
  * exclusions and reasons), Partitions (the assessments run) and Estimates (one row per estimate
  * and method). Pure: plain data in, bytes out.
  *
- * Text is never a formula. Every string goes in as a string cell (exceljs makes a formula only
- * from a `{formula}` object, never from text), and carries the Text number format "@", so that a
- * donor code such as `=cmd|' /C calc'!A0`, `+1`, `-x` or `@SUM(…)` stays text even when someone
- * edits the cell in a spreadsheet program. Donor codes keep their exact characters.
+ * Text is never a formula: lib/xlsx/streamed-workbook.ts writes every cell. Donor codes keep
+ * their exact characters.
  */
-import { PassThrough } from "node:stream";
-import ExcelJS from "exceljs";
 import type { ReferenceIntervalEstimate } from "@/lib/stats/estimate";
+import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWriter } from "@/lib/xlsx/streamed-workbook";
 import { partitionLabel, partitionOut } from "./estimate-input";
-
-type CellValue = string | number | boolean | Date | null;
 
 export interface StudyExportData {
   study: {
@@ -73,37 +68,11 @@ export interface StudyExportData {
   exportedBy: string;
 }
 
-const TEXT_FORMAT = "@";
-
-/**
- * Adds a row and commits it (the workbook is streamed, so a 200,000-row study never sits in
- * memory as cells), marking every text cell as Text so that it can never be taken for a formula.
- */
-function addRow(sheet: ExcelJS.Worksheet, values: readonly CellValue[], bold = false): void {
-  const row = sheet.addRow(values as CellValue[]);
-  for (let i = 0; i < values.length; i++) {
-    if (typeof values[i] === "string") {
-      const cell = row.getCell(i + 1);
-      cell.numFmt = TEXT_FORMAT;
-      if (bold) cell.font = { bold: true };
-    }
-  }
-  if (bold && typeof values[0] !== "string") row.getCell(1).font = { bold: true };
-  row.commit();
-}
-
-/** A sheet whose first row, the header, stays in view. */
-function tableSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, name: string, names: readonly string[]): ExcelJS.Worksheet {
-  const sheet = workbook.addWorksheet(name, { views: [{ state: "frozen", ySplit: 1 }] });
-  addRow(sheet, names, true);
-  return sheet;
-}
-
-function num(v: unknown): number | null {
+export function num(v: unknown): number | null {
   return typeof v === "number" && Number.isFinite(v) ? v : null;
 }
 
-function str(v: unknown): string | null {
+export function str(v: unknown): string | null {
   if (v === null || v === undefined) return null;
   return typeof v === "string" ? v : JSON.stringify(v);
 }
@@ -119,7 +88,7 @@ function planText(plan: StudyExportData["study"]["partitionPlan"]): string {
   return parts.length ? parts.join(", ") : "One partition of everyone";
 }
 
-function summarySheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+function summarySheet(workbook: WorkbookWriter, data: StudyExportData): void {
   const sheet = workbook.addWorksheet("Summary");
   sheet.columns = [{ width: 28 }, { width: 70 }, { width: 12 }, { width: 12 }, { width: 12 }, { width: 12 }, { width: 22 }];
   const { study, analyte } = data;
@@ -154,7 +123,8 @@ function summarySheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyE
   sheet.commit();
 }
 
-function donorSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
+/** The donor results with their exclusions in effect: donor-level data. */
+export function donorSheet(workbook: WorkbookWriter, data: Pick<StudyExportData, "analyte" | "donorResults">): void {
   const sheet = tableSheet(workbook, "Donor results", [
     "Id", "Upload", "Row", "Donor code", "Sex", "Age (years)", "Age (days)", "Birth date", "Collected on",
     `Value (${data.analyte.unit})`, "Censored", "Original value", "Original unit", "Excluded", "Exclusion source", "Rule", "Reason", "Excluded at", "Excluded by",
@@ -170,8 +140,9 @@ function donorSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExp
   sheet.commit();
 }
 
-function partitionsSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
-  const sheet = tableSheet(workbook, "Partitions", ["Assessment", "Made", "By", "Bands (years)", "Sex", "Verdict", "Group / comparison", "n", "Mean", "SD", "Median", "Harris-Boyd", "Lahti", "Summary"]);
+/** The partition assessments run, with their groups, comparisons and verdicts. */
+export function partitionsSheet(workbook: WorkbookWriter, data: Pick<StudyExportData, "assessments">, name = "Partitions"): void {
+  const sheet = tableSheet(workbook, name, ["Assessment", "Made", "By", "Bands (years)", "Sex", "Verdict", "Group / comparison", "n", "Mean", "SD", "Median", "Harris-Boyd", "Lahti", "Summary"]);
   for (const a of data.assessments) {
     const r = a.result;
     const base: CellValue[] = [a.id, a.createdAt, str(r.by ?? a.request.by), bandsText(r.bands ?? a.request.bands), str(r.sex ?? a.request.sex), str(r.verdict)];
@@ -190,8 +161,9 @@ function partitionsSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: Stu
 
 const METHODS = ["nonparametric", "parametric", "robust"] as const;
 
-function estimatesSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: StudyExportData): void {
-  const sheet = tableSheet(workbook, "Estimates", [
+/** One row per estimate and method: limits, CIs, scale, provenance, warnings. */
+export function estimatesSheet(workbook: WorkbookWriter, data: Pick<StudyExportData, "estimates">, name = "Estimates"): void {
+  const sheet = tableSheet(workbook, name, [
     "Estimate", "Made", "Partition", "Sex", "Age from", "Age to", "Outliers", "Transform", "Seed", "n", "Method", "Recommended",
     "Lower limit", "Lower CI low", "Lower CI high", "Upper limit", "Upper CI low", "Upper CI high", "Scale", "Lambda",
     "Exclusions in effect", "Upload SHA-256", "Engine", "Warnings",
@@ -218,21 +190,10 @@ function estimatesSheet(workbook: ExcelJS.stream.xlsx.WorkbookWriter, data: Stud
 
 /** The workbook's bytes, written with exceljs's streaming writer. */
 export async function studyWorkbook(data: StudyExportData): Promise<Buffer> {
-  const stream = new PassThrough();
-  const chunks: Buffer[] = [];
-  stream.on("data", (chunk: Buffer) => chunks.push(chunk));
-  const ended = new Promise<void>((resolve, reject) => {
-    stream.on("end", resolve);
-    stream.on("error", reject);
+  return streamedWorkbook(data.exportedAt, (workbook) => {
+    summarySheet(workbook, data);
+    donorSheet(workbook, data);
+    partitionsSheet(workbook, data);
+    estimatesSheet(workbook, data);
   });
-  const workbook = new ExcelJS.stream.xlsx.WorkbookWriter({ stream, useStyles: true, useSharedStrings: false });
-  workbook.creator = "Bellwether";
-  workbook.created = data.exportedAt;
-  summarySheet(workbook, data);
-  donorSheet(workbook, data);
-  partitionsSheet(workbook, data);
-  estimatesSheet(workbook, data);
-  await workbook.commit();
-  await ended;
-  return Buffer.concat(chunks);
 }

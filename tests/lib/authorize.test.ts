@@ -33,6 +33,9 @@ const DESIGN_TABLE: Record<Permission, Role[]> = {
   "analytes:write": ["director", "scientist"],
   "donors:read": ["director", "scientist"],
   "versions:sign": ["director"],
+  // The issue on sign-off: "Donor rows go only to roles that may read donor data; an admin's
+  // dossier has everything else." Clinicians and LIS keys get none.
+  "dossiers:read": ["admin", "director", "scientist"],
   "intervals:read": ["admin", "director", "scientist", "clinician"],
   "scores:create": ["admin", "director", "scientist", "clinician"],
 };
@@ -75,8 +78,8 @@ describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
     expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/outbox", "/audit", "/account"]);
     // UX.md: Studies and Analytes for the scientist and the director only, Studies first;
-    // issue 8: Adoption checks right after Studies.
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/studies", "/adoption-checks", "/analytes", "/audit", "/account"]);
+    // issue 8: the director's Sign-off queue right after the overview, Adoption checks right after Studies.
+    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/signoff", "/studies", "/adoption-checks", "/analytes", "/audit", "/account"]);
     expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/adoption-checks", "/analytes", "/account"]);
     expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
   });

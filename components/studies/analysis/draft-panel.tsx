@@ -128,7 +128,7 @@ export function DraftPanel({ study: initial, analyte }: SectionProps) {
             <ul className="divide-y divide-ink-100 rounded-md border border-ink-200 text-sm" aria-label={`Draft versions of ${analyte.code} from other studies`}>
               {others.map((v) => (
                 <li key={v.id} className="px-3 py-1.5">
-                  Version {v.number} · {v.partitions.map((p) => `${versionPartitionLabel(p)} ${formatValue(p.low, v.decimals)} – ${formatValue(p.high, v.decimals)}`).join("; ")} ·
+                  <a href={`/versions/${v.id}`}>Version {v.number}</a> · {v.partitions.map((p) => `${versionPartitionLabel(p)} ${formatValue(p.low, v.decimals)} – ${formatValue(p.high, v.decimals)}`).join("; ")} ·
                   drafted {formatIsoDate(v.createdAt, true)}
                   {v.createdBy ? ` by ${v.createdBy.name}` : ""}
                 </li>
@@ -309,7 +309,12 @@ function VersionCard({ version: v, title, action, highlight = false }: { version
           {formatIsoDate(v.createdAt, true)}
           {v.createdBy ? ` by ${v.createdBy.name}` : ""}
         </p>
-        {action}
+        <div className="flex flex-wrap items-center gap-2">
+          <a href={`/versions/${v.id}`} className="text-sm font-medium" data-testid={`open-version-${v.number}`}>
+            Review and submit version {v.number}
+          </a>
+          {action}
+        </div>
       </div>
       <div className="overflow-x-auto">
         <table className={tableClass} aria-label={`${title}: partitions`}>

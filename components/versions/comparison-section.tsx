@@ -1,0 +1,62 @@
+import { StudySection } from "@/components/studies/study-section";
+import { SimpleTable } from "@/components/ui/simple-table";
+import type { ComparisonAnswer } from "@/lib/versions/comparison";
+import { limitsText } from "./numbers";
+
+const FLAG_WORDS: Record<string, string> = { L: "low", N: "normal", H: "high" };
+
+function transitionsText(transitions: { from: string | null; to: string; count: number }[]): string {
+  if (transitions.length === 0) return "none";
+  return transitions.map((t) => `${t.count} ${t.from ? FLAG_WORDS[t.from] : "no interval"} → ${FLAG_WORDS[t.to]}`).join(", ");
+}
+
+/** What the version changes against the one in force: limits side by side and donors whose flag would change. */
+export function ComparisonSection({ comparison, decimals, step }: { comparison: ComparisonAnswer<{ number: number }>; decimals: number; step: number }) {
+  const { inForce, donorFlagChanges: changes } = comparison;
+  const code = comparison.version.analyte.code;
+  const oldName = inForce ? `Version ${inForce.number}` : null;
+  const done = inForce
+    ? `Compared with version ${inForce.number} of ${code}, ${comparison.basis === "in_force" ? "in force now" : "the version in force before this one"}.`
+    : comparison.basis === "in_force"
+      ? `No version of ${code} is in force: this one would be the first.`
+      : `No version of ${code} was in force before this one.`;
+  const changedWords = inForce
+    ? `${changes.changed.toLocaleString("en")} of ${changes.total.toLocaleString("en")} donors in the study (without exclusions in effect) would be flagged differently under the new limits.`
+    : `${changes.total.toLocaleString("en")} donors in the study (without exclusions in effect) fall in its partitions; there is nothing to change from.`;
+  const byPartition = new Map(changes.byPartition.map((p) => [p.partition.label, p]));
+  return (
+    <StudySection id="changes" step={step} title="What changes" done={done} next={<span data-testid="flag-changes">{changedWords}</span>}>
+      <SimpleTable
+        caption={`Limits of this version beside ${oldName ?? "no version"}, and donor flag changes per partition`}
+        testId="comparison-table"
+        head={["Partition", oldName ? `${oldName} (${comparison.version.unit})` : "In force", `This version (${comparison.version.unit})`, "Donors", "Flag changes"]}
+        rows={comparison.partitions.map((p) => {
+          const c = byPartition.get(p.partition.label);
+          return [
+            p.partition.label,
+            p.old ? limitsText(p.old, decimals) : inForce ? "no partition of this scope" : "—",
+            <strong key="new">{limitsText(p.new, decimals)}</strong>,
+            (c?.total ?? 0).toLocaleString("en"),
+            inForce ? `${c?.changed ?? 0}: ${transitionsText(c?.transitions ?? [])}` : "—",
+          ];
+        })}
+      />
+      {comparison.removedPartitions.length > 0 ? (
+        <p className="text-sm text-ink-700" data-testid="removed-partitions">
+          Partitions of {oldName} that this version does not keep as such:{" "}
+          {comparison.removedPartitions.map((p) => `${p.partition.label} (${limitsText(p.old, decimals)})`).join("; ")}. Each donor is
+          compared with the partition of {oldName} that covers them.
+        </p>
+      ) : null}
+      {changes.notCovered > 0 ? (
+        <p className="text-sm text-signal-warn">
+          {changes.notCovered} donors fall in no partition of this version and are not counted.
+        </p>
+      ) : null}
+      <p className="text-xs text-ink-500">
+        Flags: low below the lower limit, high above the upper, normal within (limits inclusive). Donors are placed by sex and
+        age as scoring places a patient. Changes among recent patient scores are shown once scoring keeps its log.
+      </p>
+    </StudySection>
+  );
+}
