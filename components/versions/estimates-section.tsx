@@ -2,6 +2,7 @@ import { StudySection } from "@/components/studies/study-section";
 import { SimpleTable } from "@/components/ui/simple-table";
 import type { VersionReviewView as VersionReview } from "./types";
 import { scopeLabel } from "@/lib/versions/comparison";
+import { EstimateCharts } from "./estimate-charts";
 import { ciText, fixed, METHOD_WORDS } from "./numbers";
 
 const METHODS = ["nonparametric", "parametric", "robust"] as const;
@@ -42,10 +43,20 @@ export function EstimatesSection({ review, step }: { review: VersionReview; step
                 ];
               })}
             />
+            {review.study ? (
+              <EstimateCharts
+                studyId={review.study.id}
+                estimateId={estimate.id}
+                limits={{ lower: p.low, upper: p.high, lowerCi: p.lowCi, upperCi: p.highCi }}
+                method={`${(METHOD_WORDS[p.method] ?? p.method).toLowerCase()} (this version's)`}
+                unit={analyte.unit}
+                decimals={d}
+              />
+            ) : null}
           </div>
         );
       })}
-      <p className="text-xs text-ink-500">Values in {analyte.unit}. Charts of each estimate are on the study page.</p>
+      <p className="text-xs text-ink-500">Values in {analyte.unit}. The charts draw the limits of this version over the values each estimate was made from.</p>
     </StudySection>
   );
 }
