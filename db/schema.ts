@@ -635,6 +635,98 @@ export const adoptionChecks = pgTable(
   ],
 );
 
+/**
+ * A laboratory information system allowed to call the scoring API with a key. Only the key's
+ * SHA-256 and a short prefix (for recognition in lists and logs) are stored: the key itself is
+ * shown once, at creation. A 128-bit random secret needs no slow password hash.
+ */
+export const lisConnections = pgTable(
+  "lis_connections",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    name: text("name").notNull(),
+    contactEmail: text("contact_email").notNull(),
+    /** The key's first characters, e.g. "bwk_3f9a1c0d", shown beside the name. */
+    keyPrefix: text("key_prefix").notNull(),
+    /** Lower-case hex SHA-256 of the whole key. */
+    keySha256: text("key_sha256").notNull(),
+    /** Requests a minute this connection may make (all instances together). */
+    ratePerMinute: integer("rate_per_minute").notNull().default(6000),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    revokedBy: uuid("revoked_by").references(() => users.id, { onDelete: "restrict" }),
+    revokedAt: timestamp("revoked_at", { withTimezone: true }),
+    /** Written at most once a minute per key, from memory, not on every request. */
+    lastUsedAt: timestamp("last_used_at", { withTimezone: true }),
+  },
+  (t) => [
+    uniqueIndex("lis_connections_key_sha256_unique").on(t.keySha256),
+    uniqueIndex("lis_connections_key_prefix_unique").on(t.keyPrefix),
+    check("lis_connections_key_sha256_format", sql`${t.keySha256} ~ '^[0-9a-f]{64}$'`),
+    check("lis_connections_rate_range", sql`${t.ratePerMinute} BETWEEN 1 AND 10000000`),
+    check("lis_connections_revoked_pair", sql`${t.revokedBy} IS NULL OR ${t.revokedAt} IS NOT NULL`),
+  ],
+);
+
+/**
+ * The de-identified score log: one row per scored value, with no patient identifier (no name,
+ * no birth date, no record number; the value, the partition that applied and the caller only).
+ * It feeds the sign-off impact figures and the admins' usage view. Written in batches from
+ * memory (lib/score-service), so rows may arrive a moment after the score; no foreign keys, so
+ * that the batch COPY stays cheap; the ids point at analytes, versions and partitions that are
+ * never deleted once in force.
+ */
+export const scoreLog = pgTable(
+  "score_log",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    scoredAt: timestamp("scored_at", { withTimezone: true }).notNull(),
+    analyteId: uuid("analyte_id").notNull(),
+    versionId: uuid("version_id").notNull(),
+    partitionId: uuid("partition_id").notNull(),
+    /** The value in the version's unit (after any conversion), as scored. */
+    value: doublePrecision("value").notNull(),
+    /** "<" or ">" for a censored value. */
+    censored: text("censored"),
+    flag: text("flag").notNull(),
+    z: doublePrecision("z"),
+    percentile: doublePrecision("percentile"),
+    /** "user" or "lis", and the user's or LIS connection's id. */
+    callerKind: text("caller_kind").notNull(),
+    callerId: uuid("caller_id").notNull(),
+    /** "app" (the score page), "api" (POST /api/v1/scores) or "fhir". */
+    channel: text("channel").notNull(),
+  },
+  (t) => [
+    index("score_log_analyte_time_idx").on(t.analyteId, t.scoredAt),
+    index("score_log_caller_time_idx").on(t.callerId, t.scoredAt),
+    index("score_log_time_idx").on(t.scoredAt),
+    check("score_log_caller_kind", sql`${t.callerKind} IN ('user', 'lis')`),
+    check("score_log_channel", sql`${t.channel} IN ('app', 'api', 'fhir')`),
+    check("score_log_censored", sql`${t.censored} IS NULL OR ${t.censored} IN ('<', '>')`),
+  ],
+);
+
+/**
+ * Each app instance's count of requests per LIS connection in the current minute, written in the
+ * background (never on a request) so that instances behind one load balancer share one limit.
+ */
+export const rateLimitCounts = pgTable(
+  "rate_limit_counts",
+  {
+    connectionId: uuid("connection_id").notNull(),
+    windowStart: timestamp("window_start", { withTimezone: true }).notNull(),
+    instanceId: text("instance_id").notNull(),
+    count: integer("count").notNull(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    primaryKey({ columns: [t.connectionId, t.windowStart, t.instanceId] }),
+    index("rate_limit_counts_window_idx").on(t.windowStart),
+  ],
+);
+
 export const usersRelations = relations(users, ({ many }) => ({
   auditEvents: many(auditEvents),
 }));
@@ -662,3 +754,5 @@ export type Signature = typeof signatures.$inferSelect;
 export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
 export type OutboxMessage = typeof outbox.$inferSelect;
 export type AdoptionCheck = typeof adoptionChecks.$inferSelect;
+export type LisConnection = typeof lisConnections.$inferSelect;
+export type ScoreLogRow = typeof scoreLog.$inferSelect;

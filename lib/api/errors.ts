@@ -14,6 +14,7 @@ export const ERROR_STATUS = {
   invalid: 422,
   too_many_requests: 429,
   internal: 500,
+  unavailable: 503,
 } as const;
 
 export type ErrorCode = keyof typeof ERROR_STATUS;
@@ -29,6 +30,7 @@ const TITLES: Record<ErrorCode, string> = {
   invalid: "Invalid input",
   too_many_requests: "Too many requests",
   internal: "Internal error",
+  unavailable: "Service unavailable",
 };
 
 export class AppError extends Error {

@@ -1,6 +1,7 @@
 import { ZodError } from "zod";
 import { StatsInputError } from "@/lib/stats/validate";
 import { AppError } from "./errors";
+import { DATABASE_RETRY_AFTER_SECONDS, isDatabaseUnreachable } from "./unavailable";
 
 /** RFC 9457 problem details: the only error shape Bellwether's API answers with. */
 export interface Problem {
@@ -50,6 +51,16 @@ export function toProblem(err: unknown, instance?: string): Problem {
       instance,
     };
   }
+  if (isDatabaseUnreachable(err)) {
+    return {
+      type: "urn:bellwether:problem:unavailable",
+      title: "Service unavailable",
+      status: 503,
+      detail: `The database cannot be reached just now; nothing was changed. Try again in ${DATABASE_RETRY_AFTER_SECONDS} seconds.`,
+      instance,
+      retryAfter: DATABASE_RETRY_AFTER_SECONDS,
+    };
+  }
   console.error("Unhandled error", err);
   return {
     type: "urn:bellwether:problem:internal",
@@ -60,9 +71,12 @@ export function toProblem(err: unknown, instance?: string): Problem {
   };
 }
 
-export function problemResponse(problem: Problem, headers?: HeadersInit): Response {
-  return new Response(JSON.stringify(problem), {
-    status: problem.status,
-    headers: { "content-type": "application/problem+json", "cache-control": "no-store", ...headers },
-  });
+/**
+ * The problem as an HTTP response. A problem with a numeric `retryAfter` (429, 503) also gets the
+ * Retry-After header, in whole seconds.
+ */
+export function problemResponse(problem: Problem, headers?: Record<string, string>): Response {
+  const all: Record<string, string> = { "content-type": "application/problem+json", "cache-control": "no-store", ...headers };
+  if (typeof problem.retryAfter === "number") all["retry-after"] = String(Math.max(1, Math.ceil(problem.retryAfter)));
+  return new Response(JSON.stringify(problem), { status: problem.status, headers: all });
 }

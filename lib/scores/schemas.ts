@@ -1,0 +1,156 @@
+/**
+ * The scoring API's request and answer shapes (DESIGN.md "REST API", the scoring issue's item
+ * contract), as zod schemas: the route handlers parse with them and the OpenAPI document is
+ * generated from them, so the two cannot drift. Field names here are contracts with laboratory
+ * systems: add fields, never rename or drop one.
+ */
+import { z } from "zod";
+import { analyteCodeSchema } from "@/lib/analytes/input";
+
+/** Most items one request may carry; one more is refused whole with 413. */
+export const MAX_SCORE_ITEMS = 10_000;
+/** Room for 10,000 items with dates, units and references (about 250 bytes each), with margin. */
+export const MAX_SCORE_BODY_BYTES = 4 * 1024 * 1024;
+
+const isoDate = z.iso.date({ error: "must be a date as YYYY-MM-DD" });
+/** A date-time with its offset, or a plain date (taken as that day). */
+const isoDateOrDateTime = z.union([z.iso.datetime({ offset: true, error: "must be a date-time such as 2026-03-02T08:15:00Z" }), isoDate]);
+
+/**
+ * A patient value: a number, or a censored result as the instrument reports it ("<0.5", ">1000",
+ * also "< 0.5" or "<=0.5"), which is scored at the censoring point and flagged accordingly.
+ */
+export const scoreValueSchema = z.union([
+  z.number().refine(Number.isFinite, "value must be a finite number"),
+  z.string().trim().min(1).max(32),
+]);
+
+/** One item of POST /api/v1/scores. `analyte` (our code) or `loinc` names the analyte. */
+export const scoreItemSchema = z
+  .object({
+    analyte: analyteCodeSchema.optional().meta({ description: "Bellwether's analyte code, e.g. K", example: "K" }),
+    loinc: z
+      .string()
+      .regex(/^[0-9]{1,7}-[0-9]$/, "loinc must look like 2823-3")
+      .optional()
+      .meta({ description: "A LOINC code, instead of `analyte`", example: "2823-3" }),
+    value: scoreValueSchema.meta({ description: 'A number, or a censored result such as "<0.5"', example: 4.9 }),
+    unit: z
+      .string()
+      .min(1)
+      .max(64)
+      .optional()
+      .meta({ description: "UCUM unit of the value; converted to the interval's unit before scoring", example: "mmol/L" }),
+    sex: z.enum(["F", "M", "female", "male"]).optional().meta({ description: "Without it the combined partition is used, if the version has one" }),
+    ageYears: z.number().min(0).max(150).optional().meta({ description: "Age in years, may be fractional", example: 54 }),
+    birthDate: isoDate.optional().meta({ description: "With collectedAt, gives the exact age (wins over ageYears)", example: "1971-06-14" }),
+    collectedAt: isoDateOrDateTime.optional().meta({ description: "When the specimen was collected", example: "2026-03-02T08:15:00Z" }),
+    ref: z.string().max(64).optional().meta({ description: "The caller's own reference for the item, echoed in its result" }),
+  })
+  .refine((i) => i.analyte !== undefined || i.loinc !== undefined, { message: "give analyte (our code) or loinc", path: ["analyte"] })
+  .refine((i) => (i.birthDate === undefined) === (i.collectedAt === undefined), {
+    message: "birthDate and collectedAt go together",
+    path: ["birthDate"],
+  })
+  .meta({ id: "ScoreItem" });
+
+/**
+ * The request body as documented. The handler reads `items` as unknown[] and parses each item on
+ * its own, so that one bad item answers with an error in its place and does not fail the batch.
+ */
+export const scoreRequestSchema = z.object({ items: z.array(scoreItemSchema).min(1).max(MAX_SCORE_ITEMS) }).meta({ id: "ScoreRequest" });
+
+/** What the handler parses first: the envelope only. */
+export const scoreEnvelopeSchema = z.object({
+  items: z.array(z.unknown()).min(1, "send at least one item"),
+});
+
+export const flagSchema = z.enum(["LL", "L", "N", "H", "HH", "<", ">"]);
+
+export const partitionAppliesSchema = z
+  .object({
+    sex: z.enum(["F", "M"]).optional(),
+    /** Years, inclusive; from the stored days (days / 365.25, rounded to 2 decimals). */
+    ageFrom: z.number().optional(),
+    /** Years, exclusive. */
+    ageTo: z.number().optional(),
+    ageFromDays: z.number().int().optional(),
+    ageToDays: z.number().int().optional(),
+  })
+  .meta({ id: "PartitionApplies" });
+
+export const intervalSchema = z
+  .object({
+    low: z.number().nullable(),
+    high: z.number().nullable(),
+    unit: z.string(),
+    decimals: z.number().int(),
+    /** The version's number for its analyte. */
+    version: z.number().int(),
+    versionId: z.uuid(),
+    partitionId: z.uuid(),
+    effectiveFrom: z.string().nullable(),
+    reviewBy: z.string().nullable(),
+    method: z.string(),
+    n: z.number().int(),
+    criticalLow: z.number().nullable(),
+    criticalHigh: z.number().nullable(),
+    partition: partitionAppliesSchema,
+  })
+  .meta({ id: "Interval" });
+
+/** The model's kind and parameters; never reference values. */
+export const modelDescriptionSchema = z
+  .discriminatedUnion("kind", [
+    z.object({
+      kind: z.literal("gaussian"),
+      transform: z.enum(["none", "ln", "box-cox"]),
+      lambda: z.number().nullable(),
+      mean: z.number(),
+      sd: z.number(),
+    }),
+    z.object({ kind: z.literal("empirical"), n: z.number().int() }),
+    z.object({ kind: z.literal("zlog"), scale: z.enum(["log", "linear"]) }),
+    z.object({ kind: z.literal("limits") }),
+  ])
+  .meta({ id: "ScoringModelDescription" });
+
+export const scoreResultSchema = z
+  .object({
+    ref: z.string().optional(),
+    analyte: z.object({ code: z.string(), name: z.string(), loinc: z.string().nullable() }),
+    /** The value as scored, in the interval's unit (after any conversion). */
+    value: z.number(),
+    censored: z.enum(["<", ">"]).nullable(),
+    z: z.number().nullable(),
+    percentile: z.number().nullable(),
+    percentileBound: z.enum(["below", "above"]).optional(),
+    flag: flagSchema,
+    interval: intervalSchema,
+    model: modelDescriptionSchema,
+    hl7: z.object({ obx7: z.string(), obx8: z.string() }),
+    cautions: z.array(z.string()),
+    /** The age the partition was chosen by, in years, when one was given or computed. */
+    ageYearsUsed: z.number().nullable(),
+  })
+  .meta({ id: "ScoreResult" });
+
+export const itemErrorSchema = z
+  .object({
+    ref: z.string().optional(),
+    error: z.object({ type: z.string(), title: z.string(), detail: z.string() }),
+  })
+  .meta({ id: "ScoreItemError" });
+
+export const scoreResponseSchema = z
+  .object({
+    results: z.array(z.union([scoreResultSchema, itemErrorSchema])),
+    /** Each caution code in the results, explained once in a full sentence. */
+    cautionTexts: z.record(z.string(), z.string()),
+  })
+  .meta({ id: "ScoreResponse" });
+
+export type ScoreItem = z.infer<typeof scoreItemSchema>;
+export type ScoreResult = z.infer<typeof scoreResultSchema>;
+export type ScoreItemError = z.infer<typeof itemErrorSchema>;
+export type ScoreResponse = z.infer<typeof scoreResponseSchema>;
