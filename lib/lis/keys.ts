@@ -1,12 +1,12 @@
 import { createHash, randomBytes } from "node:crypto";
+import { LIS_KEY_PATTERN, LIS_KEY_PREFIX } from "./key-format";
 
 /**
  * LIS connection keys: "bwk_" and 43 base64url characters (32 random bytes, 256 bits). Only the
  * SHA-256 of the whole key is stored, with its first 12 characters for recognition. A slow
  * password hash is not needed for a random key this long, and would cost every request.
  */
-export const LIS_KEY_PREFIX = "bwk_";
-export const LIS_KEY_PATTERN = /^bwk_[A-Za-z0-9_-]{43}$/;
+export { LIS_KEY_PATTERN, LIS_KEY_PREFIX };
 /** How many characters of a key are kept and shown beside its connection's name. */
 export const LIS_KEY_PREFIX_LENGTH = 12;
 
