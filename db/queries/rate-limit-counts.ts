@@ -15,8 +15,10 @@ export interface InstanceCount {
 }
 
 /**
- * Writes this instance's counts for one window (its own absolute counts, so a repeated write
- * changes nothing) together with its heartbeat row, in one statement.
+ * Writes this instance's counts for one window together with its heartbeat row, in one
+ * statement. Each count is the instance's claim (lib/lis/rate-limit.ts): what it has admitted
+ * plus what it may admit before its next sync, an upper bound of its true count; absolute, so a
+ * repeated write changes nothing.
  */
 export async function recordRateLimitCounts(
   executor: Executor,
@@ -38,7 +40,7 @@ export async function recordRateLimitCounts(
 }
 
 /**
- * What the other instances counted in a window, summed per connection, and how many instances
+ * What the other instances claimed in a window, summed per connection, and how many instances
  * (this one included) wrote a row within the last `liveSeconds` by the database's clock.
  */
 export async function readRateLimitWindow(

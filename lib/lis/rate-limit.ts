@@ -3,35 +3,34 @@
  * a request.
  *
  * Each instance counts admitted requests per connection in fixed one-minute windows, in memory.
- * A background sync (every few hundred milliseconds) writes this instance's counts to
- * rate_limit_counts with a heartbeat row, and reads the other instances' counts for the window
- * and how many instances are alive. After each sync an instance may admit, until the next one,
- * only its share of what remains of the limit: (limit − all counts known) ÷ live instances. The
- * shares of all instances together never exceed what remained, so instances cannot overshoot
- * by more than what their stale views allow; an idle instance's share is simply not spent, and
- * what it leaves is shared out again at the next sync. Before its first sync an instance admits
- * at most a small fraction of the limit, and at a window's start, until it syncs, only
- * limit ÷ live instances.
+ * A background sync (every few hundred milliseconds) reads from rate_limit_counts what the other
+ * instances have claimed in the window and how many instances are alive (each writes a heartbeat
+ * row), takes as its budget until the next sync its share of what nobody has claimed,
+ * (limit − others' claims − own count) ÷ live instances, and writes its own claim: its count plus
+ * that budget, an upper bound of what it will have admitted by its next sync. The claims of all
+ * instances together never exceed the limit, even when several sync at the same moment (each
+ * takes only its share of what it saw unclaimed), so the combined rate stays within the limit;
+ * what an idle instance claimed but did not use is released at its next sync and shared out
+ * again. A connection not yet planned at a sync in the window (its first request here, or the
+ * first seconds of a window) gets only a small budget (5% of the limit ÷ live instances, at least
+ * one request), so all instances together overshoot by at most about 5% (for limits under about
+ * 20 requests a minute per instance, the "at least one" may weigh more).
  */
 
 export const WINDOW_MS = 60_000;
 
-export interface RateLimitSyncInput {
-  instanceId: string;
-  windowStart: Date;
-  /** This instance's own counts in the window (absolute, not increments). */
-  counts: { connectionId: string; count: number }[];
-}
-
-export interface RateLimitSyncResult {
-  /** The other instances' counts in the window, summed per connection. */
+export interface RateLimitView {
+  /** The other instances' claims in the window, summed per connection. */
   others: Map<string, number>;
   /** Instances alive now, this one included. */
   liveInstances: number;
 }
 
 export interface RateLimitStore {
-  sync(input: RateLimitSyncInput): Promise<RateLimitSyncResult>;
+  /** What the other instances claimed in the window, and how many instances are alive. */
+  read(input: { instanceId: string; windowStart: Date }): Promise<RateLimitView>;
+  /** Writes this instance's claims in the window (absolute, not increments) and its heartbeat. */
+  write(input: { instanceId: string; windowStart: Date; claims: { connectionId: string; count: number }[] }): Promise<void>;
   /** Removes the rows of windows that started before `before`. */
   deleteBefore(before: Date): Promise<void>;
 }
@@ -52,8 +51,11 @@ export interface RateLimiterOptions {
   syncIntervalMs?: number;
   /** Windows older than this many minutes are deleted in the background. */
   keepMinutes?: number;
-  /** Before the first sync: the fraction of a limit an instance may admit. */
-  startupFraction?: number;
+  /**
+   * What an instance may admit for a connection before a sync has planned it in the window (its
+   * first requests, or a window's start), as a fraction of the limit shared by live instances.
+   */
+  lazyFraction?: number;
   /** Called when a background sync fails (the database is away): counting goes on in memory. */
   onSyncError?: (err: unknown) => void;
 }
@@ -69,16 +71,16 @@ export class RateLimiter {
   private readonly now: () => number;
   private readonly syncIntervalMs: number;
   private readonly keepMinutes: number;
-  private readonly startupFraction: number;
+  private readonly lazyFraction: number;
   private readonly onSyncError: (err: unknown) => void;
 
   private windowStart = 0;
   private local = new Map<string, number>();
+  /** The other instances' claims at the last sync. */
   private others = new Map<string, number>();
   private limits = new Map<string, number>();
   private budgets = new Map<string, Budget>();
   private liveInstances = 1;
-  private synced = false;
   private timer: NodeJS.Timeout | null = null;
   private syncing: Promise<void> | null = null;
   private lastCleanup = 0;
@@ -89,7 +91,7 @@ export class RateLimiter {
     this.now = options.now ?? Date.now;
     this.syncIntervalMs = options.syncIntervalMs ?? 300;
     this.keepMinutes = options.keepMinutes ?? 5;
-    this.startupFraction = options.startupFraction ?? 0.05;
+    this.lazyFraction = options.lazyFraction ?? 0.05;
     this.onSyncError = options.onSyncError ?? (() => undefined);
   }
 
@@ -107,6 +109,7 @@ export class RateLimiter {
       this.budgets.set(connectionId, budget);
     }
     if (budget.left <= 0) {
+      // This instance's share is spent; what others claimed but leave unused comes back at the next sync.
       const untilSync = Math.ceil(this.syncIntervalMs / 1000);
       const untilWindowEnd = Math.ceil((this.windowStart + WINDOW_MS - now) / 1000);
       return { admitted: false, limit, retryAfterSeconds: Math.max(1, Math.min(untilSync, untilWindowEnd)) };
@@ -116,9 +119,15 @@ export class RateLimiter {
     return { admitted: true };
   }
 
+  /**
+   * The budget of a connection this instance has not planned for at a sync in this window (its
+   * first request here, or the window just turned): nobody else knows of it until the next sync,
+   * so it is kept to a small part of the limit (`lazyFraction` ÷ live instances, at least one
+   * request), which bounds what instances together can overshoot by.
+   */
   private shareOf(limit: number, used: number): number {
     const share = Math.floor(Math.max(0, limit - used) / this.liveInstances);
-    return this.synced ? share : Math.min(share, Math.max(1, Math.ceil(limit * this.startupFraction)));
+    return Math.min(share, Math.max(1, Math.floor((limit * this.lazyFraction) / this.liveInstances)));
   }
 
   private rollTo(windowStart: number): void {
@@ -130,8 +139,8 @@ export class RateLimiter {
   }
 
   /**
-   * Writes this instance's counts and reads the others', then shares out what remains. One at a
-   * time: a call while one runs waits for it.
+   * Reads the others' claims, takes this instance's share of what is unclaimed and writes its own
+   * claim. One at a time: a call while one runs waits for it.
    */
   sync(): Promise<void> {
     this.syncing ??= this.syncOnce().finally(() => {
@@ -144,17 +153,28 @@ export class RateLimiter {
     const now = this.now();
     this.rollTo(windowOf(now));
     const windowStart = this.windowStart;
-    const counts = [...this.local].map(([connectionId, count]) => ({ connectionId, count }));
-    const result = await this.store.sync({ instanceId: this.instanceId, windowStart: new Date(windowStart), counts });
+    const view = await this.store.read({ instanceId: this.instanceId, windowStart: new Date(windowStart) });
     // A window that turned during the round trip: what was read belongs to the old one.
     if (this.windowStart !== windowStart) return;
-    this.others = result.others;
-    this.liveInstances = Math.max(1, result.liveInstances);
-    this.synced = true;
-    this.budgets = new Map();
+    const liveInstances = Math.max(1, view.liveInstances);
+    const planned = new Map<string, { budget: number; localAtPlan: number }>();
+    const claims: { connectionId: string; count: number }[] = [];
     for (const [connectionId, limit] of this.limits) {
-      const used = (this.local.get(connectionId) ?? 0) + (this.others.get(connectionId) ?? 0);
-      this.budgets.set(connectionId, { left: this.shareOf(limit, used) });
+      const local = this.local.get(connectionId) ?? 0;
+      const unclaimed = limit - local - (view.others.get(connectionId) ?? 0);
+      const budget = Math.floor(Math.max(0, unclaimed) / liveInstances);
+      planned.set(connectionId, { budget, localAtPlan: local });
+      claims.push({ connectionId, count: local + budget });
+    }
+    await this.store.write({ instanceId: this.instanceId, windowStart: new Date(windowStart), claims });
+    if (this.windowStart !== windowStart) return;
+    this.others = view.others;
+    this.liveInstances = liveInstances;
+    this.budgets = new Map();
+    for (const [connectionId, { budget, localAtPlan }] of planned) {
+      // Requests admitted on the old budget while the claim was being written count against the new one.
+      const since = (this.local.get(connectionId) ?? 0) - localAtPlan;
+      this.budgets.set(connectionId, { left: Math.max(0, budget - since) });
     }
     if (now - this.lastCleanup > WINDOW_MS) {
       this.lastCleanup = now;

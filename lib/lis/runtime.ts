@@ -1,7 +1,7 @@
 import "server-only";
 import { randomBytes } from "node:crypto";
 import { hostname } from "node:os";
-import { db } from "@/db/client";
+import { db, type Executor } from "@/db/client";
 import { findKeyedConnectionByHash, listKeyedConnections, recordLisConnectionsUsed } from "@/db/queries/lis-connections";
 import { deleteRateLimitCountsBefore, readRateLimitWindow, recordRateLimitCounts } from "@/db/queries/rate-limit-counts";
 import { subscribe } from "@/db/listen";
@@ -15,15 +15,13 @@ const LIVE_SECONDS = 3;
 const LAST_USED_FLUSH_MS = 5000;
 const LAST_USED_EVERY_MS = 60_000;
 
-/** rate_limit_counts through this process's pool. */
-export function databaseRateLimitStore(): RateLimitStore {
+/** rate_limit_counts through a database handle (this process's pool by default). */
+export function databaseRateLimitStore(database: () => Executor = db): RateLimitStore {
   return {
-    async sync({ instanceId, windowStart, counts }) {
-      await recordRateLimitCounts(db(), { instanceId, windowStart, counts });
-      return readRateLimitWindow(db(), { instanceId, windowStart, liveSeconds: LIVE_SECONDS });
-    },
+    read: ({ instanceId, windowStart }) => readRateLimitWindow(database(), { instanceId, windowStart, liveSeconds: LIVE_SECONDS }),
+    write: ({ instanceId, windowStart, claims }) => recordRateLimitCounts(database(), { instanceId, windowStart, counts: claims }),
     async deleteBefore(before) {
-      await deleteRateLimitCountsBefore(db(), { before });
+      await deleteRateLimitCountsBefore(database(), { before });
     },
   };
 }
