@@ -6,6 +6,7 @@ import { testDatabase } from "../support/database";
 import { demoUser } from "../support/demo-users";
 import { BASE_URL } from "../support/http-session";
 import { createAnalyte, putInForce, uniqueCode, waitFor } from "../support/scores";
+import { demoLisKey } from "../support/lis";
 import { signInAll, type Cookies } from "../support/studies";
 import { startTcpProxy, type TcpProxy } from "../support/tcp-proxy";
 
@@ -125,8 +126,27 @@ describe("two instances on one database", () => {
 });
 
 describe("while the database is away from one instance", () => {
-  it("answers what needs the database 503 with Retry-After, and reloads everything when it returns", async () => {
+  it("scores for an LIS key from the cache, answers what needs the database 503, and reloads everything when it returns", async () => {
+    const before = await putInForce(pool, cookies, CODE, [partition(3.5, 5.1)]);
+    await bothServe(before);
+    // A value of our own, to find its log entry afterwards.
+    const value = 5.1 + Math.floor(Math.random() * 1e6) / 1e8;
     relay.down();
+
+    // An LIS key needs no database (keys and models are held in memory): scored from the cache.
+    const keyed = await fetch(`${SECOND_URL}/api/v1/scores`, {
+      method: "POST",
+      headers: { authorization: `Bearer ${demoLisKey()}`, "content-type": "application/json" },
+      body: JSON.stringify({ items: [{ analyte: CODE, value }] }),
+    });
+    const keyedBody = (await keyed.json()) as Doc;
+    expect(keyed.status, JSON.stringify(keyedBody)).toBe(200);
+    expect(keyedBody.results[0]).toMatchObject({ flag: "H", interval: { versionId: before } });
+    const keyedIntervals = await fetch(`${SECOND_URL}/api/v1/analytes/${CODE}/intervals`, { headers: { authorization: `Bearer ${demoLisKey()}` } });
+    expect(keyedIntervals.status).toBe(200);
+    expect(((await keyedIntervals.json()) as Doc).version.id).toBe(before);
+
+    // A session is read from the database: 503 with Retry-After.
     const refused = await score(SECOND_URL, 4.2);
     expect(refused.status).toBe(503);
     expect(refused.headers.get("retry-after")).toBe("5");
@@ -141,6 +161,12 @@ describe("while the database is away from one instance", () => {
     await bothServe(signedWhileAway);
     const body = (await (await score(SECOND_URL, 5.25)).json()) as Doc;
     expect(body.results[0]).toMatchObject({ flag: "H", interval: { low: 3.3, high: 5.2, versionId: signedWhileAway } });
+
+    // The entry kept while the database was away is written once it is back.
+    const logged = async () =>
+      (await pool.query("SELECT version_id, flag, caller_kind, channel FROM score_log WHERE analyte_id = (SELECT id FROM analytes WHERE code = $1) AND value = $2", [CODE, value])).rows;
+    await waitFor(async () => (await logged()).length === 1, 10_000, 200);
+    expect(await logged()).toEqual([{ version_id: before, flag: "H", caller_kind: "lis", channel: "api" }]);
   });
 });
 
