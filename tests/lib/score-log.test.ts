@@ -12,7 +12,13 @@ vi.mock("@/db/queries/score-log", () => ({
   copyScoreLogLines: async (_db: unknown, { chunks }: { chunks: Iterable<string> }) => {
     if (copy.down) throw Object.assign(new Error("connect ECONNREFUSED 127.0.0.1:5432"), { code: "ECONNREFUSED" });
     let n = 0;
-    for (const chunk of chunks) for (const line of chunk.split("\n")) if (line) (copy.lines.push(line), n++);
+    for (const chunk of chunks) {
+      for (const line of chunk.split("\n")) {
+        if (!line) continue;
+        copy.lines.push(line);
+        n++;
+      }
+    }
     return n;
   },
 }));
