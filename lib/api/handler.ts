@@ -4,7 +4,7 @@ import { currentSession } from "@/lib/auth/session";
 import { authorize, type Caller } from "@/lib/auth/authorize";
 import type { Permission } from "@/lib/auth/roles";
 import { AppError } from "./errors";
-import { problemResponse, toProblem } from "./problem";
+import { problemResponse, toProblem, type Problem } from "./problem";
 
 type RouteContext = { params: Promise<Record<string, string | string[] | undefined>> };
 
@@ -20,6 +20,11 @@ interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodT
    * and fields) into `form`; another content type is answered 415, a larger body 413.
    */
   multipart?: { maxBytes: number };
+  /**
+   * Answers an error in another shape than problem+json, from the same problem (status, detail,
+   * headers): the FHIR routes answer every error, auth included, as an OperationOutcome.
+   */
+  errorResponse?: (problem: Problem, headers: Record<string, string>) => Response;
 }
 
 interface RouteInput<P, Q, B> {
@@ -120,7 +125,7 @@ export function apiRoute<
       const problem = toProblem(err, url.pathname);
       const headers: Record<string, string> =
         problem.status === 401 ? { "www-authenticate": 'Bearer realm="bellwether"' } : {};
-      return problemResponse(problem, headers);
+      return (config.errorResponse ?? problemResponse)(problem, headers);
     }
   };
 }

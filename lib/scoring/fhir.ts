@@ -208,6 +208,8 @@ export function issueTypeOfStatus(status: number): IssueType {
       return "forbidden";
     case 404:
       return "not-found";
+    case 405:
+      return "not-supported";
     case 409:
       return "conflict";
     case 413:

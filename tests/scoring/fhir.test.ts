@@ -295,11 +295,12 @@ describe("OperationOutcome", () => {
   });
 
   it("maps HTTP statuses to the issue-type codes of FHIR R4's IssueType value set", () => {
-    expect([400, 401, 403, 404, 409, 413, 415, 422, 429, 500, 503].map(issueTypeOfStatus)).toEqual([
+    expect([400, 401, 403, 404, 405, 409, 413, 415, 422, 429, 500, 503].map(issueTypeOfStatus)).toEqual([
       "structure",
       "login",
       "forbidden",
       "not-found",
+      "not-supported",
       "conflict",
       "too-long",
       "not-supported",
