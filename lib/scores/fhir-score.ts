@@ -1,21 +1,23 @@
 import "server-only";
-import type { Observation } from "fhir/r4";
+import type { Observation, OperationOutcome } from "fhir/r4";
 import { ERROR_STATUS, type ErrorCode } from "@/lib/api/errors";
 import { fhirResponse } from "@/lib/api/fhir";
 import type { Principal } from "@/lib/auth/principal";
 import {
   batchResponseOf,
+  issueTypeOfStatus,
   operationOutcome,
   outcomeOfStatus,
   readScoreRequest,
   scoredObservation,
   scoreItemOfObservation,
   type EntryOutcome,
+  type IssueType,
   type ObservationScoreItem,
   type OutcomeIssueInput,
 } from "@/lib/scoring/fhir";
 import { MAX_SCORE_ITEMS, type ScoreResponse } from "./schemas";
-import { scoreItems } from "./score-items";
+import { SCORE_ITEM_ERRORS, scoreItems } from "./score-items";
 
 /** Room for 10,000 Observations with a contained Patient each (about 700 bytes), with margin. */
 export const MAX_FHIR_BODY_BYTES = 16 * 1024 * 1024;
@@ -28,11 +30,30 @@ function statusOfProblemType(type: string): number {
 
 type ScoreAnswer = ScoreResponse["results"][number];
 
+/** The score service's item errors in FHIR's terms: issue type, the element concerned, a hint. */
+const ITEM_ERROR_ISSUES: Record<string, { code: IssueType; expression?: string; hint?: string }> = {
+  [SCORE_ITEM_ERRORS.unknownAnalyte.type]: { code: "code-invalid", expression: "Observation.code" },
+  [SCORE_ITEM_ERRORS.noInterval.type]: { code: "processing", expression: "Observation.code" },
+  [SCORE_ITEM_ERRORS.noPartition.type]: {
+    code: "processing",
+    expression: "Observation.subject",
+    hint: "In FHIR, sex and age come from the contained Patient that subject refers to (gender, birthDate) with the Observation's effectiveDateTime.",
+  },
+  [SCORE_ITEM_ERRORS.unit.type]: { code: "value", expression: "Observation.valueQuantity.code" },
+};
+
+function itemErrorOutcome(error: { type: string; title: string; detail: string }): { status: number; outcome: OperationOutcome } {
+  const status = statusOfProblemType(error.type);
+  const known = ITEM_ERROR_ISSUES[error.type];
+  const diagnostics = `${error.title}: ${error.detail}${known?.hint ? ` ${known.hint}` : ""}`;
+  return {
+    status,
+    outcome: operationOutcome([{ code: known?.code ?? issueTypeOfStatus(status), diagnostics, expression: known?.expression ? [known.expression] : undefined }]),
+  };
+}
+
 function entryOutcomeOf(resource: Observation, answer: ScoreAnswer, cautionTexts: Record<string, string>): EntryOutcome {
-  if ("error" in answer) {
-    const status = statusOfProblemType(answer.error.type);
-    return { status, outcome: outcomeOfStatus(status, `${answer.error.title}: ${answer.error.detail}`) };
-  }
+  if ("error" in answer) return itemErrorOutcome(answer.error);
   return { status: 200, observation: scoredObservation(resource, answer, cautionTexts) };
 }
 
