@@ -13,7 +13,7 @@ const params = z.object({ code: z.string().trim().min(1).max(32) });
  * partition also as a FHIR R4 Observation.referenceRange element, and `referenceRange` beside them
  * the list an Observation would carry (FHIR reads several ranges as "or").
  */
-export const GET = apiRoute({ permission: "intervals:read", params }, async ({ params: { code } }) => {
+export const GET = apiRoute({ permission: "intervals:read", params, lisKey: true }, async ({ params: { code } }) => {
   const intervals = await inForceIntervals(code);
   if (!intervals) throw new AppError("not_found", `There is no analyte with the code ${code}.`);
   const partitions = intervals.partitions.map((p) => ({ ...p, referenceRange: referenceRangeOf({ ...p, decimals: intervals.analyte.decimals }) }));
