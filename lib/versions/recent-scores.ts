@@ -149,3 +149,42 @@ export interface RecentScoresAnswer extends Omit<RecentScoreChanges, "byPartitio
   byPartition: (Omit<RecentScoreChanges["byPartition"][number], "partition"> & { partition: WithLabel<PartitionScope> })[];
   unmappedPartitions: { partition: WithLabel<PartitionScope> | null; count: number }[];
 }
+
+/** Flags in words, for sentences about transitions. */
+export const FLAG_WORDS: Record<string, string> = {
+  LL: "critical low",
+  L: "low",
+  N: "normal",
+  H: "high",
+  HH: "critical high",
+  "<": "below the measuring range",
+  ">": "above the measuring range",
+};
+
+const count = (n: number, one: string, many: string) => `${n.toLocaleString("en")} ${n === 1 ? one : many}`;
+
+/** "20 normal → high, 3 low → normal", or "none" for no transition. */
+export function transitionsSentence(transitions: TransitionCounts): string {
+  const parts = Object.entries(transitions).map(([key, n]) => {
+    const [from, to] = key.split("→");
+    return `${n.toLocaleString("en")} ${FLAG_WORDS[from] ?? from} → ${FLAG_WORDS[to] ?? to}`;
+  });
+  return parts.length ? parts.join(", ") : "none";
+}
+
+/**
+ * The figures in plain sentences: "Of 412 scores in the last 90 days, 37 would change flag: …",
+ * then, when some were not re-flagged, how many and why.
+ */
+export function recentScoresSentences(recent: Pick<RecentScoreChanges, "days" | "total" | "changed" | "unmapped" | "transitions">): string[] {
+  if (recent.total === 0) return [`No patient scores were logged in the last ${recent.days} days: there is nothing to re-flag.`];
+  const changed =
+    recent.changed === 0
+      ? `Of ${count(recent.total, "score", "scores")} in the last ${recent.days} days, none would change flag.`
+      : `Of ${count(recent.total, "score", "scores")} in the last ${recent.days} days, ${recent.changed.toLocaleString("en")} would change flag: ${transitionsSentence(recent.transitions)}.`;
+  if (recent.unmapped === 0) return [changed];
+  return [
+    changed,
+    `${count(recent.unmapped, "score was", "scores were")} made in partitions that no single partition of this version covers and ${recent.unmapped === 1 ? "is" : "are"} not re-flagged.`,
+  ];
+}

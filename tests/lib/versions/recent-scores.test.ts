@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { containsScope, recentScoreChanges } from "@/lib/versions/recent-scores";
+import { containsScope, recentScoreChanges, recentScoresSentences } from "@/lib/versions/recent-scores";
 
 // Every expected count below is worked out by hand from the values beside it. The flag rule is
 // DESIGN.md's: L below the lower limit, H above the upper, N within (limits inclusive); LL/HH
@@ -108,5 +108,22 @@ describe("recentScoreChanges", () => {
       byPartition: [{ partition: everyone, total: 0, changed: 0, transitions: {} }],
       unmappedPartitions: [],
     });
+  });
+});
+
+describe("recentScoresSentences", () => {
+  it("says how many scores would change flag, and how, in words", () => {
+    expect(
+      recentScoresSentences({ days: 90, total: 412, changed: 37, unmapped: 0, transitions: { "L→N": 7, "N→H": 30 } }),
+    ).toEqual(["Of 412 scores in the last 90 days, 37 would change flag: 7 low → normal, 30 normal → high."]);
+  });
+  it("adds the unmapped scores, and says so when nothing changes or nothing was logged", () => {
+    expect(recentScoresSentences({ days: 90, total: 1200, changed: 0, unmapped: 1, transitions: {} })).toEqual([
+      "Of 1,200 scores in the last 90 days, none would change flag.",
+      "1 score was made in partitions that no single partition of this version covers and is not re-flagged.",
+    ]);
+    expect(recentScoresSentences({ days: 90, total: 0, changed: 0, unmapped: 0, transitions: {} })).toEqual([
+      "No patient scores were logged in the last 90 days: there is nothing to re-flag.",
+    ]);
   });
 });
