@@ -5,7 +5,9 @@
  * are) and once at full precision (every value distinct: the worst case, as after a unit
  * conversion). Prints figures, asserts nothing. Against a running, seeded demo database, as the
  * app's role:
- *   DATABASE_URL=postgres://… node --conditions react-server --import tsx scripts/bench-recent-scores.ts [--rows 1000000]
+ *   DATABASE_URL=postgres://… [BELLWETHER_MIGRATION_URL=postgres://owner…] \
+ *     node --conditions react-server --import tsx scripts/bench-recent-scores.ts [--rows 1000000]
+ * With the owner's URL it runs ANALYZE after writing, as autovacuum would soon after.
  * It logs against the demo's sodium (NA: version 1 in force, version 2 a draft) and deletes what
  * it wrote at the end.
  */
@@ -29,6 +31,8 @@ async function main() {
   const pool = new Pool({ connectionString: url, max: 2 });
   const database = drizzle(pool, { schema });
   const marker = randomUUID();
+  const owner = process.env.BELLWETHER_MIGRATION_URL ? new Pool({ connectionString: process.env.BELLWETHER_MIGRATION_URL, max: 1 }) : null;
+  if (!owner) console.log("BELLWETHER_MIGRATION_URL is not set: the statistics of score_log are left to autovacuum, and the first plans may be poor.");
   try {
     const [analyte] = await database.select().from(schema.analytes).where(eq(schema.analytes.code, "NA"));
     if (!analyte) throw new Error("The demo's NA is missing: seed the demo first.");
@@ -50,14 +54,15 @@ async function main() {
       const value = precision === "decimals" ? `round(v::numeric, ${analyte.decimals})::float8` : "v";
       await pool.query(
         `INSERT INTO score_log (scored_at, analyte_id, version_id, partition_id, value, flag, caller_kind, caller_id, channel)
-         SELECT at, $1, $2, $3, x, CASE WHEN x < $4 THEN 'L' WHEN x > $5 THEN 'H' ELSE 'N' END, 'lis', $6, 'api'
+         SELECT at, $1::uuid, $2::uuid, $3::uuid, x, CASE WHEN x < $4::float8 THEN 'L' WHEN x > $5::float8 THEN 'H' ELSE 'N' END, 'lis', $6::uuid, 'api'
          FROM (
            SELECT now() - make_interval(secs => (i % 100 + random()) * 86400) AS at, ${value} AS x
-           FROM (SELECT i, $4 + ($5 - $4) * (random() * 1.3 - 0.15) AS v FROM generate_series(1, $7::int) i) s
+           FROM (SELECT i, $4::float8 + ($5::float8 - $4::float8) * (random() * 1.3 - 0.15) AS v FROM generate_series(1, $7::int) i) s
          ) t`,
         [analyte.id, inForce.id, part.id, low, high, marker, Math.round(ROWS / 0.9)],
       );
-      await pool.query("ANALYZE score_log");
+      // The app's role may not ANALYZE; the owner may (autovacuum would, a little later).
+      if (owner) await owner.query("ANALYZE score_log");
       console.log(`${precision === "decimals" ? `values at ${analyte.decimals} decimals` : "values at full precision"}: wrote ${Math.round(ROWS / 0.9).toLocaleString("en")} log rows in ${((performance.now() - started) / 1000).toFixed(1)} s`);
 
       const version = await findIntervalVersion(database, { id: draft.id });
@@ -84,6 +89,7 @@ async function main() {
   } finally {
     await pool.query("DELETE FROM score_log WHERE caller_id = $1", [marker]).catch(() => undefined);
     await pool.end();
+    await owner?.end();
   }
 }
 

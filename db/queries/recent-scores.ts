@@ -1,8 +1,9 @@
 import "server-only";
-import { sql } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { PartitionScope } from "@/lib/versions/comparison";
 import type { LoggedScoreGroup } from "@/lib/versions/recent-scores";
 import type { Executor } from "../client";
+import { analytes } from "../schema";
 
 /**
  * The analyte's logged scores in [since, until), grouped by the partition they were made in,
@@ -10,11 +11,15 @@ import type { Executor } from "../client";
  * (null when the partition is unknown). One pass over the range of score_log_analyte_time_idx
  * (analyte, time), aggregated in PostgreSQL, so that a million logged scores reach the app as the
  * far fewer distinct (partition, value, flag) groups: laboratory values repeat at their decimals.
+ * The analyte's id is looked up first and passed as a value, so that the planner estimates its
+ * share of the log from the column's statistics rather than guessing for an unknown id.
  */
 export async function loggedScoreGroups(
   executor: Executor,
   { analyteCode, since, until }: { analyteCode: string; since: Date; until: Date },
 ): Promise<LoggedScoreGroup[]> {
+  const [analyte] = await executor.select({ id: analytes.id }).from(analytes).where(eq(analytes.code, analyteCode));
+  if (!analyte) return [];
   const result = await executor.execute<{
     sex: string | null;
     age_from_days: number | null;
@@ -25,11 +30,10 @@ export async function loggedScoreGroups(
     flag: string;
     n: number;
   }>(sql`
-    WITH analyte AS (SELECT id FROM analytes WHERE code = ${analyteCode}),
-    grouped AS (
+    WITH grouped AS (
       SELECT l.partition_id, l.value, l.censored, l.flag, count(*)::int AS n
       FROM score_log l
-      WHERE l.analyte_id = (SELECT id FROM analyte)
+      WHERE l.analyte_id = ${analyte.id}::uuid
         AND l.scored_at >= ${since.toISOString()}::timestamptz
         AND l.scored_at < ${until.toISOString()}::timestamptz
       GROUP BY l.partition_id, l.value, l.censored, l.flag
