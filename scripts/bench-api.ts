@@ -169,13 +169,11 @@ async function main(): Promise<void> {
   stopClustersUnder(dataRoot);
   fs.rmSync(dataRoot, { recursive: true, force: true });
   fs.mkdirSync(dataRoot, { recursive: true });
-  // The demo seed reads these: the demo LIS connection gets this run's key and a limit that is not the bottleneck.
-  process.env.BELLWETHER_DEMO_LIS_KEY = lisKey;
-  process.env.BELLWETHER_DEMO_LIS_RATE_PER_MINUTE = String(LIS_RATE_PER_MINUTE);
   database = await prepareDatabase({ dataRoot, pgPort, database: "bellwether_bench", fresh: true });
   lifetime.signal.throwIfAborted();
   await prepareSchema(database);
-  const seeded = await seedDemoIfEmpty(database.url);
+  // The demo LIS connection gets this run's key and a limit that is not the bottleneck.
+  const seeded = await seedDemoIfEmpty(database.url, { lis: { key: lisKey, ratePerMinute: LIS_RATE_PER_MINUTE } });
   say(`bellwether: seeded the demo laboratory (${seeded.seconds.toFixed(1)} s)`);
   await buildIfNeeded(lifetime.signal);
   lifetime.signal.throwIfAborted();
