@@ -154,3 +154,47 @@ export type ScoreItem = z.infer<typeof scoreItemSchema>;
 export type ScoreResult = z.infer<typeof scoreResultSchema>;
 export type ScoreItemError = z.infer<typeof itemErrorSchema>;
 export type ScoreResponse = z.infer<typeof scoreResponseSchema>;
+
+/** One in-force partition as GET /api/v1/analytes/{code}/intervals answers it. */
+export const intervalPartitionSchema = z
+  .object({
+    id: z.uuid(),
+    sex: z.enum(["F", "M"]).nullable().meta({ description: "null: both sexes" }),
+    /** Years, inclusive; null for no lower bound. */
+    ageFrom: z.number().nullable(),
+    /** Years, exclusive; null for no upper bound. */
+    ageTo: z.number().nullable(),
+    ageFromDays: z.number().int().nullable(),
+    ageToDays: z.number().int().nullable(),
+    low: z.number().nullable(),
+    high: z.number().nullable(),
+    lowCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the lower limit" }),
+    highCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the upper limit" }),
+    method: z.string(),
+    n: z.number().int(),
+    unit: z.string(),
+    hl7: z.object({ obx7: z.string() }),
+    referenceRange: z
+      .array(z.looseObject({}))
+      .optional()
+      .meta({ description: "The partition as FHIR R4 Observation.referenceRange elements" }),
+  })
+  .meta({ id: "IntervalPartition" });
+
+/** GET /api/v1/analytes/{code}/intervals: the analyte's in-force version and its partitions. */
+export const analyteIntervalsSchema = z
+  .object({
+    analyte: z.object({ code: z.string(), name: z.string(), loinc: z.string().nullable(), unit: z.string(), decimals: z.number().int() }),
+    version: z
+      .object({ id: z.uuid(), number: z.number().int(), effectiveFrom: z.string().nullable(), reviewBy: z.string().nullable() })
+      .nullable()
+      .meta({ description: "null when no version of the analyte is in force" }),
+    partitions: z.array(intervalPartitionSchema),
+    referenceRange: z
+      .array(z.looseObject({}))
+      .optional()
+      .meta({ description: "Every partition's FHIR R4 Observation.referenceRange elements" }),
+  })
+  .meta({ id: "AnalyteIntervals" });
+
+export type AnalyteIntervals = z.infer<typeof analyteIntervalsSchema>;
