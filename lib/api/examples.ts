@@ -19,7 +19,7 @@ export interface ApiExample {
 
 /** One potassium value of a 54-year-old woman. */
 export const scoreOneExample = {
-  items: [{ analyte: "K", value: 4.9, unit: "mmol/L", sex: "F", ageYears: 54, ref: "order-1001/K" }],
+  items: [{ analyte: "K", value: 4.9, unit: "mmol/L", sex: "F", ageYears: 54, ref: "1001/K" }],
 };
 
 /**
@@ -28,24 +28,24 @@ export const scoreOneExample = {
  */
 export const scoreBatchExample = {
   items: [
-    { analyte: "NA", value: 141, sex: "male", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "order-2002/NA" },
-    { analyte: "K", value: 5.6, sex: "male", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "order-2002/K" },
-    { analyte: "CREA", value: 1.3, unit: "mg/dL", sex: "male", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "order-2002/CREA" },
-    { loinc: "718-7", value: 151, unit: "g/L", sex: "male", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "order-2002/HGB" },
+    { analyte: "NA", value: 141, sex: "M", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "2002/NA" },
+    { analyte: "K", value: 5.6, sex: "M", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "2002/K" },
+    { analyte: "CREA", value: 1.3, unit: "mg/dL", sex: "M", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "2002/CREA" },
+    { loinc: "718-7", value: 151, unit: "g/L", sex: "M", birthDate: "1968-11-03", collectedAt: "2026-03-02T08:15:00Z", ref: "2002/HGB" },
   ],
 };
 
 /** A result the instrument reported below its measuring range, and one above. */
 export const scoreCensoredExample = {
   items: [
-    { analyte: "TSH", value: "<0.01", unit: "m[IU]/L", ageYears: 41, ref: "order-3003/TSH" },
-    { analyte: "ALT", value: ">1000", unit: "U/L", sex: "F", ageYears: 41, ref: "order-3003/ALT" },
+    { analyte: "TSH", value: "<0.01", unit: "m[IU]/L", ageYears: 41, ref: "3003/TSH" },
+    { analyte: "ALT", value: ">1000", unit: "U/L", sex: "F", ageYears: 41, ref: "3003/ALT" },
   ],
 };
 
 /** Glucose sent in mg/dL: converted to the interval's mmol/L with glucose's molar mass before scoring. */
 export const scoreUnitsExample = {
-  items: [{ analyte: "GLU", value: 99, unit: "mg/dL", ageYears: 35, ref: "order-4004/GLU" }],
+  items: [{ analyte: "GLU", value: 99, unit: "mg/dL", ageYears: 35, ref: "4004/GLU" }],
 };
 
 /** A FHIR R4 Observation: LOINC code, UCUM quantity, the patient's sex and birth date in a contained Patient. */
@@ -125,6 +125,31 @@ export function apiExample(id: string): ApiExample {
 }
 
 /**
+ * JSON for people to read: a value goes on one line when it fits in `width` characters with its
+ * indentation and key (`prefix` characters), otherwise its members go one per line. The text parses to the same value.
+ */
+export function readableJson(value: unknown, width = 156, indent = "", prefix = 0): string {
+  const flat = inlineJson(value);
+  if (value === null || typeof value !== "object" || indent.length + prefix + flat.length <= width) return flat;
+  const inner = `${indent}  `;
+  if (Array.isArray(value)) {
+    return `[\n${value.map((v) => `${inner}${readableJson(v, width, inner)}`).join(",\n")}\n${indent}]`;
+  }
+  const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined);
+  return `{\n${entries.map(([k, v]) => `${inner}${JSON.stringify(k)}: ${readableJson(v, width, inner, JSON.stringify(k).length + 2)}`).join(",\n")}\n${indent}}`;
+}
+
+/** JSON on one line with a space after each comma and colon between tokens (never inside strings). */
+function inlineJson(value: unknown): string {
+  if (Array.isArray(value)) return `[${value.map(inlineJson).join(", ")}]`;
+  if (value !== null && typeof value === "object") {
+    const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined);
+    return `{${entries.map(([k, v]) => `${JSON.stringify(k)}: ${inlineJson(v)}`).join(", ")}}`;
+  }
+  return JSON.stringify(value) ?? "null";
+}
+
+/**
  * The example as a curl command for a POSIX shell. The server and the key come from the shell's
  * environment ($BELLWETHER_URL, $BELLWETHER_KEY), so a copied command holds no secret.
  */
@@ -133,7 +158,7 @@ export function curlCommand(example: ApiExample): string {
   lines.push(`  -H "Authorization: Bearer $BELLWETHER_KEY"`);
   if (example.body !== undefined) {
     lines.push(`  -H "Content-Type: ${example.contentType ?? "application/json"}"`);
-    lines.push(`  --data-binary @- <<'JSON'\n${JSON.stringify(example.body, null, 2)}\nJSON`);
+    lines.push(`  --data-binary @- <<'JSON'\n${readableJson(example.body)}\nJSON`);
   }
   return lines.join(" \\\n");
 }

@@ -3,7 +3,7 @@ import { headers } from "next/headers";
 import type { ReactNode } from "react";
 import { CodeBlock } from "@/components/api-docs/code-block";
 import { PageHeader, Panel } from "@/components/ui/panel";
-import { apiExample, curlCommand, type ApiExample } from "@/lib/api/examples";
+import { apiExample, curlCommand, readableJson, type ApiExample } from "@/lib/api/examples";
 import { DATABASE_RETRY_AFTER_SECONDS } from "@/lib/api/unavailable";
 import { requirePageCaller } from "@/lib/auth/session";
 import { MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS } from "@/lib/scores/schemas";
@@ -193,11 +193,11 @@ export default async function ApiDocsPage() {
               Every error is <Code>application/problem+json</Code> (RFC 9457): <Code>type</Code>, <Code>title</Code>, <Code>status</Code>, and a{" "}
               <Code>detail</Code> that says what to do next; a 422 lists each field in <Code>errors</Code>.
             </p>
-            <CodeBlock label="A problem (401)" code={JSON.stringify(problemExample, null, 2)} />
+            <CodeBlock label="A problem (401)" code={readableJson(problemExample)} />
             <p>In a batch, one bad item does not fail the others: it gets an error in its place.</p>
-            <CodeBlock label="An item error in a batch's results" code={JSON.stringify(itemErrorExample, null, 2)} />
+            <CodeBlock label="An item error in a batch's results" code={readableJson(itemErrorExample)} />
             <p>The FHIR route answers every error, authentication included, as a FHIR OperationOutcome with the same HTTP status.</p>
-            <CodeBlock label="An OperationOutcome (401)" code={JSON.stringify(operationOutcomeExample, null, 2)} />
+            <CodeBlock label="An OperationOutcome (401)" code={readableJson(operationOutcomeExample)} />
             <div className="overflow-x-auto">
               <table className="w-full text-left text-sm">
                 <caption className="sr-only">HTTP statuses of the scoring API</caption>
