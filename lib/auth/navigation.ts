@@ -10,6 +10,7 @@ export interface NavItem {
 export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/", label: "Overview" },
   { href: "/admin/users", label: "Users", permission: "users:manage" },
+  { href: "/admin/lis-connections", label: "LIS connections", permission: "users:manage" },
   { href: "/admin/outbox", label: "Outbox", permission: "users:manage" },
   { href: "/signoff", label: "Sign-off queue", permission: "versions:sign" },
   { href: "/studies", label: "Studies", permission: "studies:write" },

@@ -76,7 +76,7 @@ describe("authorize", () => {
 
 describe("navigation", () => {
   it("shows each role only the sections it may use", () => {
-    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/outbox", "/audit", "/account"]);
+    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/lis-connections", "/admin/outbox", "/audit", "/account"]);
     // UX.md: Studies and Analytes for the scientist and the director only, Studies first;
     // issue 8: the director's Sign-off queue right after the overview, Adoption checks right after Studies.
     expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/signoff", "/studies", "/adoption-checks", "/analytes", "/audit", "/account"]);
