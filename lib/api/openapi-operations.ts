@@ -11,7 +11,9 @@ import { adoptionCheckIdParams, createAdoptionCheckBody, listAdoptionChecksQuery
 import { analyteCodeParams, createAnalyteBody, updateAnalyteBody } from "@/lib/analytes/input";
 import type { Permission } from "@/lib/auth/roles";
 import { outboxQuery } from "@/lib/mail/outbox-query";
-import { analyteIntervalsSchema, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
+import { createLisConnectionBody, lisConnectionParams, updateLisConnectionBody } from "@/lib/lis/input";
+import { MAX_FHIR_BODY_BYTES } from "@/lib/scores/fhir-score";
+import { analyteIntervalsSchema, intervalsParams, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
 import { lookupQuery, partitionQuery } from "@/lib/studies/chart-data";
 import { donorResultsQuery } from "@/lib/studies/donor-results-query";
 import { createEstimateBody, estimateIdParams } from "@/lib/studies/estimate-input";
@@ -32,7 +34,7 @@ import {
 } from "@/lib/versions/input";
 import { fhirObservationExample, scoreBatchExample, scoreCensoredExample, scoreOneExample, scoreUnitsExample } from "./examples";
 
-export type ErrorStatus = 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 429 | 503;
+export type ErrorStatus = 400 | 401 | 403 | 404 | 405 | 409 | 413 | 415 | 422 | 429 | 503;
 export type HttpMethod = "get" | "post" | "put" | "patch" | "delete";
 
 type ZodObjectSchema = z.ZodType<unknown, Record<string, unknown>>;
@@ -61,6 +63,8 @@ export interface ApiOperation {
   bodyExamples?: Record<string, { summary: string; value: unknown }>;
   /** A multipart/form-data body, documented by this schema. */
   multipart?: ZodObjectSchema;
+  /** An operation that only refuses (405): its answer is the refusal alone. */
+  notAllowed?: string;
   success: {
     status: 200 | 201;
     description: string;
@@ -112,20 +116,33 @@ const SCORES: ApiOperation[] = [
     operationId: "scoreFhirObservation",
     tag: "FHIR",
     summary: "Score FHIR R4 Observations",
-    description:
-      "Accepts an Observation or a Bundle of them (LOINC code, valueQuantity with a UCUM unit, a comparator `<`/`>` for a censored value, the subject's gender and birthDate in a contained Patient with the Observation's effectiveDateTime) and returns them with referenceRange and interpretation filled in, and the z-score and percentile as components. Every error, authentication included, is an OperationOutcome.",
+    description: `Accepts an Observation or a Bundle of them (LOINC code, valueQuantity with a UCUM unit, a comparator \`<\`/\`>\` for a censored value, the subject's gender and birthDate in a contained Patient with the Observation's effectiveDateTime) and returns them with referenceRange and interpretation filled in, and the z-score and percentile as components. Every error, authentication included, is an OperationOutcome. At most ${MAX_SCORE_ITEMS.toLocaleString("en")} Observations and ${MAX_FHIR_BODY_BYTES / 1024 / 1024} MiB per request.`,
     access: { permission: "scores:create", lisKey: true },
     body: fhirResource,
     bodyTypes: ["application/fhir+json", "application/json"],
     bodyExamples: { observation: { summary: "A potassium Observation", value: fhirObservationExample } },
     success: {
       status: 200,
-      description: "The Observation (or Bundle) with referenceRange, interpretation and components",
+      description:
+        "The Observation with referenceRange, interpretation and components; for a Bundle, a batch-response Bundle with each entry's status in order (an entry that could not be scored carries its OperationOutcome)",
       content: [{ type: "application/fhir+json", schema: fhirResource }],
     },
     fhirErrors: true,
     errors: [404],
   },
+  ...(["get", "put", "patch", "delete"] as const).map(
+    (method): ApiOperation => ({
+      method,
+      path: "/api/v1/fhir/Observation/$score",
+      operationId: `scoreFhirObservation${method[0].toUpperCase()}${method.slice(1)}NotAllowed`,
+      tag: "FHIR",
+      summary: "Not allowed: $score is run with POST",
+      access: "public",
+      notAllowed: "405 with an OperationOutcome saying to use POST, and an Allow: POST header",
+      success: { status: 200, description: "Never: this method is always refused" },
+      fhirErrors: true,
+    }),
+  ),
 ];
 
 const ANALYTES: ApiOperation[] = [
@@ -183,9 +200,10 @@ const ANALYTES: ApiOperation[] = [
     operationId: "getAnalyteIntervals",
     tag: "Analytes",
     summary: "The intervals in force for an analyte",
-    description: "The in-force version's partitions, each also as FHIR R4 Observation.referenceRange elements. `version` is null when nothing is in force.",
+    description:
+      "The in-force version's partitions, each also as a FHIR R4 Observation.referenceRange element, and `referenceRange` beside them: the list an Observation would carry. `version` is null when nothing is in force. The path takes our code or the analyte's LOINC code.",
     access: { permission: "intervals:read", lisKey: true },
-    params: analyteCodeParams,
+    params: intervalsParams,
     success: { status: 200, description: "The analyte, its version in force and its partitions", schema: analyteIntervalsSchema },
     errors: [404],
   },
@@ -734,6 +752,82 @@ const ADMINISTRATION: ApiOperation[] = [
   },
 ];
 
+
+const connectionFields =
+  "{id, name, contactEmail, keyPrefix, ratePerMinute, status: active|revoked, createdAt, createdBy: {id, name}, updatedAt, revokedAt, revokedBy, lastUsedAt}";
+const flagCounts = "{total, L, N, H, LL, HH}";
+
+const LIS_CONNECTIONS: ApiOperation[] = [
+  {
+    method: "get",
+    path: "/api/v1/lis-connections",
+    operationId: "listLisConnections",
+    tag: "Administration",
+    summary: "LIS connections, active ones first",
+    description: "Keys are never listed, only their first characters (`keyPrefix`).",
+    access: { permission: "users:manage" },
+    success: { status: 200, description: `\`{connections: [${connectionFields}]}\``, schema: described("{connections: [connection]}") },
+  },
+  {
+    method: "post",
+    path: "/api/v1/lis-connections",
+    operationId: "createLisConnection",
+    tag: "Administration",
+    summary: "Create an LIS connection and its key",
+    description: "The answer carries the key in `key`: this once, never again (only its SHA-256 is stored). The rate limit defaults to 6,000 requests a minute.",
+    access: { permission: "users:manage" },
+    body: createLisConnectionBody,
+    success: { status: 201, description: `The connection and its \`key\`: ${connectionFields.slice(0, -1)}, key}`, schema: described("The connection with its key"), headers: location },
+  },
+  {
+    method: "get",
+    path: "/api/v1/lis-connections/usage",
+    operationId: "getLisUsage",
+    tag: "Administration",
+    summary: "Scores logged per connection and analyte (24 h, 7 days)",
+    access: { permission: "users:manage" },
+    success: {
+      status: 200,
+      description: `\`{generatedAt, connections: [{id, name, keyPrefix, status, last24h: ${flagCounts}, last7d, analytes: [{code, name, last24h, last7d}]}]}\``,
+      schema: described("{generatedAt, connections}"),
+    },
+  },
+  {
+    method: "get",
+    path: "/api/v1/lis-connections/{id}",
+    operationId: "getLisConnection",
+    tag: "Administration",
+    summary: "One LIS connection",
+    access: { permission: "users:manage" },
+    params: lisConnectionParams,
+    success: { status: 200, description: connectionFields, schema: described("The connection") },
+    errors: [404],
+  },
+  {
+    method: "patch",
+    path: "/api/v1/lis-connections/{id}",
+    operationId: "updateLisConnection",
+    tag: "Administration",
+    summary: "Rename a connection, change its contact or rate limit",
+    access: { permission: "users:manage" },
+    params: lisConnectionParams,
+    body: updateLisConnectionBody,
+    success: { status: 200, description: connectionFields, schema: described("The connection") },
+    errors: [404, 409],
+  },
+  {
+    method: "post",
+    path: "/api/v1/lis-connections/{id}/revoke",
+    operationId: "revokeLisConnection",
+    tag: "Administration",
+    summary: "Revoke a connection's key for good",
+    access: { permission: "users:manage" },
+    params: lisConnectionParams,
+    success: { status: 200, description: "The revoked connection", schema: described("The connection") },
+    errors: [404, 409],
+  },
+];
+
 const ACCOUNT: ApiOperation[] = [
   {
     method: "get",
@@ -755,4 +849,4 @@ const ACCOUNT: ApiOperation[] = [
   },
 ];
 
-export const API_OPERATIONS: readonly ApiOperation[] = [...SCORES, ...ANALYTES, ...STUDIES, ...VERSIONS, ...ADOPTION, ...ADMINISTRATION, ...ACCOUNT];
+export const API_OPERATIONS: readonly ApiOperation[] = [...SCORES, ...ANALYTES, ...STUDIES, ...VERSIONS, ...ADOPTION, ...ADMINISTRATION, ...LIS_CONNECTIONS, ...ACCOUNT];

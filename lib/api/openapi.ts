@@ -50,6 +50,7 @@ const ERROR_DESCRIPTIONS: Record<ErrorStatus, { id: string; description: string 
   401: { id: "Unauthenticated", description: "No session and no key, or an unknown, malformed or revoked key." },
   403: { id: "Forbidden", description: "The caller's role (or an LIS key) may not do this, or a duty rule refuses it." },
   404: { id: "NotFound", description: "Nothing with that id or code." },
+  405: { id: "MethodNotAllowed", description: "The method is not served at this address; the Allow header names the one that is." },
   409: { id: "Conflict", description: "A state rule refuses the change (e.g. a closed study, a version that is not a draft)." },
   413: { id: "PayloadTooLarge", description: "The body is larger than the route accepts, or holds too many items." },
   415: { id: "UnsupportedMediaType", description: "The body is not of the content type the route reads." },
@@ -90,6 +91,7 @@ function rolesSentence(permission: Permission, lisKey: boolean): string {
 
 /** The error statuses an operation can answer: from its access and inputs, plus those it names. */
 export function errorStatusesOf(op: ApiOperation): ErrorStatus[] {
+  if (op.notAllowed) return [405];
   const statuses = new Set<ErrorStatus>(op.errors ?? []);
   if (op.access !== "public") {
     statuses.add(401);
@@ -106,26 +108,24 @@ export function errorStatusesOf(op: ApiOperation): ErrorStatus[] {
   return [...statuses].sort((a, b) => a - b);
 }
 
+function successResponse(op: ApiOperation): ZodOpenApiResponseObject {
+  const content = op.success.content ?? [{ type: "application/json", schema: op.success.schema ?? z.looseObject({}) }];
+  return {
+    description: op.success.description,
+    ...(op.success.headers ? { headers: op.success.headers } : {}),
+    content: Object.fromEntries(content.map((c) => [c.type, { schema: c.schema, ...(c.example !== undefined ? { example: c.example } : {}) }])),
+  };
+}
+
 function operationObject(op: ApiOperation): ZodOpenApiOperationObject {
   const access = op.access === "public" ? null : op.access;
   const isPublic = access === null;
   const lisKey = access?.lisKey === true;
-  const description = [op.description, access ? rolesSentence(access.permission, lisKey) : "No sign-in needed."]
+  const description = [op.description ?? op.notAllowed, op.notAllowed ? null : access ? rolesSentence(access.permission, lisKey) : "No sign-in needed."]
     .filter(Boolean)
     .join("\n\n");
 
-  const responses: ZodOpenApiOperationObject["responses"] = {
-    [String(op.success.status)]: {
-      description: op.success.description,
-      ...(op.success.headers ? { headers: op.success.headers } : {}),
-      content: Object.fromEntries(
-        (op.success.content ?? [{ type: "application/json", schema: op.success.schema ?? z.looseObject({}) }]).map((c) => [
-          c.type,
-          { schema: c.schema, ...(c.example !== undefined ? { example: c.example } : {}) },
-        ]),
-      ),
-    },
-  };
+  const responses: ZodOpenApiOperationObject["responses"] = op.notAllowed ? {} : { [String(op.success.status)]: successResponse(op) };
   for (const status of errorStatusesOf(op)) responses[String(status) as `4${string}`] = problemResponse(status, op.fhirErrors === true);
 
   const requestBody: ZodOpenApiOperationObject["requestBody"] = op.body

@@ -155,6 +155,23 @@ export type ScoreResult = z.infer<typeof scoreResultSchema>;
 export type ScoreItemError = z.infer<typeof itemErrorSchema>;
 export type ScoreResponse = z.infer<typeof scoreResponseSchema>;
 
+/** The path of GET /api/v1/analytes/{code}/intervals: our analyte code, or its LOINC code. */
+export const intervalsParams = z.object({
+  code: z.string().trim().min(1).max(32).meta({ description: "Our analyte code (e.g. K), or its LOINC code (e.g. 2823-3)", example: "K" }),
+});
+
+/** A FHIR R4 Observation.referenceRange element (lib/scoring/fhir.ts referenceRangeOf). */
+export const fhirReferenceRangeSchema = z
+  .looseObject({
+    low: z.looseObject({ value: z.number(), unit: z.string(), system: z.string(), code: z.string() }).optional(),
+    high: z.looseObject({ value: z.number(), unit: z.string(), system: z.string(), code: z.string() }).optional(),
+    type: z.looseObject({}).optional(),
+    appliesTo: z.array(z.looseObject({})).optional(),
+    age: z.looseObject({}).optional(),
+    text: z.string().optional(),
+  })
+  .meta({ id: "FhirReferenceRange", description: "FHIR R4 Observation.referenceRange" });
+
 /** One in-force partition as GET /api/v1/analytes/{code}/intervals answers it. */
 export const intervalPartitionSchema = z
   .object({
@@ -174,10 +191,7 @@ export const intervalPartitionSchema = z
     n: z.number().int(),
     unit: z.string(),
     hl7: z.object({ obx7: z.string() }),
-    referenceRange: z
-      .array(z.looseObject({}))
-      .optional()
-      .meta({ description: "The partition as FHIR R4 Observation.referenceRange elements" }),
+    referenceRange: fhirReferenceRangeSchema.optional().meta({ description: "The partition as a FHIR R4 Observation.referenceRange element" }),
   })
   .meta({ id: "IntervalPartition" });
 
@@ -191,9 +205,9 @@ export const analyteIntervalsSchema = z
       .meta({ description: "null when no version of the analyte is in force" }),
     partitions: z.array(intervalPartitionSchema),
     referenceRange: z
-      .array(z.looseObject({}))
+      .array(fhirReferenceRangeSchema)
       .optional()
-      .meta({ description: "Every partition's FHIR R4 Observation.referenceRange elements" }),
+      .meta({ description: "Every partition's referenceRange element: the list an Observation would carry" }),
   })
   .meta({ id: "AnalyteIntervals" });
 

@@ -13,7 +13,7 @@ const HTTP_METHODS = ["GET", "POST", "PUT", "PATCH", "DELETE", "HEAD", "OPTIONS"
  * Documented paths whose route files come from branches not merged yet. Each entry must have no
  * route file (checked below), so the list cannot outlive the merge that brings the route.
  */
-const AWAITING_MERGE = new Set<string>(["/api/v1/scores", "/api/v1/analytes/{code}/intervals", "/api/v1/fhir/Observation/$score"]);
+const AWAITING_MERGE = new Set<string>([]);
 
 interface RouteFile {
   file: string;
@@ -176,6 +176,7 @@ describe("the OpenAPI document", () => {
     for (const [p, item] of Object.entries(doc.paths)) {
       for (const [m, op] of Object.entries(item)) {
         const codes = Object.keys(op.responses);
+        if (codes.length === 1 && codes[0] === "405") continue;
         expect(codes.some((c) => c === "200" || c === "201"), `${m} ${p} has a success answer`).toBe(true);
         if (p !== "/api/v1/openapi.json") expect(codes, `${m} ${p}`).toEqual(expect.arrayContaining(["401", "403", "503"]));
         if (op.requestBody || op.parameters) expect(codes, `${m} ${p}`).toContain("422");
