@@ -292,3 +292,43 @@ describe("calling with an LIS key", () => {
     expect(problem.detail).toMatch(/^The LIS connection "Ward LIS low-limit \d+" may make 3 requests a minute and has used them; try again in \d+ seconds?\./);
   });
 });
+
+describe("GET /api/v1/lis-connections/usage", () => {
+  it("counts each connection's logged scores over 24 hours and 7 days, by flag and analyte", async () => {
+    const { id } = await createLisConnectionOverHttp(cookies.admin, newConnection("usage"));
+    const ids = Object.fromEntries((await pool.query("SELECT code, id FROM analytes WHERE code IN ('GLU', 'K')")).rows.map((r) => [r.code, r.id]));
+    const log = (code: string, flag: string, hoursAgo: number, callerKind = "lis", callerId = id) =>
+      pool.query(
+        `INSERT INTO score_log (scored_at, analyte_id, version_id, partition_id, value, flag, caller_kind, caller_id, channel)
+         VALUES (now() - make_interval(hours => $1), $2, gen_random_uuid(), gen_random_uuid(), 1, $3, $4, $5, 'api')`,
+        [hoursAgo, ids[code], flag, callerKind, callerId],
+      );
+    await log("GLU", "N", 1);
+    await log("GLU", "H", 23);
+    await log("GLU", "LL", 30);
+    await log("K", "L", 2);
+    await log("K", "N", 24 * 6);
+    // Left out: older than 7 days, and a person's score with the same id.
+    await log("K", "H", 24 * 8);
+    await log("GLU", "H", 1, "user");
+    const before = await counts();
+    const res = await send("GET", "/api/v1/lis-connections/usage", "admin");
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    const mine = body.connections.find((c: { id: string }) => c.id === id);
+    const c = (total: number, f: Partial<Record<"L" | "N" | "H" | "LL" | "HH", number>>) => ({ total, L: 0, N: 0, H: 0, LL: 0, HH: 0, ...f });
+    expect(mine).toEqual({
+      id,
+      name: expect.stringContaining("Ward LIS usage"),
+      keyPrefix: expect.stringMatching(/^bwk_/),
+      status: "active",
+      last24h: c(3, { N: 1, H: 1, L: 1 }),
+      last7d: c(5, { N: 2, H: 1, L: 1, LL: 1 }),
+      analytes: [
+        { code: "GLU", name: "Glucose", last24h: c(2, { N: 1, H: 1 }), last7d: c(3, { N: 1, H: 1, LL: 1 }) },
+        { code: "K", name: "Potassium", last24h: c(1, { L: 1 }), last7d: c(2, { L: 1, N: 1 }) },
+      ],
+    });
+    expect(await counts()).toEqual(before);
+  });
+});

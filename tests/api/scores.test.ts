@@ -201,6 +201,20 @@ describe("POST /api/v1/scores: items", () => {
     expect(r[12].error.detail).toBe("The analyte K has the LOINC code 2823-3, not 718-7: send one of the two, or both matching.");
   });
 
+  it("writes the answer as JSON.stringify would (the route assembles shared parts once)", async () => {
+    const res = await score([
+      { analyte: "K", value: "<2.0", ref: 'quote " and \\ backslash' },
+      { analyte: "GLU", value: 100, unit: "mg/dL", sex: "F", ageYears: 44.5 },
+      { analyte: "NOPE", value: 1 },
+      { analyte: BC, value: 12 },
+      { analyte: ALB, value: 24 },
+      { analyte: "HGB", value: 250, sex: "M", birthDate: "1971-06-14", collectedAt: "2026-03-02" },
+    ]);
+    const text = await res.text();
+    expect(text).toBe(JSON.stringify(JSON.parse(text)));
+    expect(res.headers.get("content-type")).toBe("application/json");
+  });
+
   it("converts units with UCUM and the analyte's molar mass (METHODS.md §13 row 16)", async () => {
     const body = await scored([
       { analyte: "GLU", value: 100, unit: "mg/dL" },

@@ -2,6 +2,7 @@ import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
 import type { Principal } from "@/lib/auth/principal";
 import { MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreEnvelopeSchema } from "@/lib/scores/schemas";
+import { scoreResponseJson } from "@/lib/scores/render";
 import { scoreItems } from "@/lib/scores/score-items";
 
 export const dynamic = "force-dynamic";
@@ -22,6 +23,7 @@ export const POST = apiRoute(
       );
     }
     const principal: Principal = { kind: "user", id: caller.id, role: caller.role };
-    return scoreItems({ items: body.items, principal, channel: principal.kind === "user" ? "app" : "api" });
+    const answer = await scoreItems({ items: body.items, principal, channel: principal.kind === "user" ? "app" : "api" });
+    return new Response(scoreResponseJson(answer), { headers: { "content-type": "application/json", "cache-control": "no-store" } });
   },
 );
