@@ -11,7 +11,7 @@ export const dynamic = "force-dynamic";
  * partition also as a FHIR R4 Observation.referenceRange element, and `referenceRange` beside them
  * the list an Observation would carry (FHIR reads several ranges as "or").
  */
-export const GET = apiRoute({ permission: "intervals:read", params }, async ({ params: { code } }) => {
+export const GET = apiRoute({ permission: "intervals:read", params, lisKey: true }, async ({ params: { code } }) => {
   const intervals = await inForceIntervals(code);
   if (!intervals) throw new AppError("not_found", `There is no analyte with the code ${code}.`);
   const partitions = intervals.partitions.map((p) => ({ ...p, referenceRange: referenceRangeOf({ ...p, decimals: intervals.analyte.decimals }) }));

@@ -10,9 +10,9 @@ export const dynamic = "force-dynamic";
  * referenceRange, interpretation and the z-score and percentile components out. Every error,
  * sign-in and role included, is an OperationOutcome (application/fhir+json).
  */
-export const POST = apiRoute({ permission: "scores:create", errorResponse: fhirErrorResponse }, async ({ caller, request }) => {
+export const POST = apiRoute({ permission: "scores:create", lisKey: true, errorResponse: fhirErrorResponse }, async ({ principal, request }) => {
   const body = await readFhirJson(request, MAX_FHIR_BODY_BYTES);
-  return scoreFhirBody({ body, principal: { kind: "user", id: caller.id, role: caller.role } });
+  return scoreFhirBody({ body, principal });
 });
 
 /** $score is an operation to POST to; anything else is told so in FHIR's terms. */
