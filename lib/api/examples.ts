@@ -162,3 +162,29 @@ export function curlCommand(example: ApiExample): string {
   }
   return lines.join(" \\\n");
 }
+
+/** A well-formed key that no connection holds: what a mistyped or deleted key looks like. */
+export const UNKNOWN_KEY_EXAMPLE = `bwk_${"0".repeat(43)}`;
+
+/** The API page's error examples: each with the request that gives it (sent by tests/api/api-examples.test.ts). */
+export const errorExamples = {
+  /** POST /api/v1/scores with UNKNOWN_KEY_EXAMPLE as the bearer key. */
+  unknownKey: {
+    type: "urn:bellwether:problem:unauthenticated",
+    title: "Sign-in required",
+    status: 401,
+    detail: "The API key was not recognised. Send the whole key as `Authorization: Bearer bwk_…`, or ask your Bellwether administrator for a new one.",
+    instance: "/api/v1/scores",
+  },
+  /** The request whose one item names an analyte Bellwether does not have. */
+  itemErrorRequest: { items: [{ analyte: "XYZ", value: 1.2, ref: "5005/XYZ" }] },
+  itemError: {
+    ref: "5005/XYZ",
+    error: { type: "urn:bellwether:problem:not_found", title: "Unknown analyte", detail: "There is no analyte with the code XYZ." },
+  },
+  /** POST /api/v1/fhir/Observation/$score without a key or a session. */
+  fhirUnauthenticated: {
+    resourceType: "OperationOutcome",
+    issue: [{ severity: "error", code: "login", diagnostics: "Sign in to continue." }],
+  },
+};

@@ -3,7 +3,7 @@ import { headers } from "next/headers";
 import type { ReactNode } from "react";
 import { CodeBlock } from "@/components/api-docs/code-block";
 import { PageHeader, Panel } from "@/components/ui/panel";
-import { apiExample, curlCommand, readableJson, type ApiExample } from "@/lib/api/examples";
+import { apiExample, curlCommand, errorExamples, readableJson, type ApiExample } from "@/lib/api/examples";
 import { DATABASE_RETRY_AFTER_SECONDS } from "@/lib/api/unavailable";
 import { requirePageCaller } from "@/lib/auth/session";
 import { MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS } from "@/lib/scores/schemas";
@@ -59,24 +59,6 @@ const ERRORS: [status: number, when: string][] = [
   [429, "The connection's rate limit is reached. Wait the Retry-After header's seconds."],
   [503, `The database cannot be reached. Nothing was changed; retry after Retry-After (${DATABASE_RETRY_AFTER_SECONDS} s).`],
 ];
-
-const problemExample = {
-  type: "urn:bellwether:problem:unauthenticated",
-  title: "Sign-in required",
-  status: 401,
-  detail: "The key is not known: check that it was copied whole, or ask an administrator for a new one.",
-  instance: "/api/v1/scores",
-};
-
-const itemErrorExample = {
-  ref: "order-5005/XYZ",
-  error: { type: "urn:bellwether:problem:not_found", title: "Unknown analyte", detail: "There is no analyte with the code XYZ." },
-};
-
-const operationOutcomeExample = {
-  resourceType: "OperationOutcome",
-  issue: [{ severity: "error", code: "login", diagnostics: "Send Authorization: Bearer <key> or sign in." }],
-};
 
 /** How an LIS (or any program) calls Bellwether: authentication, scoring, FHIR, intervals, errors and limits. */
 export default async function ApiDocsPage() {
@@ -193,11 +175,11 @@ export default async function ApiDocsPage() {
               Every error is <Code>application/problem+json</Code> (RFC 9457): <Code>type</Code>, <Code>title</Code>, <Code>status</Code>, and a{" "}
               <Code>detail</Code> that says what to do next; a 422 lists each field in <Code>errors</Code>.
             </p>
-            <CodeBlock label="A problem (401)" code={readableJson(problemExample)} />
+            <CodeBlock label="An unknown key (401, application/problem+json)" code={readableJson(errorExamples.unknownKey)} />
             <p>In a batch, one bad item does not fail the others: it gets an error in its place.</p>
-            <CodeBlock label="An item error in a batch's results" code={readableJson(itemErrorExample)} />
+            <CodeBlock label="An item error in a batch's results" code={readableJson(errorExamples.itemError)} />
             <p>The FHIR route answers every error, authentication included, as a FHIR OperationOutcome with the same HTTP status.</p>
-            <CodeBlock label="An OperationOutcome (401)" code={readableJson(operationOutcomeExample)} />
+            <CodeBlock label="FHIR without a key (401, OperationOutcome)" code={readableJson(errorExamples.fhirUnauthenticated)} />
             <div className="overflow-x-auto">
               <table className="w-full text-left text-sm">
                 <caption className="sr-only">HTTP statuses of the scoring API</caption>
