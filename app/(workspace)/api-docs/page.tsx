@@ -1,17 +1,18 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { headers } from "next/headers";
 import type { ReactNode } from "react";
 import { CodeBlock } from "@/components/api-docs/code-block";
 import { PageHeader, Panel } from "@/components/ui/panel";
 import { apiExample, curlCommand, errorExamples, readableJson, type ApiExample } from "@/lib/api/examples";
 import { DATABASE_RETRY_AFTER_SECONDS } from "@/lib/api/unavailable";
+import { can } from "@/lib/auth/roles";
 import { requirePageCaller } from "@/lib/auth/session";
+import { DEFAULT_RATE_PER_MINUTE } from "@/lib/lis/input";
+import { MAX_FHIR_BODY_BYTES } from "@/lib/scores/fhir-score";
 import { MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS } from "@/lib/scores/schemas";
 
 export const metadata: Metadata = { title: "API" };
-
-/** The default rate of a new LIS connection (lis_connections.rate_per_minute's default). */
-const DEFAULT_RATE_PER_MINUTE = 6000;
 
 const SECTIONS = [
   ["authenticate", "Authenticate"],
@@ -62,7 +63,7 @@ const ERRORS: [status: number, when: string][] = [
 
 /** How an LIS (or any program) calls Bellwether: authentication, scoring, FHIR, intervals, errors and limits. */
 export default async function ApiDocsPage() {
-  await requirePageCaller();
+  const caller = await requirePageCaller();
   const requestHeaders = await headers();
   const host = requestHeaders.get("host") ?? "localhost:3000";
   const proto = requestHeaders.get("x-forwarded-proto")?.split(",")[0]?.trim() ?? "http";
@@ -94,8 +95,9 @@ export default async function ApiDocsPage() {
           <Section id="authenticate" title="Authenticate">
             <p>
               A laboratory system sends its LIS connection&apos;s key as a bearer token: <Code>Authorization: Bearer bwk_…</Code>. An
-              administrator creates the connection under LIS connections; the key is shown once, then only its first characters. Keep it
-              where the system keeps its other secrets.
+              administrator creates the connection under{" "}
+              {can(caller.role, "users:manage") ? <Link href="/admin/lis-connections">LIS connections</Link> : "LIS connections"}; the key is
+              shown once, then only its first characters. Keep it where the system keeps its other secrets.
             </p>
             <p>
               A key may score values, read the analytes and read the intervals in force; anything else answers 403. An unknown, malformed or
@@ -154,7 +156,8 @@ export default async function ApiDocsPage() {
           <Section id="fhir" title="FHIR R4">
             <Example example={apiExample("fhir-score")} />
             <p>
-              A Bundle of Observations comes back as a Bundle, in order. The Observation needs a LOINC code, a <Code>valueQuantity</Code> with
+              A Bundle of Observations comes back as a batch-response Bundle, each entry with its own status, in order; an Observation that
+              cannot be scored carries its OperationOutcome in its entry. The Observation needs a LOINC code, a <Code>valueQuantity</Code> with
               a UCUM unit (a <Code>comparator</Code> of <Code>&lt;</Code> or <Code>&gt;</Code> marks a censored value), and, for a partition by
               sex or age, a contained Patient with <Code>gender</Code> and <Code>birthDate</Code> and the Observation&apos;s{" "}
               <Code>effectiveDateTime</Code>.
@@ -209,7 +212,8 @@ export default async function ApiDocsPage() {
               </li>
               <li>
                 A body of at most {MAX_SCORE_BODY_BYTES / 1024 / 1024} MiB ({MAX_SCORE_BODY_BYTES.toLocaleString("en")} bytes), room for{" "}
-                {MAX_SCORE_ITEMS.toLocaleString("en")} items with dates, units and references.
+                {MAX_SCORE_ITEMS.toLocaleString("en")} items with dates, units and references; on the FHIR route{" "}
+                {MAX_FHIR_BODY_BYTES / 1024 / 1024} MiB, for as many Observations with their contained Patients.
               </li>
               <li>
                 A rate limit per LIS connection, set by the administrator ({DEFAULT_RATE_PER_MINUTE.toLocaleString("en")} requests a minute
