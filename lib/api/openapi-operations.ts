@@ -12,8 +12,7 @@ import { analyteCodeParams, createAnalyteBody, updateAnalyteBody } from "@/lib/a
 import type { Permission } from "@/lib/auth/roles";
 import { outboxQuery } from "@/lib/mail/outbox-query";
 import { createLisConnectionBody, lisConnectionParams, updateLisConnectionBody } from "@/lib/lis/input";
-import { MAX_FHIR_BODY_BYTES } from "@/lib/scores/fhir-score";
-import { analyteIntervalsSchema, intervalsParams, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
+import { analyteIntervalsSchema, intervalsParams, MAX_FHIR_BODY_BYTES, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
 import { lookupQuery, partitionQuery } from "@/lib/studies/chart-data";
 import { donorResultsQuery } from "@/lib/studies/donor-results-query";
 import { createEstimateBody, estimateIdParams } from "@/lib/studies/estimate-input";

@@ -11,6 +11,8 @@ import { analyteCodeSchema } from "@/lib/analytes/input";
 export const MAX_SCORE_ITEMS = 10_000;
 /** Room for 10,000 items with dates, units and references (about 250 bytes each), with margin. */
 export const MAX_SCORE_BODY_BYTES = 4 * 1024 * 1024;
+/** POST /api/v1/fhir/Observation/$score: room for 10,000 Observations with a contained Patient each (about 700 bytes), with margin. */
+export const MAX_FHIR_BODY_BYTES = 16 * 1024 * 1024;
 
 const isoDate = z.iso.date({ error: "must be a date as YYYY-MM-DD" });
 /** A date-time with its offset, or a plain date (taken as that day). */

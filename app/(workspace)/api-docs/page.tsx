@@ -9,8 +9,7 @@ import { DATABASE_RETRY_AFTER_SECONDS } from "@/lib/api/unavailable";
 import { can } from "@/lib/auth/roles";
 import { requirePageCaller } from "@/lib/auth/session";
 import { DEFAULT_RATE_PER_MINUTE } from "@/lib/lis/input";
-import { MAX_FHIR_BODY_BYTES } from "@/lib/scores/fhir-score";
-import { MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS } from "@/lib/scores/schemas";
+import { MAX_FHIR_BODY_BYTES, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS } from "@/lib/scores/schemas";
 
 export const metadata: Metadata = { title: "API" };
 
