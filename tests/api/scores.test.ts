@@ -4,6 +4,7 @@ import type { Role } from "@/db/schema";
 import { testDatabase } from "../support/database";
 import { demoUser } from "../support/demo-users";
 import { BASE_URL } from "../support/http-session";
+import { demoLisKey, fetchWithKey } from "../support/lis";
 import { createAnalyte, putInForce, uniqueCode, waitFor } from "../support/scores";
 import { signInAll, tableCounts, type Cookies } from "../support/studies";
 
@@ -81,6 +82,18 @@ describe("POST /api/v1/scores: who may score", () => {
       expect(res.status).toBe(MAY_SCORE[role] ? 200 : 403);
     });
   }
+
+  it("lets an LIS key score (DESIGN.md: LIS keys may score), logged as the connection on the api channel", async () => {
+    const res = await fetchWithKey(demoLisKey(), "/api/v1/scores", { method: "POST", body: { items: [{ analyte: ALB, value: 44.4 }] } });
+    const body = await res.json();
+    expect(res.status, JSON.stringify(body)).toBe(200);
+    expect(body.results[0]).toMatchObject({ value: 44.4, flag: "N" });
+    const connection = (await pool.query("SELECT id FROM lis_connections WHERE key_sha256 = encode(sha256(convert_to($1, 'UTF8')), 'hex')", [demoLisKey()])).rows[0].id;
+    const partitionId = body.results[0].interval.partitionId;
+    const logged = async () => (await pool.query("SELECT caller_kind, caller_id, channel FROM score_log WHERE partition_id = $1 AND value = 44.4", [partitionId])).rows;
+    await waitFor(async () => (await logged()).length === 1, 5000, 200);
+    expect(await logged()).toEqual([{ caller_kind: "lis", caller_id: connection, channel: "api" }]);
+  });
 
   it("answers an anonymous caller 401 and logs nothing", async () => {
     const before = await settledLogCount();
@@ -343,8 +356,11 @@ describe("GET /api/v1/analytes/{code}/intervals", () => {
     });
   }
 
-  it("answers an anonymous caller 401", async () => {
+  it("answers an anonymous caller 401, and an LIS key 200 (DESIGN.md: LIS keys read in-force intervals)", async () => {
     expect((await problem(await intervals("K", null))).status).toBe(401);
+    const res = await fetchWithKey(demoLisKey(), "/api/v1/analytes/K/intervals");
+    expect(res.status).toBe(200);
+    expect((await res.json()).analyte.code).toBe("K");
   });
 
   it("gives the analyte, its version in force and the partitions, as stored", async () => {
