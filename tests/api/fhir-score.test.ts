@@ -11,6 +11,8 @@ import { changePassword, createUser, findUserByEmail } from "@/db/queries/users"
 import { testDatabase, uniqueEmail } from "../support/database";
 import { demoUser } from "../support/demo-users";
 import { BASE_URL, signInOverHttp } from "../support/http-session";
+import { createLisConnectionOverHttp, demoLisKey } from "../support/lis";
+import { createAnalyte, putInForce, uniqueCode } from "../support/scores";
 
 const { database, pool } = testDatabase();
 afterAll(() => pool.end());
@@ -26,9 +28,13 @@ beforeAll(async () => {
   for (const role of ROLES) cookies[role] = await signInOverHttp(demoUser(role).email, demoUser(role).password);
 });
 
-function post(body: string | undefined, { cookie, type = "application/fhir+json", path = PATH }: { cookie?: string; type?: string | null; path?: string } = {}) {
+function post(
+  body: string | undefined,
+  { cookie, key, type = "application/fhir+json", path = PATH }: { cookie?: string; key?: string; type?: string | null; path?: string } = {},
+) {
   const headers: Record<string, string> = {};
   if (cookie) headers.cookie = cookie;
+  if (key) headers.authorization = `Bearer ${key}`;
   if (type) headers["content-type"] = type;
   return fetch(`${BASE_URL}${path}`, { method: "POST", headers, body });
 }
@@ -48,8 +54,9 @@ function potassium(value = 4.2, extra: Record<string, unknown> = {}): Record<str
   };
 }
 
+/** Rows the FHIR route logged (other channels may still be flushing other files' scores). */
 async function scoreLogCount(): Promise<number> {
-  const [{ n }] = (await pool.query("SELECT count(*)::int AS n FROM score_log")).rows;
+  const [{ n }] = (await pool.query("SELECT count(*)::int AS n FROM score_log WHERE channel = 'fhir'")).rows;
   return n;
 }
 
@@ -318,7 +325,10 @@ describe("scoring an Observation", () => {
   });
 
   it("reads a comparator as a censored value and gives the bound with the Quantity comparator", async () => {
-    const res = await post(JSON.stringify(potassium(1, { valueQuantity: { value: 1, comparator: "<", unit: "mmol/L", system: UCUM, code: "mmol/L" } })), {
+    // "<low": the true value is below the low limit, so L (lib/scoring's flagCensored; the demo's
+    // critical low of 2.8 mmol/L lies below the interval, so LL is not reached).
+    const [k] = await inForce("K");
+    const res = await post(JSON.stringify(potassium(k.low!, { valueQuantity: { value: k.low, comparator: "<", unit: "mmol/L", system: UCUM, code: "mmol/L" } })), {
       cookie: cookies.clinician,
     });
     expect(res.status).toBe(200);
@@ -424,7 +434,7 @@ describe("scoring a Bundle", () => {
         { fullUrl: "urn:uuid:0d4c9e0e-0000-4000-8000-000000000002", resource: potassium(4.2, { valueQuantity: undefined }) },
         { resource: potassium(4, { code: { coding: [{ system: "http://loinc.org", code: "99999-9" }] } }) },
         { resource: { resourceType: "Patient" } },
-        { resource: potassium(9) },
+        { resource: potassium(5.6) },
       ],
     };
     const res = await post(JSON.stringify(bundle), { cookie: cookies.clinician });
@@ -461,18 +471,22 @@ describe("scoring a Bundle", () => {
   });
 
   it("logs the scores with the channel fhir", async () => {
-    const before = (await pool.query("SELECT count(*)::int AS n FROM score_log WHERE channel = 'fhir'")).rows[0].n;
-    const res = await post(JSON.stringify({ resourceType: "Bundle", type: "batch", entry: [{ resource: potassium(4.1) }, { resource: potassium(4.3) }] }), {
+    // Two values no other test sends, so that their rows can be counted alone.
+    const values = [4.0 + Math.random() / 1000, 4.2 + Math.random() / 1000];
+    const count = async () =>
+      (await pool.query("SELECT count(*)::int AS n FROM score_log WHERE channel = 'fhir' AND caller_kind = 'user' AND value = ANY($1::float8[])", [values])).rows[0].n;
+    expect(await count()).toBe(0);
+    const res = await post(JSON.stringify({ resourceType: "Bundle", type: "batch", entry: values.map((v) => ({ resource: potassium(v) })) }), {
       cookie: cookies.clinician,
     });
     expect(res.status).toBe(200);
     // The log is written in the background (every second): wait for it, without timing it.
-    let after = before;
-    for (let i = 0; i < 50 && after < before + 2; i++) {
+    let n = 0;
+    for (let i = 0; i < 50 && n < 2; i++) {
       await new Promise((resolve) => setTimeout(resolve, 200));
-      after = (await pool.query("SELECT count(*)::int AS n FROM score_log WHERE channel = 'fhir'")).rows[0].n;
+      n = await count();
     }
-    expect(after).toBe(before + 2);
+    expect(n).toBe(2);
   });
 });
 
@@ -497,5 +511,136 @@ describe("GET /api/v1/analytes/{code}/intervals", () => {
     const body: Json = await res.json();
     expect(body.version).toBeNull();
     expect(body.referenceRange).toEqual([]);
+  });
+});
+
+describe("LIS keys", () => {
+  it("scores with the demo connection's key, logged as the LIS on the fhir channel", async () => {
+    const value = 4.4 + Math.random() / 1000;
+    const res = await post(JSON.stringify(potassium(value)), { key: demoLisKey() });
+    expect(res.status).toBe(200);
+    expect(res.headers.get("content-type")).toBe(FHIR_JSON);
+    expect((await res.json()).interpretation[0].coding[0].code).toBe("N");
+    const count = async () => (await pool.query("SELECT count(*)::int AS n FROM score_log WHERE channel = 'fhir' AND caller_kind = 'lis' AND value = $1", [value])).rows[0].n;
+    let n = 0;
+    for (let i = 0; i < 50 && n < 1; i++) {
+      await new Promise((resolve) => setTimeout(resolve, 200));
+      n = await count();
+    }
+    expect(n).toBe(1);
+  });
+
+  it("reads the intervals with their referenceRange with a key", async () => {
+    const res = await fetch(`${BASE_URL}/api/v1/analytes/K/intervals`, { headers: { authorization: `Bearer ${demoLisKey()}` } });
+    expect(res.status).toBe(200);
+    const body: Json = await res.json();
+    expectReferenceRange(body.referenceRange[0], (await inForce("K"))[0]);
+  });
+
+  it("answers a forged key 401 and a revoked key 401 as OperationOutcomes", async () => {
+    const forged = `bwk_${"A".repeat(43)}`;
+    const unknown = await post(JSON.stringify(potassium()), { key: forged });
+    expect(unknown.headers.get("www-authenticate")).toBe('Bearer realm="bellwether"');
+    await expectOutcome(
+      unknown,
+      401,
+      "login",
+      "The API key was not recognised. Send the whole key as `Authorization: Bearer bwk_…`, or ask your Bellwether administrator for a new one.",
+    );
+    const { id, key } = await createLisConnectionOverHttp(cookies.admin, { name: `FHIR revoked ${uniqueCode("R")}`, contactEmail: uniqueEmail("fhir-lis") });
+    expect((await post(JSON.stringify(potassium()), { key })).status).toBe(200);
+    const revoke = await fetch(`${BASE_URL}/api/v1/lis-connections/${id}/revoke`, { method: "POST", headers: { cookie: cookies.admin } });
+    expect(revoke.status).toBe(200);
+    // Revocation reaches the key store through a notification: wait for it to take effect.
+    let res = await post(JSON.stringify(potassium()), { key });
+    for (let i = 0; i < 50 && res.status === 200; i++) {
+      await new Promise((resolve) => setTimeout(resolve, 100));
+      res = await post(JSON.stringify(potassium()), { key });
+    }
+    await expectOutcome(res, 401, "login", "This API key has been revoked. Ask your Bellwether administrator for a new one.");
+  });
+
+  it("answers a connection over its rate limit 429 (throttled) with Retry-After", async () => {
+    const name = `FHIR limited ${uniqueCode("L")}`;
+    const { key } = await createLisConnectionOverHttp(cookies.admin, { name, contactEmail: uniqueEmail("fhir-rate"), ratePerMinute: 2 });
+    const statuses: number[] = [];
+    let refused: Response | null = null;
+    for (let i = 0; i < 5 && refused === null; i++) {
+      const res = await post(JSON.stringify(potassium()), { key });
+      statuses.push(res.status);
+      if (res.status !== 200) refused = res;
+    }
+    // The limiter's own tests check how many pass; here: the first does, and the refusal is FHIR's.
+    expect(statuses[0]).toBe(200);
+    expect(refused?.status).toBe(429);
+    expect(Number(refused!.headers.get("retry-after"))).toBeGreaterThan(0);
+    expect(refused!.headers.get("content-type")).toBe(FHIR_JSON);
+    const outcome: Json = await refused!.json();
+    expect(outcome.resourceType).toBe("OperationOutcome");
+    expect(outcome.issue).toHaveLength(1);
+    expect(outcome.issue[0]).toMatchObject({ severity: "error", code: "throttled" });
+    expect(outcome.issue[0].diagnostics).toMatch(new RegExp(`^The LIS connection "${name}" may make 2 requests a minute and has used them`));
+  });
+});
+
+describe("age bands and one-sided intervals", () => {
+  let code = "";
+  beforeAll(async () => {
+    code = uniqueCode("FA");
+    await createAnalyte(cookies, { code, name: "FHIR age bands (test)", unit: "U/L", decimals: 0 });
+    // Children [0, 18 years) and adults [18 years, ∞) in days by lib/versions/age-days.ts's rule
+    // (18 × 365.25 = 6574.5 → 6575); the adults' interval has an upper limit only.
+    await putInForce(pool, cookies, code, [
+      { ageFromDays: 0, ageToDays: 6575, low: 100, high: 400, method: "adopted", n: 20, model: { kind: "zlog", scale: "log" } },
+      { ageFromDays: 6575, ageToDays: null, low: null, high: 130, method: "adopted", n: 20, model: { kind: "limits" } },
+    ]);
+  });
+
+  function observationOf(birthDate: string, value: number) {
+    return {
+      resourceType: "Observation",
+      status: "final",
+      contained: [{ resourceType: "Patient", id: "pat", birthDate }],
+      subject: { reference: "#pat" },
+      code: { coding: [{ system: "urn:bellwether:codesystem:analyte", code }] },
+      effectiveDateTime: "2026-03-02",
+      valueQuantity: { value, system: UCUM, code: "U/L" },
+    };
+  }
+
+  it("gives a child's band as age Range 0 to 18 years (UCUM a)", async () => {
+    const res = await post(JSON.stringify(observationOf("2016-05-01", 200)), { cookie: cookies.clinician });
+    expect(res.status).toBe(200);
+    const range: Json = (await res.json()).referenceRange[0];
+    expect(range.age).toEqual({
+      low: { value: 0, unit: "years", system: UCUM, code: "a" },
+      high: { value: 18, unit: "years", system: UCUM, code: "a" },
+    });
+    expect(range.appliesTo).toBeUndefined();
+    expect(range.text).toBe(`100 to 400 U/L; age under 18 years. ${DEFINITION}.`);
+  });
+
+  it("gives the adults' one-sided interval with high only, obs-3 holding, and no z or percentile", async () => {
+    const res = await post(JSON.stringify(observationOf("1970-05-01", 150)), { cookie: cookies.clinician });
+    expect(res.status).toBe(200);
+    const obs: Json = await res.json();
+    const range = obs.referenceRange[0];
+    expect(range.low).toBeUndefined();
+    expect(range.high).toEqual({ value: 130, unit: "U/L", system: UCUM, code: "U/L" });
+    expect(range.age).toEqual({ low: { value: 18, unit: "years", system: UCUM, code: "a" } });
+    expect(range.text).toBe(`130 U/L or less (upper limit only); age 18 years and over. ${DEFINITION}.`);
+    expect(obs.interpretation[0].coding[0].code).toBe("H");
+    expect(obs.component.map((c: Json) => [c.valueQuantity, c.dataAbsentReason?.coding[0].code])).toEqual([
+      [undefined, "not-applicable"],
+      [undefined, "not-applicable"],
+    ]);
+  });
+
+  it("lists both bands in the intervals route", async () => {
+    const body: Json = await (await fetch(`${BASE_URL}/api/v1/analytes/${code}/intervals`, { headers: { cookie: cookies.clinician } })).json();
+    expect(body.referenceRange.map((r: Json) => r.age)).toEqual([
+      { low: { value: 0, unit: "years", system: UCUM, code: "a" }, high: { value: 18, unit: "years", system: UCUM, code: "a" } },
+      { low: { value: 18, unit: "years", system: UCUM, code: "a" } },
+    ]);
   });
 });

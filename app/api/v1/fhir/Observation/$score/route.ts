@@ -7,13 +7,14 @@ export const dynamic = "force-dynamic";
 
 /**
  * FHIR R4 operation $score on Observation: an Observation or a Bundle of them in, the same with
- * referenceRange, interpretation and the z-score and percentile components out. Every error,
- * sign-in and role included, is an OperationOutcome (application/fhir+json).
+ * referenceRange, interpretation and the z-score and percentile components out. A session cookie
+ * or an LIS key; every error, sign-in, role and rate limit included, is an OperationOutcome
+ * (application/fhir+json).
  */
-export const POST = apiRoute({ permission: "scores:create", lisKey: true, errorResponse: fhirErrorResponse }, async ({ principal, request }) => {
-  const body = await readFhirJson(request, MAX_FHIR_BODY_BYTES);
-  return scoreFhirBody({ body, principal });
-});
+export const POST = apiRoute(
+  { permission: "scores:create", lisKey: true, errorResponse: fhirErrorResponse },
+  async ({ principal, request }) => scoreFhirBody({ body: await readFhirJson(request, MAX_FHIR_BODY_BYTES), principal }),
+);
 
 /** $score is an operation to POST to; anything else is told so in FHIR's terms. */
 export function GET(): Response {
