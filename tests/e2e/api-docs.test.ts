@@ -44,6 +44,10 @@ describe("the API page", () => {
 
     expect(await page.getByRole("link", { name: "OpenAPI 3.1 document (JSON)" }).getAttribute("href")).toBe("/api/v1/openapi.json");
     await screenshot(page, "api-docs");
+    // UX.md: usable at 820 px (the sidebar becomes a top bar; code scrolls inside its block).
+    await page.setViewportSize({ width: 820, height: 900 });
+    await page.getByRole("heading", { level: 2, name: "Score a batch" }).scrollIntoViewIfNeeded();
+    await screenshot(page, "api-docs-820");
 
     const document = await page.request.get("/api/v1/openapi.json");
     expect(document.status()).toBe(200);

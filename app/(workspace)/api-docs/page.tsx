@@ -220,8 +220,8 @@ export default async function ApiDocsPage() {
                 A batch counts as one request.
               </li>
               <li>
-                While the database cannot be reached, scores from the intervals already loaded may still be answered; anything else answers
-                503 with <Code>Retry-After</Code>.
+                While the database cannot be reached, values sent with an LIS key are still scored against the intervals already loaded;
+                anything that needs the database (a session, the catalogue) answers 503 with <Code>Retry-After</Code>.
               </li>
             </ul>
             <p>
