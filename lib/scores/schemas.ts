@@ -162,6 +162,43 @@ export const intervalsParams = z.object({
   code: z.string().trim().min(1).max(32).meta({ description: "Our analyte code (e.g. K), or its LOINC code (e.g. 2823-3)", example: "K" }),
 });
 
+/** One in-force partition as GET /api/v1/analytes/{code}/intervals answers it. */
+export const inForcePartitionSchema = z
+  .object({
+    id: z.uuid(),
+    sex: z.enum(["F", "M"]).nullable().meta({ description: "null: both sexes" }),
+    /** Years, inclusive, from the stored days (days / 365.25, rounded to 2 decimals); null for no bound. */
+    ageFrom: z.number().nullable(),
+    /** Years, exclusive. */
+    ageTo: z.number().nullable(),
+    ageFromDays: z.number().int().nullable(),
+    ageToDays: z.number().int().nullable(),
+    low: z.number().nullable(),
+    high: z.number().nullable(),
+    /** 90% confidence interval of each limit. */
+    lowCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the lower limit" }),
+    highCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the upper limit" }),
+    method: z.string(),
+    n: z.number().int(),
+    unit: z.string(),
+    hl7: z.object({ obx7: z.string() }),
+  })
+  .meta({ id: "InForcePartition" });
+
+/** The answer of GET /api/v1/analytes/{code}/intervals; `version` is null when none is in force. */
+export const inForceIntervalsSchema = z
+  .object({
+    analyte: z.object({ code: z.string(), name: z.string(), loinc: z.string().nullable(), unit: z.string(), decimals: z.number().int() }),
+    version: z
+      .object({ id: z.uuid(), number: z.number().int(), effectiveFrom: z.string().nullable(), reviewBy: z.string().nullable() })
+      .nullable()
+      .meta({ description: "null when no version of the analyte is in force" }),
+    partitions: z.array(inForcePartitionSchema),
+  })
+  .meta({ id: "InForceIntervals" });
+
+export type InForceIntervals = z.infer<typeof inForceIntervalsSchema>;
+
 /** A FHIR R4 Observation.referenceRange element (lib/scoring/fhir.ts referenceRangeOf). */
 export const fhirReferenceRangeSchema = z
   .looseObject({
@@ -174,41 +211,16 @@ export const fhirReferenceRangeSchema = z
   })
   .meta({ id: "FhirReferenceRange", description: "FHIR R4 Observation.referenceRange" });
 
-/** One in-force partition as GET /api/v1/analytes/{code}/intervals answers it. */
-export const intervalPartitionSchema = z
-  .object({
-    id: z.uuid(),
-    sex: z.enum(["F", "M"]).nullable().meta({ description: "null: both sexes" }),
-    /** Years, inclusive; null for no lower bound. */
-    ageFrom: z.number().nullable(),
-    /** Years, exclusive; null for no upper bound. */
-    ageTo: z.number().nullable(),
-    ageFromDays: z.number().int().nullable(),
-    ageToDays: z.number().int().nullable(),
-    low: z.number().nullable(),
-    high: z.number().nullable(),
-    lowCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the lower limit" }),
-    highCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the upper limit" }),
-    method: z.string(),
-    n: z.number().int(),
-    unit: z.string(),
-    hl7: z.object({ obx7: z.string() }),
-    referenceRange: fhirReferenceRangeSchema.optional().meta({ description: "The partition as a FHIR R4 Observation.referenceRange element" }),
-  })
+/** The route's answer: the score service's in-force intervals with each partition's FHIR referenceRange, and the list beside them. */
+export const intervalPartitionSchema = inForcePartitionSchema
+  .extend({ referenceRange: fhirReferenceRangeSchema.meta({ description: "The partition as a FHIR R4 Observation.referenceRange element" }) })
   .meta({ id: "IntervalPartition" });
 
-/** GET /api/v1/analytes/{code}/intervals: the analyte's in-force version and its partitions. */
-export const analyteIntervalsSchema = z
-  .object({
-    analyte: z.object({ code: z.string(), name: z.string(), loinc: z.string().nullable(), unit: z.string(), decimals: z.number().int() }),
-    version: z
-      .object({ id: z.uuid(), number: z.number().int(), effectiveFrom: z.string().nullable(), reviewBy: z.string().nullable() })
-      .nullable()
-      .meta({ description: "null when no version of the analyte is in force" }),
+export const analyteIntervalsSchema = inForceIntervalsSchema
+  .extend({
     partitions: z.array(intervalPartitionSchema),
     referenceRange: z
       .array(fhirReferenceRangeSchema)
-      .optional()
       .meta({ description: "Every partition's referenceRange element: the list an Observation would carry" }),
   })
   .meta({ id: "AnalyteIntervals" });
