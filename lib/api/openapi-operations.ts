@@ -11,7 +11,16 @@ import { adoptionCheckIdParams, createAdoptionCheckBody, listAdoptionChecksQuery
 import { analyteCodeParams, createAnalyteBody, updateAnalyteBody } from "@/lib/analytes/input";
 import type { Permission } from "@/lib/auth/roles";
 import { outboxQuery } from "@/lib/mail/outbox-query";
-import { createLisConnectionBody, lisConnectionParams, updateLisConnectionBody } from "@/lib/lis/input";
+import {
+  createdLisConnectionSchema,
+  createLisConnectionBody,
+  DEFAULT_RATE_PER_MINUTE,
+  lisConnectionListSchema,
+  lisConnectionParams,
+  lisConnectionSchema,
+  lisUsageSchema,
+  updateLisConnectionBody,
+} from "@/lib/lis/input";
 import { analyteIntervalsSchema, intervalsParams, MAX_FHIR_BODY_BYTES, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
 import { lookupQuery, partitionQuery } from "@/lib/studies/chart-data";
 import { donorResultsQuery } from "@/lib/studies/donor-results-query";
@@ -752,10 +761,6 @@ const ADMINISTRATION: ApiOperation[] = [
 ];
 
 
-const connectionFields =
-  "{id, name, contactEmail, keyPrefix, ratePerMinute, status: active|revoked, createdAt, createdBy: {id, name}, updatedAt, revokedAt, revokedBy, lastUsedAt}";
-const flagCounts = "{total, L, N, H, LL, HH}";
-
 const LIS_CONNECTIONS: ApiOperation[] = [
   {
     method: "get",
@@ -765,7 +770,7 @@ const LIS_CONNECTIONS: ApiOperation[] = [
     summary: "LIS connections, active ones first",
     description: "Keys are never listed, only their first characters (`keyPrefix`).",
     access: { permission: "users:manage" },
-    success: { status: 200, description: `\`{connections: [${connectionFields}]}\``, schema: described("{connections: [connection]}") },
+    success: { status: 200, description: "Every connection", schema: lisConnectionListSchema },
   },
   {
     method: "post",
@@ -773,10 +778,10 @@ const LIS_CONNECTIONS: ApiOperation[] = [
     operationId: "createLisConnection",
     tag: "Administration",
     summary: "Create an LIS connection and its key",
-    description: "The answer carries the key in `key`: this once, never again (only its SHA-256 is stored). The rate limit defaults to 6,000 requests a minute.",
+    description: `The answer carries the key in \`key\`: this once, never again (only its SHA-256 is stored). The rate limit defaults to ${DEFAULT_RATE_PER_MINUTE.toLocaleString("en")} requests a minute.`,
     access: { permission: "users:manage" },
     body: createLisConnectionBody,
-    success: { status: 201, description: `The connection and its \`key\`: ${connectionFields.slice(0, -1)}, key}`, schema: described("The connection with its key"), headers: location },
+    success: { status: 201, description: "The connection and its `key`, shown this once", schema: createdLisConnectionSchema, headers: location },
   },
   {
     method: "get",
@@ -785,11 +790,7 @@ const LIS_CONNECTIONS: ApiOperation[] = [
     tag: "Administration",
     summary: "Scores logged per connection and analyte (24 h, 7 days)",
     access: { permission: "users:manage" },
-    success: {
-      status: 200,
-      description: `\`{generatedAt, connections: [{id, name, keyPrefix, status, last24h: ${flagCounts}, last7d, analytes: [{code, name, last24h, last7d}]}]}\``,
-      schema: described("{generatedAt, connections}"),
-    },
+    success: { status: 200, description: "Counts by flag per connection and per analyte", schema: lisUsageSchema },
   },
   {
     method: "get",
@@ -799,7 +800,7 @@ const LIS_CONNECTIONS: ApiOperation[] = [
     summary: "One LIS connection",
     access: { permission: "users:manage" },
     params: lisConnectionParams,
-    success: { status: 200, description: connectionFields, schema: described("The connection") },
+    success: { status: 200, description: "The connection", schema: lisConnectionSchema },
     errors: [404],
   },
   {
@@ -811,7 +812,7 @@ const LIS_CONNECTIONS: ApiOperation[] = [
     access: { permission: "users:manage" },
     params: lisConnectionParams,
     body: updateLisConnectionBody,
-    success: { status: 200, description: connectionFields, schema: described("The connection") },
+    success: { status: 200, description: "The connection", schema: lisConnectionSchema },
     errors: [404, 409],
   },
   {
@@ -822,7 +823,7 @@ const LIS_CONNECTIONS: ApiOperation[] = [
     summary: "Revoke a connection's key for good",
     access: { permission: "users:manage" },
     params: lisConnectionParams,
-    success: { status: 200, description: "The revoked connection", schema: described("The connection") },
+    success: { status: 200, description: "The revoked connection", schema: lisConnectionSchema },
     errors: [404, 409],
   },
 ];
