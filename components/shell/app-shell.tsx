@@ -1,3 +1,4 @@
+import Link from "next/link";
 import type { ReactNode } from "react";
 import type { Caller } from "@/lib/auth/authorize";
 import { navigationFor } from "@/lib/auth/navigation";
@@ -23,6 +24,9 @@ export function AppShell({ caller, laboratoryName, children }: {
         <div className="mt-auto hidden space-y-2 border-t border-ink-700 pt-3 lg:block" data-testid="signed-in-as">
           <p className="text-sm text-white">{caller.name}</p>
           <p className="text-xs text-ink-300">{ROLE_LABELS[caller.role]}</p>
+          <Link href="/api-docs" className="block text-xs text-ink-300 hover:text-white">
+            API for laboratory systems
+          </Link>
           <SignOutButton />
         </div>
       </aside>

@@ -16,6 +16,9 @@ export const analyteCodeSchema = z
   .toUpperCase()
   .regex(/^[A-Z0-9]{1,16}$/, "The code is 1 to 16 capital letters or digits, e.g. GLU, K or ALP.");
 
+/** The path parameters of /api/v1/analytes/{code}. */
+export const analyteCodeParams = z.object({ code: analyteCodeSchema });
+
 const fields = {
   name: z.string("Enter the analyte's name.").trim().min(1, "Enter the analyte's name.").max(120, "Keep the name within 120 characters."),
   unit: z.string("Enter a UCUM unit.").superRefine((unit, ctx) => {

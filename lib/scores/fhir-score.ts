@@ -19,8 +19,7 @@ import {
 import { MAX_SCORE_ITEMS, type ScoreResponse } from "./schemas";
 import { SCORE_ITEM_ERRORS, scoreItems } from "./score-items";
 
-/** Room for 10,000 Observations with a contained Patient each (about 700 bytes), with margin. */
-export const MAX_FHIR_BODY_BYTES = 16 * 1024 * 1024;
+export { MAX_FHIR_BODY_BYTES } from "./schemas";
 
 /** An item error's HTTP status, from its problem type (`urn:bellwether:problem:<code>`); 422 otherwise. */
 function statusOfProblemType(type: string): number {

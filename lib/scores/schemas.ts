@@ -11,6 +11,8 @@ import { analyteCodeSchema } from "@/lib/analytes/input";
 export const MAX_SCORE_ITEMS = 10_000;
 /** Room for 10,000 items with dates, units and references (about 250 bytes each), with margin. */
 export const MAX_SCORE_BODY_BYTES = 4 * 1024 * 1024;
+/** POST /api/v1/fhir/Observation/$score: room for 10,000 Observations with a contained Patient each (about 700 bytes), with margin. */
+export const MAX_FHIR_BODY_BYTES = 16 * 1024 * 1024;
 
 const isoDate = z.iso.date({ error: "must be a date as YYYY-MM-DD" });
 /** A date-time with its offset, or a plain date (taken as that day). */
@@ -155,11 +157,16 @@ export type ScoreResult = z.infer<typeof scoreResultSchema>;
 export type ScoreItemError = z.infer<typeof itemErrorSchema>;
 export type ScoreResponse = z.infer<typeof scoreResponseSchema>;
 
+/** The path of GET /api/v1/analytes/{code}/intervals: our analyte code, or its LOINC code. */
+export const intervalsParams = z.object({
+  code: z.string().trim().min(1).max(32).meta({ description: "Our analyte code (e.g. K), or its LOINC code (e.g. 2823-3)", example: "K" }),
+});
+
 /** One in-force partition as GET /api/v1/analytes/{code}/intervals answers it. */
 export const inForcePartitionSchema = z
   .object({
     id: z.uuid(),
-    sex: z.enum(["F", "M"]).nullable(),
+    sex: z.enum(["F", "M"]).nullable().meta({ description: "null: both sexes" }),
     /** Years, inclusive, from the stored days (days / 365.25, rounded to 2 decimals); null for no bound. */
     ageFrom: z.number().nullable(),
     /** Years, exclusive. */
@@ -169,8 +176,8 @@ export const inForcePartitionSchema = z
     low: z.number().nullable(),
     high: z.number().nullable(),
     /** 90% confidence interval of each limit. */
-    lowCi: z.tuple([z.number(), z.number()]).nullable(),
-    highCi: z.tuple([z.number(), z.number()]).nullable(),
+    lowCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the lower limit" }),
+    highCi: z.tuple([z.number(), z.number()]).nullable().meta({ description: "90% confidence interval of the upper limit" }),
     method: z.string(),
     n: z.number().int(),
     unit: z.string(),
@@ -184,9 +191,38 @@ export const inForceIntervalsSchema = z
     analyte: z.object({ code: z.string(), name: z.string(), loinc: z.string().nullable(), unit: z.string(), decimals: z.number().int() }),
     version: z
       .object({ id: z.uuid(), number: z.number().int(), effectiveFrom: z.string().nullable(), reviewBy: z.string().nullable() })
-      .nullable(),
+      .nullable()
+      .meta({ description: "null when no version of the analyte is in force" }),
     partitions: z.array(inForcePartitionSchema),
   })
   .meta({ id: "InForceIntervals" });
 
 export type InForceIntervals = z.infer<typeof inForceIntervalsSchema>;
+
+/** A FHIR R4 Observation.referenceRange element (lib/scoring/fhir.ts referenceRangeOf). */
+export const fhirReferenceRangeSchema = z
+  .looseObject({
+    low: z.looseObject({ value: z.number(), unit: z.string(), system: z.string(), code: z.string() }).optional(),
+    high: z.looseObject({ value: z.number(), unit: z.string(), system: z.string(), code: z.string() }).optional(),
+    type: z.looseObject({}).optional(),
+    appliesTo: z.array(z.looseObject({})).optional(),
+    age: z.looseObject({}).optional(),
+    text: z.string().optional(),
+  })
+  .meta({ id: "FhirReferenceRange", description: "FHIR R4 Observation.referenceRange" });
+
+/** The route's answer: the score service's in-force intervals with each partition's FHIR referenceRange, and the list beside them. */
+export const intervalPartitionSchema = inForcePartitionSchema
+  .extend({ referenceRange: fhirReferenceRangeSchema.meta({ description: "The partition as a FHIR R4 Observation.referenceRange element" }) })
+  .meta({ id: "IntervalPartition" });
+
+export const analyteIntervalsSchema = inForceIntervalsSchema
+  .extend({
+    partitions: z.array(intervalPartitionSchema),
+    referenceRange: z
+      .array(fhirReferenceRangeSchema)
+      .meta({ description: "Every partition's referenceRange element: the list an Observation would carry" }),
+  })
+  .meta({ id: "AnalyteIntervals" });
+
+export type AnalyteIntervals = z.infer<typeof analyteIntervalsSchema>;

@@ -7,9 +7,31 @@ export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
 
 const mappingSchema = z.partialRecord(z.enum(TEMPLATE_COLUMNS), z.string().trim().min(1).max(200));
 
+/** The query of GET /api/v1/uploads/template: the format, and the analyte whose unit the example row takes. */
+export const templateQuery = z
+  .object({
+    format: z.enum(["csv", "xlsx"], "format is csv or xlsx."),
+    analyte: z.string().trim().min(1).max(16).optional(),
+  })
+  .strict();
+
 function invalid(path: string, message: string): AppError {
   return new AppError("invalid", `${path}: ${message}`, { errors: [{ path, message }] });
 }
+
+/**
+ * The upload form's fields as the API documents them (OpenAPI): what `readUploadForm` reads. The
+ * file is bytes, so the form is read by hand rather than parsed with this schema.
+ */
+export const uploadFormSchema = z.object({
+  file: z.string().meta({ format: "binary", description: "The CSV or XLSX file of healthy-donor results, at most 20 MB" }),
+  mapping: z
+    .string()
+    .optional()
+    .meta({ description: `JSON object from template columns (${TEMPLATE_COLUMNS.join(", ")}) to the file's headers`, example: '{"value":"Result"}' }),
+  decimalComma: z.enum(["true", "false"]).optional().meta({ description: 'Whether numbers are written with a decimal comma ("4,2"); default false' }),
+  sheet: z.string().optional().meta({ description: "The XLSX sheet to read; default the first" }),
+});
 
 export interface UploadForm {
   file: File;

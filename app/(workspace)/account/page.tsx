@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { ChangePasswordForm } from "@/components/account/change-password-form";
 import { PageHeader, Panel } from "@/components/ui/panel";
 import { requirePageCaller } from "@/lib/auth/session";
@@ -23,6 +24,9 @@ export default async function AccountPage() {
             <dd>{ROLE_LABELS[caller.role]}</dd>
           </dl>
           <p className="mt-4 text-xs text-ink-500">Your name, e-mail and role are managed by an administrator.</p>
+          <p className="mt-2 text-xs text-ink-500">
+            Connecting a laboratory system? Read the <Link href="/api-docs">API guide</Link>.
+          </p>
         </Panel>
         <Panel title="Change password">
           <ChangePasswordForm action={changeOwnPasswordAction} />

@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { LisConnectionsManager } from "@/components/lis/lis-connections-manager";
 import { PageHeader } from "@/components/ui/panel";
 import { db } from "@/db/client";
@@ -15,6 +16,11 @@ export default async function LisConnectionsPage() {
       <PageHeader
         title="LIS connections"
         lead="The laboratory information systems that score values and read the intervals in force over the API, each with its own key and rate limit. A key is shown once, when the connection is created; revoking it refuses the key from its next request."
+        actions={
+          <Link href="/api-docs" className="text-sm font-medium">
+            API guide for integrators
+          </Link>
+        }
       />
       <LisConnectionsManager connections={connections} usage={usage} />
     </>

@@ -1,14 +1,11 @@
-import { z } from "zod";
 import { db } from "@/db/client";
 import { findAnalyteByCode, updateAnalyte } from "@/db/queries/analytes";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
-import { analyteCodeSchema, updateAnalyteBody } from "@/lib/analytes/input";
+import { analyteCodeParams as params, updateAnalyteBody } from "@/lib/analytes/input";
 import { actorOf } from "@/lib/auth/session";
 
 export const dynamic = "force-dynamic";
-
-const params = z.object({ code: analyteCodeSchema });
 
 export const GET = apiRoute({ permission: "intervals:read", params, lisKey: true }, async ({ params: { code } }) => {
   const analyte = await findAnalyteByCode(db(), { code });

@@ -1,18 +1,11 @@
-import { z } from "zod";
 import { db } from "@/db/client";
 import { findAnalyteByCode } from "@/db/queries/analytes";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
+import { templateQuery } from "@/lib/studies/upload-form";
 import { templateCsv, templateXlsx } from "@/lib/uploads";
 
 export const dynamic = "force-dynamic";
-
-const templateQuery = z
-  .object({
-    format: z.enum(["csv", "xlsx"], "format is csv or xlsx."),
-    analyte: z.string().trim().min(1).max(16).optional(),
-  })
-  .strict();
 
 const XLSX_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
 

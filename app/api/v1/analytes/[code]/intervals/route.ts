@@ -1,12 +1,10 @@
-import { z } from "zod";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
+import { intervalsParams as params } from "@/lib/scores/schemas";
 import { inForceIntervals } from "@/lib/scores/score-items";
 import { referenceRangeOf } from "@/lib/scoring/fhir";
 
 export const dynamic = "force-dynamic";
-
-const params = z.object({ code: z.string().trim().min(1).max(32) });
 
 /**
  * The in-force partitions of an analyte, by our code or its LOINC code, from the model cache (no
