@@ -674,7 +674,7 @@ const VERSIONS: ApiOperation[] = [
     summary: "The version beside the one in force",
     access: { permission: "donors:read" },
     params: versionIdParams,
-    success: { status: 200, description: "`{version, inForce, basis, partitions, removedPartitions, donorFlagChanges}`", schema: described("The comparison") },
+    success: { status: 200, description: "`{version, inForce, basis, partitions, removedPartitions, donorFlagChanges, recentScores}`: recentScores re-flags the patient scores of the last 90 days against this version", schema: described("The comparison") },
     errors: [404],
   },
   {
