@@ -12,7 +12,7 @@ import { ItemErrorNotice, ScoreCard } from "./score-card";
 import type { PatientInput, ScoreAnalyte, ValueInput } from "./types";
 import { scoreItemsOf } from "./words";
 
-type Mode = "single" | "panel";
+export type Mode = "single" | "panel";
 
 type Outcome =
   | { kind: "idle" }
@@ -52,14 +52,27 @@ function checkInput(patient: PatientInput, rows: ValueInput[]): Record<string, s
  * sex and age or birth date; one value gives the answer card, a panel gives one table for several
  * analytes of the same patient. Calls POST /api/v1/scores, the same route the LIS uses.
  */
-export function ScoreWorkbench({ analytes, initialAnalyte, initialQuery }: { analytes: ScoreAnalyte[]; initialAnalyte: string | null; initialQuery: string }) {
+export function ScoreWorkbench({
+  analytes,
+  initialAnalyte,
+  initialQuery,
+  initialMode = "single",
+}: {
+  analytes: ScoreAnalyte[];
+  initialAnalyte: string | null;
+  initialQuery: string;
+  initialMode?: Mode;
+}) {
   const unitOf = Object.fromEntries(analytes.map((a) => [a.code, a.unit]));
-  const [mode, setMode] = useState<Mode>("single");
+  const [mode, setMode] = useState<Mode>(initialMode);
   const [patient, setPatient] = useState<PatientInput>({ sex: "", ageYears: "", birthDate: "", collectedOn: "" });
   // Row keys are counted per page (not per module) so that the server's and the browser's first render agree.
-  const rowCount = useRef(1);
+  const rowCount = useRef(initialMode === "panel" ? 3 : 1);
   const addRow = () => newRow(++rowCount.current);
-  const [rows, setRows] = useState<ValueInput[]>(() => [newRow(1, initialAnalyte, initialAnalyte ? unitOf[initialAnalyte] : "")]);
+  const [rows, setRows] = useState<ValueInput[]>(() => {
+    const first = newRow(1, initialAnalyte, initialAnalyte ? unitOf[initialAnalyte] : "");
+    return initialMode === "panel" ? [first, newRow(2), newRow(3)] : [first];
+  });
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [outcome, setOutcome] = useState<Outcome>({ kind: "idle" });
   const active = mode === "single" ? rows.slice(0, 1) : rows;

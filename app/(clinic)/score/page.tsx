@@ -89,7 +89,12 @@ export default async function ScorePage({ searchParams }: { searchParams: Promis
           </p>
         </div>
       ) : null}
-      <ScoreWorkbench analytes={analytes} initialAnalyte={preselected} initialQuery={preselected ? "" : query} />
+      <ScoreWorkbench
+        analytes={analytes}
+        initialAnalyte={preselected}
+        initialQuery={preselected ? "" : query}
+        initialMode={one(params.mode) === "panel" ? "panel" : "single"}
+      />
     </>
   );
 }
