@@ -40,4 +40,19 @@ export async function startScheduledJobs(): Promise<void> {
   const stop = () => void jobs.stop();
   process.once("SIGTERM", stop);
   process.once("SIGINT", stop);
+  await startScoringJobs();
+}
+
+/**
+ * Scoring's background work (lib/scores): the in-force interval cache loaded now and kept current
+ * through LISTEN/NOTIFY, and the score log's once-a-second flush, which scripts/serve.ts runs a
+ * last time at shutdown. A database that cannot be read now does not stop the server: the cache
+ * loads on the first request instead.
+ */
+async function startScoringJobs(): Promise<void> {
+  const [{ warmModelCache }, { startScoreLog }] = await Promise.all([import("./lib/scores/model-cache"), import("./lib/scores/score-log")]);
+  startScoreLog();
+  await warmModelCache().catch((err: unknown) => {
+    console.error(`bellwether: the in-force intervals could not be loaded at start-up; they load on first use (${err instanceof Error ? err.message : String(err)})`);
+  });
 }

@@ -14,6 +14,7 @@ import { parseArgs } from "node:util";
 import next from "next";
 import { CLIENT_ADDRESS_HEADER, formatIp, resolveClientAddress } from "../lib/api/client-address";
 import { parseEnv } from "../lib/env";
+import { runProcessShutdown } from "../lib/process-shutdown";
 
 const ROOT = path.resolve(__dirname, "..");
 
@@ -43,9 +44,12 @@ async function main(): Promise<void> {
     });
   });
 
+  // What the app registered for shutdown (the score log's last entries) runs before the exit.
   const stop = () => {
     server.close();
-    app.close().finally(() => process.exit(0));
+    runProcessShutdown(10_000)
+      .then(() => app.close())
+      .finally(() => process.exit(0));
   };
   process.on("SIGTERM", stop);
   process.on("SIGINT", stop);

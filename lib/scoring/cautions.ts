@@ -120,3 +120,27 @@ export function partitionCaution(choice: PartitionChoice): Caution {
       "the interval used.",
   };
 }
+
+/**
+ * One sentence per caution code that holds whatever the value: the scoring API explains each
+ * code of its results once, in `cautionTexts`, with these. The per-score texts above may name the
+ * value or the units; these never do, so a batch's explanations do not depend on its items.
+ */
+export const CAUTION_TEXTS: Readonly<Record<CautionCode, string>> = {
+  general: GENERAL_CAUTION.text,
+  "tail-extrapolated":
+    "The value lies further out than the reference data reached, so its z-score and percentile extend the fitted distribution past the data it was built from and are less certain.",
+  "outside-reference-data":
+    "The value is outside the range of the reference results, so its percentile (and z-score) is only a bound, given with percentileBound: the true position is further out.",
+  "unit-converted":
+    "The value was converted to the interval's unit before scoring; if the result looks unexpected, check that the unit sent matches the unit measured.",
+  "value-censored":
+    "The result was reported beyond the measuring range (\"<\" or \">\") and scored at that limit, so the true z-score and percentile are further out than shown, as percentileBound says.",
+  "review-overdue": REVIEW_OVERDUE_CAUTION.text,
+  "partition-chosen":
+    "The interval was chosen by the sex or age given with the request; if they are wrong, so is the interval used.",
+  "partition-default":
+    "No age or sex was given, so the combined or default interval was used; an age- or sex-specific interval, where the laboratory has one, may differ.",
+  "limits-only": LIMITS_ONLY_CAUTION.text,
+  "flag-only": FLAG_ONLY_CAUTION.text,
+};
