@@ -48,8 +48,16 @@ export function VersionCard({ version: v, unit, reviewHref }: { version: Interva
       </p>
       <SimpleTable
         caption={`Version ${v.number}: limits by partition (${unit})`}
-        head={["Partition", `Limits (${unit})`, "90% CIs of the limits", "Method", "n"]}
-        rows={v.partitions.map((p) => [p.scope, <strong key="l" className="tabular-nums">{p.limits}</strong>, p.cis || "—", p.method, p.n.toLocaleString("en")])}
+        head={["Partition", "Limits", "90% CIs of the limits", "Method", "n"]}
+        rows={v.partitions.map((p) => [
+          p.scope,
+          <span key="l" className="whitespace-nowrap tabular-nums">
+            <strong>{p.limits}</strong> {unit}
+          </span>,
+          p.cis ? `${p.cis} ${unit}` : "—",
+          p.method,
+          p.n.toLocaleString("en"),
+        ])}
       />
       <ul className="space-y-0.5 text-sm text-ink-700">
         <li>{v.signedOff ? `Signed off by ${v.signedOff.by}, ${v.signedOff.at}.` : "Not signed off."}</li>

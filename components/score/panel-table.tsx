@@ -66,8 +66,8 @@ export function PanelTable({ rows, cautionTexts }: { rows: Row[]; cautionTexts: 
                       {partitionWords(r.interval.partition)}; version {r.interval.version}
                     </span>
                   </td>
-                  <td className="px-3 py-2 text-right tabular-nums">{zText(r.z, r.percentileBound)}</td>
-                  <td className="px-3 py-2 text-right tabular-nums">{percentileText(r.percentile, r.percentileBound)}</td>
+                  <td className="whitespace-nowrap px-3 py-2 text-right tabular-nums">{zText(r.z, r.percentileBound)}</td>
+                  <td className="whitespace-nowrap px-3 py-2 text-right tabular-nums">{percentileText(r.percentile, r.percentileBound)}</td>
                   <td className="px-3 py-2 text-ink-700">{r.cautions.map(numberOf).join(", ")}</td>
                 </tr>
               );

@@ -78,10 +78,12 @@ describe("a clinician scores a patient value", () => {
     expect(r.flag).toBe("H");
     expect(await card.getByRole("heading", { level: 2 }).textContent()).toBe("Potassium (K): above the reference interval");
     expect(await card.getByTestId("value-against-interval").textContent()).toMatch(/^5\.8 mmol\/L against the reference interval \d\.\d–\d\.\d mmol\/L for /);
-    // z with 2 decimals, the percentile with 1 (UX.md, Numbers), as the API computed them.
-    expect(await card.getByTestId("z").textContent()).toBe(r.z!.toFixed(2));
+    // z with 2 decimals, the percentile with 1 and "> 99.9" at the extreme (UX.md, Numbers), as the
+    // API computed them; a bound (the value beyond the reference data) is said in words.
+    const bound = r.percentileBound ? `${r.percentileBound} ` : "";
+    expect(await card.getByTestId("z").textContent()).toBe(`${bound}${r.z!.toFixed(2)}`);
     const p = r.percentile!;
-    expect(await card.getByTestId("percentile").textContent()).toBe(p >= 99.95 ? "> 99.9" : p.toFixed(1));
+    expect(await card.getByTestId("percentile").textContent()).toBe(`${bound}${p >= 99.95 ? (bound ? "99.9" : "> 99.9") : p.toFixed(1)}`);
     // The chart: a canvas, its caption and the text alternative.
     const chart = card.getByTestId("reference-chart");
     expect(await chart.locator("canvas").count()).toBe(1);
@@ -144,7 +146,9 @@ describe("a clinician scores a patient value", () => {
     expect(await table.locator("tbody tr").count()).toBe(3);
     const na = (await apiScore(page, { analyte: "NA", value: 131, sex: "M", ageYears: 61 })).results[0];
     expect(await row("NA").getByTestId("flag").textContent()).toBe(na.flag);
-    expect(await row("NA").textContent()).toContain(na.z!.toFixed(2));
+    // 131 mmol/L is below the lowest of the demo's 240 sodium reference results: z and percentile are bounds.
+    expect(na.percentileBound).toBe("below");
+    expect(await row("NA").locator("td").nth(4).textContent()).toBe(`below ${na.z!.toFixed(2)}`);
     expect(await row("K").getByTestId("flag").textContent()).toBe("N");
     // 1.3 mg/dL of creatinine (113.12 g/mol, the demo catalogue) is 114.9 µmol/L: converted before scoring.
     expect(await row("CREA").locator("td").first().textContent()).toBe("115");
@@ -189,10 +193,12 @@ describe("the intervals register", () => {
       expect(await page.getByRole("link", { name: "Open the version's review" }).count()).toBe(lab ? 2 : 0);
       if (role === "clinician" || role === "scientist") {
         await page.goto("/intervals");
+        await page.getByTestId("intervals-register").waitFor();
         await screenshot(page, `intervals-${role}-1280`);
         await page.setViewportSize({ width: 820, height: 1000 });
         await screenshot(page, `intervals-${role}-820`);
         await page.goto("/intervals/NA");
+        await page.getByTestId("version-1").waitFor();
         await screenshot(page, `intervals-na-${role}-820`);
       }
       await context.close();
