@@ -151,6 +151,8 @@ export function ReferenceChart({ result }: { result: ScoreResult }) {
         grid: { color: CHART_COLORS.grid },
         ...(ticks ? { afterBuildTicks: (scale: { ticks: { value: number }[] }) => void (scale.ticks = ticks.map((t) => ({ value: t.at }))) } : {}),
         ticks: {
+          // The drawn range's own ends are not round numbers: no tick there.
+          includeBounds: false,
           callback: (v) => {
             const n = Number(v);
             if (model.kind !== "gaussian") return Number.isInteger(n) ? String(n) : "";
