@@ -62,7 +62,7 @@ export default async function OverviewPage() {
               </div>
               <Button type="submit">Find and score</Button>
             </form>
-            <p id="overview-analyte-search-hint" className="mt-1 text-xs text-ink-500">
+            <p id="overview-analyte-search-hint" className="mt-1 text-xs text-ink-500 [&_a]:underline">
               By name, code or LOINC code. Or open the <Link href="/intervals">intervals in force</Link>, or score a{" "}
               <Link href="/score?mode=panel">panel of several analytes</Link>.
             </p>

@@ -75,7 +75,7 @@ export default async function ScorePage({ searchParams }: { searchParams: Promis
         }
       />
       {scorable === 0 ? (
-        <div className="rounded-lg border border-dashed border-ink-300 bg-white px-4 py-6 text-sm text-ink-600" data-testid="score-nothing-in-force">
+        <div className="rounded-lg border border-dashed border-ink-300 bg-white px-4 py-6 text-sm text-ink-600 [&_a]:underline" data-testid="score-nothing-in-force">
           <p className="font-medium text-ink-900">No interval is in force yet, so nothing can be scored.</p>
           <p>
             {can(caller.role, "studies:write") ? (

@@ -56,7 +56,7 @@ export default async function IntervalsPage() {
       />
       <div className="space-y-5">
         {rows.length === 0 ? (
-          <div className="rounded-lg border border-dashed border-ink-300 bg-white px-4 py-6 text-sm text-ink-600" data-testid="register-empty">
+          <div className="rounded-lg border border-dashed border-ink-300 bg-white px-4 py-6 text-sm text-ink-600 [&_a]:underline" data-testid="register-empty">
             <p className="font-medium text-ink-900">No interval is in force yet.</p>
             <p>
               {lab ? (
