@@ -95,7 +95,7 @@ export function ScoreCard({ result, cautionTexts }: { result: ScoreResult; cauti
         <div className="rounded-md bg-ink-50 px-3 py-2">
           <dt className="text-xs font-medium uppercase tracking-wide text-ink-600">Age used</dt>
           <dd className="text-lg font-semibold tabular-nums text-ink-900">
-            {result.ageYearsUsed === null ? "not given" : `${result.ageYearsUsed.toFixed(1)} y`}
+            {result.ageYearsUsed === null ? "not given" : `${result.ageYearsUsed.toFixed(1)} years`}
           </dd>
         </div>
       </dl>

@@ -2,6 +2,7 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "@/db/schema";
 import { demoUser } from "../support/demo-users";
+import { axeViolations } from "./support/axe";
 import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
 
 let browser: Browser;
@@ -45,6 +46,7 @@ describe("a clinician scores a patient value", () => {
     expect((await nav.getByRole("link").allTextContents()).map((t) => t.trim())).toEqual(["Overview", "Score", "Intervals", "Account"]);
 
     // The overview leads with the search box.
+    expect(await axeViolations(page)).toEqual([]);
     const search = page.getByRole("search", { name: "Find an analyte to score" });
     await search.getByLabel("Analyte").fill("potas");
     await search.getByRole("button", { name: "Find and score" }).click();
@@ -96,6 +98,7 @@ describe("a clinician scores a patient value", () => {
       expect(await cautions.locator(`[data-caution="${code}"]`).textContent()).toBe(expected.cautionTexts[code]);
     }
     expect(await cautions.textContent()).toContain("they are not a diagnosis");
+    expect(await axeViolations(page)).toEqual([]);
     await screenshot(page, "score-card-1280");
     await page.setViewportSize({ width: 820, height: 1000 });
     await screenshot(page, "score-card-820");
@@ -161,6 +164,7 @@ describe("a clinician scores a patient value", () => {
     // Once per code.
     const codes = await cautions.locator("li").evaluateAll((lis) => lis.map((li) => li.getAttribute("data-caution")));
     expect(new Set(codes).size).toBe(codes.length);
+    expect(await axeViolations(page)).toEqual([]);
     await screenshot(page, "score-panel-1280");
     await page.setViewportSize({ width: 820, height: 1000 });
     await screenshot(page, "score-panel-820");
@@ -184,6 +188,7 @@ describe("the intervals register", () => {
       // Creatinine has one row with its two partitions.
       expect(await register.locator('tr[data-analyte="CREA"] li').allTextContents()).toEqual(expect.arrayContaining(["F", "M"]));
       expect(await page.getByTestId("not-in-force").textContent()).toContain("Alkaline phosphatase");
+      expect(await axeViolations(page)).toEqual([]);
       await page.getByRole("link", { name: "Sodium", exact: true }).click();
       await page.waitForURL("/intervals/NA");
       await page.getByTestId("version-1").waitFor();
@@ -191,6 +196,7 @@ describe("the intervals register", () => {
       const lab = role === "scientist" || role === "director";
       expect(await page.getByTestId("version-2").count()).toBe(lab ? 1 : 0);
       expect(await page.getByRole("link", { name: "Open the version's review" }).count()).toBe(lab ? 2 : 0);
+      expect(await axeViolations(page)).toEqual([]);
       if (role === "clinician" || role === "scientist") {
         await page.goto("/intervals");
         await page.getByTestId("intervals-register").waitFor();
