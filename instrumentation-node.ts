@@ -56,3 +56,19 @@ async function startScoringJobs(): Promise<void> {
     console.error(`bellwether: the in-force intervals could not be loaded at start-up; they load on first use (${err instanceof Error ? err.message : String(err)})`);
   });
 }
+
+/**
+ * The LIS connections and rate-limit counts each instance keeps in memory (lib/lis/runtime.ts),
+ * loaded at start so that the first request with a key finds them ready; the last-used times are
+ * written once more on SIGTERM and SIGINT. A database that is not there yet is not fatal: the
+ * first keyed request loads them.
+ */
+export async function startLisState(): Promise<void> {
+  const { startLisRuntime, stopLisRuntime } = await import("./lib/lis/runtime");
+  await startLisRuntime().catch((err: unknown) =>
+    console.error(`bellwether: the LIS connections could not be loaded yet: ${err instanceof Error ? err.message : String(err)}`),
+  );
+  const stop = () => void stopLisRuntime();
+  process.once("SIGTERM", stop);
+  process.once("SIGINT", stop);
+}

@@ -13,7 +13,15 @@ const globalForDb = globalThis as unknown as { bellwetherPool?: Pool; bellwether
 
 export function db(): Database {
   if (!globalForDb.bellwetherDb) {
-    globalForDb.bellwetherPool = new Pool({ connectionString: env().DATABASE_URL, max: 10 });
+    const pool = new Pool({ connectionString: env().DATABASE_URL, max: 10 });
+    // An idle connection that the database drops (a restart, an outage) is an 'error' event on the
+    // pool; unhandled it would end the process, which must instead go on answering what it can
+    // from memory (scores from cached models) and 503 for the rest. The pool discards the client.
+    pool.on("error", (err) => console.error(`bellwether: an idle database connection was lost (${err.message})`));
+    // Likewise a connection lost while checked out (mid-query): the query fails, and its 'error'
+    // event, which pg also emits on the client, must not go unheard.
+    pool.on("connect", (client) => client.on("error", () => undefined));
+    globalForDb.bellwetherPool = pool;
     globalForDb.bellwetherDb = drizzle(globalForDb.bellwetherPool, { schema });
   }
   return globalForDb.bellwetherDb;

@@ -3,9 +3,11 @@
  * made up for Bellwether's demo; the passwords are listed in the README.
  */
 import { createAnalyteBody } from "@/lib/analytes/input";
+import { describeLisKey, generateLisKey } from "@/lib/lis/keys";
 import type { Database } from "./client";
 import { createAnalyte, listAnalytes } from "./queries/analytes";
 import { recordAuditEvent, SYSTEM_ACTOR } from "./queries/audit";
+import { ensureDemoLisConnection, findLisConnectionByName } from "./queries/lis-connections";
 import { countUsers, createUser, findUserByEmail } from "./queries/users";
 import { DEMO_LABORATORY, DEMO_USERS } from "./demo-accounts";
 import { seedDemoStudies, type DemoActors } from "./demo-seed-studies";
@@ -44,6 +46,19 @@ export const DEMO_ANALYTES: Record<string, unknown>[] = [
   { code: "HGB", name: "Haemoglobin", unit: "g/L", decimals: 0, loinc: "718-7", specimen: "whole blood", criticalLow: 70, criticalHigh: 200 },
 ];
 
+/** The demo's LIS connection: the laboratory information system of the invented hospital. */
+export const DEMO_LIS_CONNECTION = { name: "Harrowmere LIS (demo)", contactEmail: "lis-team@harrowmere.example" } as const;
+
+export interface SeedDemoOptions {
+  /**
+   * The demo LIS connection's key (BELLWETHER_DEMO_LIS_KEY; otherwise one is generated and printed
+   * once, when the connection is made) and rate limit (BELLWETHER_DEMO_LIS_RATE_PER_MINUTE).
+   */
+  lis?: { key?: string; ratePerMinute?: number };
+  /** Where the generated key is printed (the start command's output). */
+  say?: (line: string) => void;
+}
+
 /**
  * Seeds the demo: into a database without users, the laboratory, its accounts, catalogue and
  * studies; into a database that already holds the demo's accounts, whatever part of the catalogue
@@ -51,7 +66,7 @@ export const DEMO_ANALYTES: Record<string, unknown>[] = [
  * finishes). A database with other users is not the demo's and is left alone. Running it again
  * changes nothing. Returns whether it added anything.
  */
-export async function seedDemo(database: Database): Promise<boolean> {
+export async function seedDemo(database: Database, options: SeedDemoOptions = {}): Promise<boolean> {
   let added = false;
   if ((await countUsers(database)) === 0) {
     await database.insert(laboratory).values({ id: 1, name: DEMO_LABORATORY }).onConflictDoNothing();
@@ -70,6 +85,7 @@ export async function seedDemo(database: Database): Promise<boolean> {
     added = true;
   }
   if (await seedDemoStudies(database, people)) added = true;
+  if (await seedDemoLisConnection(database, options)) added = true;
   if (added) {
     await recordAuditEvent(database, {
       actor: SYSTEM_ACTOR,
@@ -92,4 +108,18 @@ async function demoActors(database: Database): Promise<DemoActors | null> {
   const scientist = await actorFor("scientist");
   const director = await actorFor("director");
   return scientist && director ? { scientist, director } : null;
+}
+
+/**
+ * The demo's LIS connection, made to match the given key and rate: created when missing (with a
+ * generated key printed once when none is given), its key or rate replaced when they differ.
+ */
+async function seedDemoLisConnection(database: Database, { lis = {}, say = console.log }: SeedDemoOptions): Promise<boolean> {
+  const exists = (await findLisConnectionByName(database, { name: DEMO_LIS_CONNECTION.name })) !== undefined;
+  const issued = lis.key ? describeLisKey(lis.key) : exists ? null : generateLisKey();
+  const outcome = await ensureDemoLisConnection(database, { ...DEMO_LIS_CONNECTION, issued, ratePerMinute: lis.ratePerMinute, actor: SYSTEM_ACTOR });
+  if (outcome === "created" && !lis.key && issued) {
+    say(`bellwether: the demo LIS connection's key (shown this once; set BELLWETHER_DEMO_LIS_KEY to choose it): ${issued.key}`);
+  }
+  return outcome !== "unchanged";
 }

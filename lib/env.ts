@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { parseTrustedProxies, type IpRange } from "./api/client-address";
+import { LIS_KEY_PATTERN } from "./lis/key-format";
 
 const whole = (fallback: number, min: number) => z.coerce.number().int().min(min).default(fallback);
 
@@ -120,6 +121,18 @@ const startFields = z.object({
   DATABASE_URL: postgresUrl("DATABASE_URL").optional(),
   BELLWETHER_MIGRATION_URL: postgresUrl("BELLWETHER_MIGRATION_URL").optional(),
   BELLWETHER_DEMO: demoFlag.optional(),
+  // The demo seed's LIS connection (db/seed.ts): its key (else one is generated and printed once)
+  // and its rate limit.
+  BELLWETHER_DEMO_LIS_KEY: z
+    .string()
+    .regex(LIS_KEY_PATTERN, 'BELLWETHER_DEMO_LIS_KEY must be "bwk_" followed by 43 base64url characters (A-Z, a-z, 0-9, - and _)')
+    .optional(),
+  BELLWETHER_DEMO_LIS_RATE_PER_MINUTE: z.coerce
+    .number({ error: "BELLWETHER_DEMO_LIS_RATE_PER_MINUTE must be a whole number of requests a minute" })
+    .int("BELLWETHER_DEMO_LIS_RATE_PER_MINUTE must be a whole number of requests a minute")
+    .min(1, "BELLWETHER_DEMO_LIS_RATE_PER_MINUTE must be at least 1")
+    .max(10_000_000, "BELLWETHER_DEMO_LIS_RATE_PER_MINUTE must be at most 10000000")
+    .optional(),
 });
 
 const startSchema = startFields.refine((e) => !e.BELLWETHER_MIGRATION_URL || e.DATABASE_URL, {
@@ -131,6 +144,12 @@ export type StartEnv = z.infer<typeof startSchema>;
 
 export function parseStartEnv(source: Record<string, string | undefined>): StartEnv {
   return validate(startSchema, source);
+}
+
+/** The demo seed's LIS connection settings, validated. */
+export function parseDemoLisEnv(source: Record<string, string | undefined>): { key?: string; ratePerMinute?: number } {
+  const e = validate(startFields.pick({ BELLWETHER_DEMO_LIS_KEY: true, BELLWETHER_DEMO_LIS_RATE_PER_MINUTE: true }), source);
+  return { key: e.BELLWETHER_DEMO_LIS_KEY, ratePerMinute: e.BELLWETHER_DEMO_LIS_RATE_PER_MINUTE };
 }
 
 /** The schema owner's connection string, for tools that change the schema (drizzle-kit). */

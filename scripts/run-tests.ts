@@ -96,6 +96,13 @@ async function runCheck(label: string, bin: string, args: string[]): Promise<Tal
   return status === 0 ? { passed: 1, failed: 0, skipped: 0 } : { passed: 0, failed: 1, skipped: 0 };
 }
 
+/**
+ * The demo LIS connection under test: a fixed key, and a rate high enough that no test meets it
+ * (a test of the limit makes its own low-limit connection).
+ */
+const DEMO_LIS = { key: "bwk_test-only-demo-lis-key-for-bellwether-tests", ratePerMinute: 1_000_000 };
+const demoLisEnv = { BELLWETHER_DEMO_LIS_KEY: DEMO_LIS.key, BELLWETHER_DEMO_LIS_RATE_PER_MINUTE: String(DEMO_LIS.ratePerMinute) };
+
 async function main(): Promise<number> {
   const wanted = process.argv.slice(2).filter((a): a is Suite => (SUITES as readonly string[]).includes(a));
   const suites: Suite[] = wanted.length ? wanted : [...SUITES];
@@ -134,7 +141,7 @@ async function main(): Promise<number> {
       });
       step();
       await prepareSchema(database);
-      const { seconds } = await seedDemoIfEmpty(database.url);
+      const { seconds } = await seedDemoIfEmpty(database.url, { lis: DEMO_LIS });
       console.log(`bellwether: seeded the demo laboratory (${seconds.toFixed(1)} s)`);
       await buildIfNeeded(lifetime.signal);
       step();
@@ -162,6 +169,7 @@ async function main(): Promise<number> {
         BELLWETHER_SIGN_IN_MAX_DELAY_MINUTES: "15",
         BELLWETHER_SIGN_IN_ADDRESS_MAX_FAILURES: "10",
         BELLWETHER_SIGN_IN_WINDOW_MINUTES: "60",
+        ...demoLisEnv,
       };
       delete appEnv.BELLWETHER_MIGRATION_URL;
       app = await serveApp({ port: appPort, env: appEnv, quiet: true });
@@ -180,6 +188,8 @@ async function main(): Promise<number> {
         BELLWETHER_TEST_SPARE_PG_PORT: String(pgPort + 10),
         // The fake provider the served app sends to, for tests that look at what it received.
         BELLWETHER_TEST_MAIL_URL: mail.env.RESEND_BASE_URL,
+        // The demo LIS connection's key and rate, read by tests/support/lis.ts.
+        ...demoLisEnv,
       };
       if (database.migrationUrl) testEnv.BELLWETHER_MIGRATION_URL = database.migrationUrl;
       // Tests that create scratch databases need the cluster's superuser; only ours has one.

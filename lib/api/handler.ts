@@ -1,15 +1,22 @@
 import "server-only";
 import type { z } from "zod";
-import { currentSession } from "@/lib/auth/session";
-import { authorize, type Caller } from "@/lib/auth/authorize";
+import type { Caller } from "@/lib/auth/authorize";
+import type { Principal } from "@/lib/auth/principal";
 import type { Permission } from "@/lib/auth/roles";
 import { AppError } from "./errors";
+import { resolvePrincipal } from "./principal";
 import { problemResponse, toProblem } from "./problem";
 
 type RouteContext = { params: Promise<Record<string, string | string[] | undefined>> };
 
-interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodType> {
+interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodType, K extends boolean> {
   permission: Permission;
+  /**
+   * The route also answers LIS keys (`Authorization: Bearer <key>`): scores, in-force intervals,
+   * FHIR, the analyte catalogue. On any other route a key is refused with 403. With a key the
+   * handler's `caller` is null and `principal` names the LIS connection; its rate limit applies.
+   */
+  lisKey?: K;
   params?: P;
   query?: Q;
   body?: B;
@@ -22,8 +29,11 @@ interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodT
   multipart?: { maxBytes: number };
 }
 
-interface RouteInput<P, Q, B> {
-  caller: Caller;
+interface RouteInput<P, Q, B, K extends boolean = false> {
+  /** The signed-in user; on a route with `lisKey: true`, null when an LIS key is calling. */
+  caller: K extends true ? Caller | null : Caller;
+  /** Who is calling: the user, or the LIS connection whose key was sent. */
+  principal: Principal;
   /** The next-auth session's own id (token `sid`), e.g. for the first signature of a session. */
   sessionId: string | null;
   params: P;
@@ -32,11 +42,6 @@ interface RouteInput<P, Q, B> {
   /** The parsed form, for routes with the `multipart` option; otherwise null. */
   form: FormData | null;
   request: Request;
-}
-
-/** Resolves who is calling: the session cookie (LIS keys join here with their issue). */
-async function resolveCaller(): Promise<{ caller: Caller; sessionId: string | null } | null> {
-  return currentSession();
 }
 
 async function readJson(request: Request, maxBytes: number): Promise<unknown> {
@@ -87,7 +92,8 @@ async function readMultipart(request: Request, maxBytes: number): Promise<FormDa
 }
 
 /**
- * The one wrapper for every route handler: resolves the caller, checks the permission, parses
+ * The one wrapper for every route handler: resolves the caller (session, or an LIS key where
+ * `lisKey` allows it, within its rate limit), checks the permission, parses
  * params, query and body with zod, runs the handler, and answers every error as
  * application/problem+json. A handler returns a Response or a value to be sent as JSON.
  */
@@ -95,24 +101,24 @@ export function apiRoute<
   P extends z.ZodType = z.ZodType<Record<string, never>>,
   Q extends z.ZodType = z.ZodType<Record<string, never>>,
   B extends z.ZodType = z.ZodType<undefined>,
+  K extends boolean = false,
 >(
-  config: RouteConfig<P, Q, B>,
-  handler: (input: RouteInput<z.output<P>, z.output<Q>, z.output<B>>) => Promise<unknown>,
+  config: RouteConfig<P, Q, B, K>,
+  handler: (input: RouteInput<z.output<P>, z.output<Q>, z.output<B>, K>) => Promise<unknown>,
 ) {
   return async (request: Request, context: RouteContext): Promise<Response> => {
     const url = new URL(request.url);
     try {
-      const session = await resolveCaller();
-      const caller = authorize(session?.caller ?? null, config.permission);
-      const sessionId = session?.sessionId ?? null;
+      const { principal, caller, sessionId } = await resolvePrincipal(request, { permission: config.permission, lisKey: config.lisKey });
       const params = config.params ? config.params.parse(await context.params) : {};
       const query = config.query ? config.query.parse(Object.fromEntries(url.searchParams)) : {};
       const body = config.body ? config.body.parse(await readJson(request, config.maxBodyBytes ?? 1 << 20)) : undefined;
       const form = config.multipart ? await readMultipart(request, config.multipart.maxBytes) : null;
-      const result = await handler({ caller, sessionId, params, query, body, form, request } as RouteInput<
+      const result = await handler({ caller, principal, sessionId, params, query, body, form, request } as RouteInput<
         z.output<P>,
         z.output<Q>,
-        z.output<B>
+        z.output<B>,
+        K
       >);
       if (result instanceof Response) return result;
       return Response.json(result, { headers: { "cache-control": "no-store" } });

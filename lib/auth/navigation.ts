@@ -10,6 +10,7 @@ export interface NavItem {
 export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/", label: "Overview" },
   { href: "/admin/users", label: "Users", permission: "users:manage" },
+  { href: "/admin/lis-connections", label: "LIS connections", permission: "users:manage" },
   { href: "/admin/outbox", label: "Outbox", permission: "users:manage" },
   { href: "/signoff", label: "Sign-off queue", permission: "versions:sign" },
   { href: "/studies", label: "Studies", permission: "studies:write" },
@@ -27,7 +28,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
  * The sidebar order of each role (UX.md, "Navigation by role"): each role sees its own work first,
  * so one shared order cannot serve all four (a clinician's Score comes before Intervals, an
  * admin's Audit trail before them). A section missing here follows in NAV_ITEMS order; an href
- * listed here that is not a section yet (the admins' LIS connections) is simply skipped.
+ * listed here that is no section is skipped.
  */
 const ROLE_ORDER: Record<Role, readonly string[]> = {
   scientist: ["/", "/studies", "/adoption-checks", "/analytes", "/intervals", "/score", "/account"],

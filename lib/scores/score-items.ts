@@ -8,6 +8,7 @@ import { StatsInputError } from "@/lib/stats/validate";
 import { convertUnit } from "@/lib/units/ucum";
 import { exactAgeYears, readDateCell, type DayOut } from "@/lib/uploads/values";
 import { ageYearsToDays } from "@/lib/versions/age-days";
+import { fastScoreItem } from "./fast-item";
 import { modelLookup, type CachedAnalyte, type CachedPartition, type CachedVersion } from "./model-cache";
 import { scoreItemSchema, type ScoreItem, type ScoreItemError, type ScoreResponse, type ScoreResult } from "./schemas";
 import { scoreLogWriter, type ScoreLogWriter } from "./score-log";
@@ -163,11 +164,14 @@ function findAnalyte(item: ScoreItem, ctx: Context): CachedAnalyte | string {
 }
 
 function scoreOne(raw: unknown, ctx: Context): ScoreResult | ScoreItemError {
-  const parsed = scoreItemSchema.safeParse(raw);
-  if (!parsed.success) {
-    return itemError("invalid", zodIssues(parsed.error).map((e) => `${e.path}: ${e.message}`).join("; "), refOf(raw));
+  let item = fastScoreItem(raw);
+  if (item === null) {
+    const parsed = scoreItemSchema.safeParse(raw);
+    if (!parsed.success) {
+      return itemError("invalid", zodIssues(parsed.error).map((e) => `${e.path}: ${e.message}`).join("; "), refOf(raw));
+    }
+    item = parsed.data;
   }
-  const item = parsed.data;
   const ref = item.ref;
   const analyte = findAnalyte(item, ctx);
   if (typeof analyte === "string") return itemError("unknownAnalyte", analyte, ref);

@@ -1,6 +1,7 @@
 /**
  * Cautions attached to every score. Each is a stable code (for the LIS and for tests) and a
- * plain sentence for the clinician. A statistic never stands in for a diagnosis: the general
+ * plain sentence for the clinician; a sentence that names the value is formatted only when read
+ * (a getter), since a batch of thousands explains its codes once with CAUTION_TEXTS. A statistic never stands in for a diagnosis: the general
  * caution travels with every score, and the specific ones say what limits this particular number.
  */
 
@@ -38,9 +39,12 @@ export function tailExtrapolatedCaution(z: number, n: number | undefined): Cauti
       : `beyond the most extreme value expected among the ${n} reference results`;
   return {
     code: "tail-extrapolated",
-    text:
-      `This value lies ${reach} (z = ${z.toFixed(2)}). The z-score and percentile extend the ` +
-      "fitted distribution past the data it was built from and are less certain this far out.",
+    get text() {
+      return (
+        `This value lies ${reach} (z = ${z.toFixed(2)}). The z-score and percentile extend the ` +
+        "fitted distribution past the data it was built from and are less certain this far out."
+      );
+    },
   };
 }
 
@@ -49,19 +53,25 @@ export function outsideReferenceDataCaution(side: "below" | "above", boundPercen
   const where = side === "below" ? "below the lowest" : "above the highest";
   return {
     code: "outside-reference-data",
-    text:
-      `This value is ${where} of the ${n} reference results, so its percentile can only be given ` +
-      `as a bound (${side} ${boundPercentile.toFixed(2)}), and the z-score likewise; the true ` +
-      "position is further out.",
+    get text() {
+      return (
+        `This value is ${where} of the ${n} reference results, so its percentile can only be given ` +
+        `as a bound (${side} ${boundPercentile.toFixed(2)}), and the z-score likewise; the true ` +
+        "position is further out."
+      );
+    },
   };
 }
 
 export function unitConvertedCaution(from: string | undefined, to: string): Caution {
   return {
     code: "unit-converted",
-    text:
-      `The value was converted ${from ? `from ${from} ` : ""}to ${to} before scoring. If the ` +
-      "result looks unexpected, check that the unit sent matches the unit measured.",
+    get text() {
+      return (
+        `The value was converted ${from ? `from ${from} ` : ""}to ${to} before scoring. If the ` +
+        "result looks unexpected, check that the unit sent matches the unit measured."
+      );
+    },
   };
 }
 
@@ -70,9 +80,12 @@ export function valueCensoredCaution(censored: "<" | ">", c: number, unit: strin
   const further = censored === "<" ? "lower" : "higher";
   return {
     code: "value-censored",
-    text:
-      `The result was reported as "${censored}${c} ${unit}", ${direction} the measuring range. It ` +
-      `was scored at ${c}, so the true z-score and percentile are ${further} than shown.`,
+    get text() {
+      return (
+        `The result was reported as "${censored}${c} ${unit}", ${direction} the measuring range. It ` +
+        `was scored at ${c}, so the true z-score and percentile are ${further} than shown.`
+      );
+    },
   };
 }
 

@@ -62,9 +62,30 @@ function flagOnly(): never {
   throw new StatsInputError("this partition's model gives a flag only (a one-sided interval): it has no z-score or percentile");
 }
 
+// Per n, so that a batch does not compute the same Φ⁻¹ once per value.
+const reachOfN = new Map<number, number>();
+
 /** Largest |z| that the reference data themselves reach: Φ⁻¹(n/(n+1)), or 3 without n. */
 function dataReach(n: number | undefined): number {
-  return n === undefined ? 3 : normal.quantile(n / (n + 1), 0, 1);
+  if (n === undefined) return 3;
+  let reach = reachOfN.get(n);
+  if (reach === undefined) {
+    reach = normal.quantile(n / (n + 1), 0, 1);
+    if (reachOfN.size < 10_000) reachOfN.set(n, reach);
+  }
+  return reach;
+}
+
+// A partition's OBX-7 string depends on the partition alone: formatted once per partition object.
+const obx7OfPartition = new WeakMap<ScoringPartition, string>();
+
+function obx7Of(partition: ScoringPartition): string {
+  let text = obx7OfPartition.get(partition);
+  if (text === undefined) {
+    text = obx7(partition.low, partition.high, partition.decimals);
+    obx7OfPartition.set(partition, text);
+  }
+  return text;
 }
 
 /**
@@ -246,7 +267,7 @@ export function scoreValue(input: ScoreInput, scorer?: (x: number) => ModelScore
     percentile: flagOnlyModel ? null : s.percentile,
     percentileBound,
     flag,
-    hl7: { obx7: obx7(partition.low, partition.high, partition.decimals), obx8: obx8(flag) },
+    hl7: { obx7: obx7Of(partition), obx8: obx8(flag) },
     cautions,
   };
 }

@@ -12,8 +12,8 @@ import { Pool } from "pg";
 import { ensureCluster, ensureDatabase, startServer, stopServer, type LocalServer } from "../../db/local-server";
 import { assertSchemaCurrent, migrateDatabase } from "../../db/migrate";
 import * as schema from "../../db/schema";
-import { seedDemo } from "../../db/seed";
-import { parseEnv } from "../../lib/env";
+import { seedDemo, type SeedDemoOptions } from "../../db/seed";
+import { parseDemoLisEnv, parseEnv } from "../../lib/env";
 import { startFakeMailProvider, type FakeMailProvider } from "../../lib/mail/fake-server";
 
 export const ROOT = path.resolve(__dirname, "..", "..");
@@ -67,11 +67,14 @@ export async function prepareSchema(database: DatabaseHandle): Promise<void> {
  * Seeds the demo laboratory, as the app's role: all of it into a database without users, what is
  * missing into one that holds the demo's accounts (db/seed.ts). `seconds` is how long it took.
  */
-export async function seedDemoIfEmpty(url: string): Promise<{ seeded: boolean; seconds: number }> {
+export async function seedDemoIfEmpty(
+  url: string,
+  options: SeedDemoOptions = { lis: parseDemoLisEnv(process.env) },
+): Promise<{ seeded: boolean; seconds: number }> {
   const pool = new Pool({ connectionString: url, max: 2 });
   const started = performance.now();
   try {
-    const seeded = await seedDemo(drizzle(pool, { schema }));
+    const seeded = await seedDemo(drizzle(pool, { schema }), options);
     return { seeded, seconds: (performance.now() - started) / 1000 };
   } finally {
     await pool.end();

@@ -18,6 +18,7 @@ const UX_NAVIGATION: Record<Role, string[]> = {
 const BUILT_SECTIONS = [
   "Overview",
   "Users",
+  "LIS connections",
   "Outbox",
   "Sign-off queue",
   "Studies",

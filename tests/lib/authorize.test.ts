@@ -77,9 +77,8 @@ describe("authorize", () => {
 describe("navigation", () => {
   it("shows each role only the sections it may use, in UX.md's order for the role", () => {
     // UX.md, "Navigation by role (sidebar order)", written out; issue 8 put the director's and the
-    // scientist's Adoption checks right after Studies. The admins' LIS connections (between Users
-    // and Outbox) arrive with the LIS connections page.
-    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/outbox", "/audit", "/intervals", "/score", "/account"]);
+    // scientist's Adoption checks right after Studies. The admins' LIS connections come between Users and Outbox.
+    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/lis-connections", "/admin/outbox", "/audit", "/intervals", "/score", "/account"]);
     expect(navigationFor("director").map((i) => i.href)).toEqual([
       "/",
       "/signoff",

@@ -6,8 +6,8 @@ import { actorOf } from "@/lib/auth/session";
 
 export const dynamic = "force-dynamic";
 
-/** The analyte catalogue, for everyone signed in. */
-export const GET = apiRoute({ permission: "intervals:read" }, async () => ({ analytes: await listAnalytes(db()) }));
+/** The analyte catalogue, for everyone signed in and for LIS keys. */
+export const GET = apiRoute({ permission: "intervals:read", lisKey: true }, async () => ({ analytes: await listAnalytes(db()) }));
 
 /** Adds an analyte (scientists and directors). */
 export const POST = apiRoute({ permission: "analytes:write", body: createAnalyteBody }, async ({ caller, body }) => {

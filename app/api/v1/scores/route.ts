@@ -1,7 +1,7 @@
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
-import type { Principal } from "@/lib/auth/principal";
 import { MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreEnvelopeSchema } from "@/lib/scores/schemas";
+import { scoreResponseJson } from "@/lib/scores/render";
 import { scoreItems } from "@/lib/scores/score-items";
 
 export const dynamic = "force-dynamic";
@@ -13,15 +13,15 @@ export const dynamic = "force-dynamic";
  * an LIS key.
  */
 export const POST = apiRoute(
-  { permission: "scores:create", body: scoreEnvelopeSchema, maxBodyBytes: MAX_SCORE_BODY_BYTES },
-  async ({ caller, body }) => {
+  { permission: "scores:create", lisKey: true, body: scoreEnvelopeSchema, maxBodyBytes: MAX_SCORE_BODY_BYTES },
+  async ({ principal, body }) => {
     if (body.items.length > MAX_SCORE_ITEMS) {
       throw new AppError(
         "payload_too_large",
         `A request may carry at most ${MAX_SCORE_ITEMS} items; this one has ${body.items.length}. Send them in several requests.`,
       );
     }
-    const principal: Principal = { kind: "user", id: caller.id, role: caller.role };
-    return scoreItems({ items: body.items, principal, channel: principal.kind === "user" ? "app" : "api" });
+    const answer = await scoreItems({ items: body.items, principal, channel: principal.kind === "user" ? "app" : "api" });
+    return new Response(scoreResponseJson(answer), { headers: { "content-type": "application/json", "cache-control": "no-store" } });
   },
 );

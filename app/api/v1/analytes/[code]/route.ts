@@ -10,7 +10,7 @@ export const dynamic = "force-dynamic";
 
 const params = z.object({ code: analyteCodeSchema });
 
-export const GET = apiRoute({ permission: "intervals:read", params }, async ({ params: { code } }) => {
+export const GET = apiRoute({ permission: "intervals:read", params, lisKey: true }, async ({ params: { code } }) => {
   const analyte = await findAnalyteByCode(db(), { code });
   if (!analyte) throw new AppError("not_found", `There is no analyte with the code ${code}.`);
   return analyte;
