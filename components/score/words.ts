@@ -19,7 +19,7 @@ export const FLAG_WORDS: Record<Flag, string> = {
 export const FLAG_TONES: Record<Flag, string> = {
   N: "bg-green-50 text-signal-ok border-signal-ok/30",
   L: "bg-blue-50 text-signal-low border-signal-low/30",
-  H: "bg-amber-50 text-signal-warn border-signal-warn/30",
+  H: "bg-amber-50 text-amber-800 border-signal-warn/30",
   LL: "bg-red-50 text-signal-high border-signal-high/40",
   HH: "bg-red-50 text-signal-high border-signal-high/40",
   "<": "bg-ink-100 text-ink-700 border-ink-300",

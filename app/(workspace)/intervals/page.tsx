@@ -74,7 +74,7 @@ export default async function IntervalsPage() {
             title={`${rows.length} analyte${rows.length === 1 ? "" : "s"} in force`}
             actions={
               overdue > 0 ? (
-                <span className="text-sm font-medium text-signal-warn" data-testid="overdue-count">
+                <span className="text-sm font-medium text-amber-800" data-testid="overdue-count">
                   {overdue} overdue for review
                 </span>
               ) : (
