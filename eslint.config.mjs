@@ -5,7 +5,7 @@ const config = [
   ...nextVitals,
   ...nextTypescript,
   {
-    ignores: [".next/**", ".cli-build/**", "node_modules/**", ".data/**", ".test-data/**", "next-env.d.ts", "drizzle/**"],
+    ignores: [".next/**", ".cli-build/**", "node_modules/**", ".data/**", ".test-data/**", ".bench-data/**", "next-env.d.ts", "drizzle/**"],
   },
   {
     // The command line's launcher is plain CommonJS that node runs without compiling.

@@ -19,6 +19,9 @@ export default defineConfig({
           name: "unit",
           include: ["tests/stats/**/*.test.ts", "tests/scoring/**/*.test.ts", "tests/lib/**/*.test.ts", "tests/cli/**/*.test.ts", "tests/uploads/**/*.test.ts"],
           environment: "node",
+          // A guard against a hang, not a speed check: seeded property tests take seconds when the
+          // machine is busy.
+          testTimeout: 30_000,
         },
       },
       {

@@ -1,5 +1,18 @@
 import { readProblem } from "@/components/studies/api";
 
+/** A problem's field messages without their paths ("The rate limit is …"), else its detail. */
+async function problemMessage(res: Response): Promise<string> {
+  const copy = res.clone();
+  try {
+    const body = (await res.json()) as { errors?: { message?: unknown }[] };
+    const messages = (body.errors ?? []).map((e) => e.message).filter((m): m is string => typeof m === "string");
+    if (messages.length > 0) return messages.join(" ");
+  } catch {
+    // Not JSON: the generic reader says what came back.
+  }
+  return readProblem(copy);
+}
+
 export const CONNECTIONS_URL = "/api/v1/lis-connections";
 export const USAGE_URL = "/api/v1/lis-connections/usage";
 
@@ -10,7 +23,7 @@ export async function sendJson<T>(method: "POST" | "PATCH", url: string, body?: 
     headers: body === undefined ? { accept: "application/json" } : { accept: "application/json", "content-type": "application/json" },
     body: body === undefined ? undefined : JSON.stringify(body),
   });
-  if (!res.ok) throw new Error(await readProblem(res));
+  if (!res.ok) throw new Error(await problemMessage(res));
   return res.json() as Promise<T>;
 }
 

@@ -129,7 +129,7 @@ export function ConnectionsTable({ rows, onChanged }: { rows: LisConnectionOut[]
       column.accessor("keyPrefix", { header: "Key", cell: (c) => <code className="whitespace-nowrap text-xs">{c.getValue()}…</code> }),
       column.accessor("ratePerMinute", {
         header: "Requests a minute",
-        cell: (c) => <RateCell key={`${c.row.original.id}-${c.getValue()}-${c.row.original.status}`} row={c.row.original} />,
+        cell: (c) => <RateCell key={`${c.row.original.id}-${c.row.original.status}`} row={c.row.original} />,
       }),
       column.accessor("lastUsedAt", {
         header: "Last used",

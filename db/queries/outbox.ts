@@ -1,7 +1,7 @@
 import "server-only";
-import { and, asc, desc, eq, gte, inArray, lte, sql } from "drizzle-orm";
+import { and, asc, desc, eq, gte, inArray, isNull, lte, sql } from "drizzle-orm";
 import type { Executor } from "../client";
-import { analytes, intervalVersions, outbox, users, type OutboxMessage, type Role } from "../schema";
+import { analytes, intervalVersions, lisConnections, outbox, users, type OutboxMessage, type Role } from "../schema";
 
 export type { OutboxMessage };
 
@@ -48,6 +48,39 @@ export async function activeAddressesOf(executor: Executor, { roles }: { roles: 
     .from(users)
     .where(and(eq(users.active, true), inArray(users.role, [...roles])));
   return rows.map((r) => r.email);
+}
+
+/**
+ * The contact e-mails of the LIS connections that are not revoked, each address once (lower-case,
+ * sorted): several connections may share a contact.
+ */
+export async function activeLisContactAddresses(executor: Executor): Promise<string[]> {
+  const rows = await executor.select({ email: lisConnections.contactEmail }).from(lisConnections).where(isNull(lisConnections.revokedAt));
+  return [...new Set(rows.map((r) => r.email.trim().toLowerCase()).filter(Boolean))].sort();
+}
+
+/**
+ * Queues one message per address (each its own outbox row), for recipients who must not see each
+ * other's addresses, such as the contacts of different LIS connections.
+ */
+export async function queueMessageToEach(executor: Executor, message: QueuedMessage): Promise<OutboxMessage[]> {
+  const recipients = [...new Set(message.recipients.map((r) => r.trim().toLowerCase()).filter(Boolean))];
+  if (recipients.length === 0) return [];
+  return executor
+    .insert(outbox)
+    .values(
+      recipients.map((recipient) => ({
+        kind: message.kind,
+        recipients: [recipient],
+        subject: message.subject,
+        text: message.text,
+        html: message.html ?? null,
+        entityType: message.entityType ?? null,
+        entityId: message.entityId ?? null,
+        ...(message.createdAt ? { createdAt: message.createdAt } : {}),
+      })),
+    )
+    .returning();
 }
 
 /** A page of the outbox, newest first, with the total count. */

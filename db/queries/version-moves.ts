@@ -9,7 +9,8 @@ import { uniqueViolationOf } from "../errors";
 import { analytes, estimates, intervalPartitions, intervalVersions, signatures, signingFailures, users, type Analyte, type IntervalVersion } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { findIntervalVersion, type VersionOut } from "./interval-versions";
-import { activeAddressesOf, queueMessage } from "./outbox";
+import { inForceMessage, withdrawnMessage } from "@/lib/versions/lis-messages";
+import { activeAddressesOf, activeLisContactAddresses, queueMessage, queueMessageToEach } from "./outbox";
 import { normaliseEmail } from "./users";
 
 /** Consecutive failed signings after which signing locks for the account until an admin unlocks it. */
@@ -311,6 +312,31 @@ async function precheck(database: Database, { move, id, caller }: { move: Versio
 const versionLabel = (version: IntervalVersion, analyte: Analyte) => `version ${version.number} of ${analyte.code} (${analyte.name})`;
 
 /**
+ * Tells every active LIS connection's contact (one message per address) that a version went in
+ * force, with its limits by partition, so that the LIS range tables are refreshed.
+ */
+async function tellLisInForce(
+  tx: Executor,
+  { version, analyte, at, reinstatedAfter }: { version: IntervalVersion; analyte: Analyte; at: Date; reinstatedAfter?: { number: number; reason: string } },
+): Promise<void> {
+  const recipients = await activeLisContactAddresses(tx);
+  if (recipients.length === 0) return;
+  const partitions = await tx
+    .select({ sex: intervalPartitions.sex, ageFromDays: intervalPartitions.ageFromDays, ageToDays: intervalPartitions.ageToDays, low: intervalPartitions.low, high: intervalPartitions.high })
+    .from(intervalPartitions)
+    .where(eq(intervalPartitions.versionId, version.id))
+    .orderBy(asc(intervalPartitions.position));
+  const { subject, text } = inForceMessage({
+    analyte,
+    version,
+    partitions: partitions.map((p) => ({ ...p, sex: p.sex as "F" | "M" | null })),
+    effectiveFrom: at,
+    reinstatedAfter,
+  });
+  await queueMessageToEach(tx, { kind: "version.in_force", recipients, subject, text, entityType: "interval_version", entityId: version.id });
+}
+
+/**
  * Submits a draft for sign-off (a director or a scientist): it is no longer editable. Queues
  * "version.submitted" to every active director but the submitter.
  */
@@ -440,6 +466,7 @@ export async function signIntervalVersion(
         entityType: "interval_version",
         entityId: id,
       });
+      await tellLisInForce(tx, { version, analyte, at });
     });
   } catch (err) {
     conflictOfSimultaneousSigning(err, seen.code);
@@ -550,6 +577,12 @@ export async function withdrawIntervalVersion(
         entityType: "interval_version",
         entityId: id,
       });
+      if (reinstated) {
+        await tellLisInForce(tx, { version: reinstated, analyte, at, reinstatedAfter: { number: version.number, reason } });
+      } else {
+        const lis = withdrawnMessage({ analyte, version, at, reason });
+        await queueMessageToEach(tx, { kind: "version.withdrawn", recipients: await activeLisContactAddresses(tx), ...lis, entityType: "interval_version", entityId: id });
+      }
     });
   } catch (err) {
     conflictOfSimultaneousSigning(err, seenAnalyte.code);

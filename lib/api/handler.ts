@@ -5,7 +5,7 @@ import type { Principal } from "@/lib/auth/principal";
 import type { Permission } from "@/lib/auth/roles";
 import { AppError } from "./errors";
 import { resolvePrincipal } from "./principal";
-import { problemResponse, toProblem } from "./problem";
+import { problemResponse, toProblem, type Problem } from "./problem";
 
 type RouteContext = { params: Promise<Record<string, string | string[] | undefined>> };
 
@@ -27,6 +27,11 @@ interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodT
    * and fields) into `form`; another content type is answered 415, a larger body 413.
    */
   multipart?: { maxBytes: number };
+  /**
+   * Answers an error in another shape than problem+json, from the same problem (status, detail,
+   * headers): the FHIR routes answer every error, auth included, as an OperationOutcome.
+   */
+  errorResponse?: (problem: Problem, headers: Record<string, string>) => Response;
 }
 
 interface RouteInput<P, Q, B, K extends boolean = false> {
@@ -126,7 +131,7 @@ export function apiRoute<
       const problem = toProblem(err, url.pathname);
       const headers: Record<string, string> =
         problem.status === 401 ? { "www-authenticate": 'Bearer realm="bellwether"' } : {};
-      return problemResponse(problem, headers);
+      return (config.errorResponse ?? problemResponse)(problem, headers);
     }
   };
 }

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { LIS_KEY_PATTERN } from "./key-format";
 
 /** The highest rate an administrator may set (lis_connections_rate_range in the schema). */
 export const MAX_RATE_PER_MINUTE = 10_000_000;
@@ -34,41 +35,57 @@ export type UpdateLisConnectionInput = z.output<typeof updateLisConnectionBody>;
 
 export const lisConnectionParams = z.object({ id: z.uuid("The LIS connection id must be a UUID.") });
 
+const person = z.object({ id: z.uuid(), name: z.string() });
+const instant = z.iso.datetime();
+
 /** An LIS connection as the admin API answers it: never the key, only its prefix. */
-export interface LisConnectionOut {
-  id: string;
-  name: string;
-  contactEmail: string;
-  keyPrefix: string;
-  ratePerMinute: number;
-  status: "active" | "revoked";
-  createdAt: string;
-  createdBy: { id: string; name: string } | null;
-  updatedAt: string;
-  revokedAt: string | null;
-  revokedBy: { id: string; name: string } | null;
-  lastUsedAt: string | null;
-}
+export const lisConnectionSchema = z.object({
+  id: z.uuid(),
+  name: z.string(),
+  contactEmail: z.string(),
+  /** The key's first 12 characters, e.g. "bwk_3f9a1c0d". */
+  keyPrefix: z.string(),
+  ratePerMinute: z.number().int(),
+  status: z.enum(["active", "revoked"]),
+  createdAt: instant,
+  createdBy: person.nullable(),
+  updatedAt: instant,
+  revokedAt: instant.nullable(),
+  revokedBy: person.nullable(),
+  lastUsedAt: instant.nullable(),
+});
+export type LisConnectionOut = z.output<typeof lisConnectionSchema>;
+
+/** GET /api/v1/lis-connections */
+export const lisConnectionListSchema = z.object({ connections: z.array(lisConnectionSchema) });
+
+/** POST /api/v1/lis-connections (201): the connection and its key, answered this once. */
+export const createdLisConnectionSchema = lisConnectionSchema.extend({ key: z.string().regex(LIS_KEY_PATTERN) });
 
 /** Counts of scores in a period, by flag. */
-export interface FlagCounts {
-  total: number;
-  L: number;
-  N: number;
-  H: number;
-  LL: number;
-  HH: number;
-}
+export const flagCountsSchema = z.object({
+  total: z.number().int(),
+  L: z.number().int(),
+  N: z.number().int(),
+  H: z.number().int(),
+  LL: z.number().int(),
+  HH: z.number().int(),
+});
+export type FlagCounts = z.output<typeof flagCountsSchema>;
 
-export interface LisUsageOut {
-  generatedAt: string;
-  connections: {
-    id: string;
-    name: string;
-    keyPrefix: string;
-    status: "active" | "revoked";
-    last24h: FlagCounts;
-    last7d: FlagCounts;
-    analytes: { code: string; name: string; last24h: FlagCounts; last7d: FlagCounts }[];
-  }[];
-}
+/** GET /api/v1/lis-connections/usage */
+export const lisUsageSchema = z.object({
+  generatedAt: instant,
+  connections: z.array(
+    z.object({
+      id: z.uuid(),
+      name: z.string(),
+      keyPrefix: z.string(),
+      status: z.enum(["active", "revoked"]),
+      last24h: flagCountsSchema,
+      last7d: flagCountsSchema,
+      analytes: z.array(z.object({ code: z.string(), name: z.string(), last24h: flagCountsSchema, last7d: flagCountsSchema })),
+    }),
+  ),
+});
+export type LisUsageOut = z.output<typeof lisUsageSchema>;

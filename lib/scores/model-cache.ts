@@ -389,10 +389,3 @@ export function modelCacheStatus(): { loaded: boolean; analytes: number; loads: 
   const s = state();
   return { loaded: s.index !== null, analytes: s.index?.byId.size ?? 0, loads: s.loads, listening: listenerStatus().connected };
 }
-
-/** Reloads everything now (tests; a change made without a notification). */
-export async function reloadModelCache(): Promise<void> {
-  const s = state();
-  await schedule(s, "all");
-  if (s.lastError) throw s.lastError;
-}

@@ -154,3 +154,39 @@ export type ScoreItem = z.infer<typeof scoreItemSchema>;
 export type ScoreResult = z.infer<typeof scoreResultSchema>;
 export type ScoreItemError = z.infer<typeof itemErrorSchema>;
 export type ScoreResponse = z.infer<typeof scoreResponseSchema>;
+
+/** One in-force partition as GET /api/v1/analytes/{code}/intervals answers it. */
+export const inForcePartitionSchema = z
+  .object({
+    id: z.uuid(),
+    sex: z.enum(["F", "M"]).nullable(),
+    /** Years, inclusive, from the stored days (days / 365.25, rounded to 2 decimals); null for no bound. */
+    ageFrom: z.number().nullable(),
+    /** Years, exclusive. */
+    ageTo: z.number().nullable(),
+    ageFromDays: z.number().int().nullable(),
+    ageToDays: z.number().int().nullable(),
+    low: z.number().nullable(),
+    high: z.number().nullable(),
+    /** 90% confidence interval of each limit. */
+    lowCi: z.tuple([z.number(), z.number()]).nullable(),
+    highCi: z.tuple([z.number(), z.number()]).nullable(),
+    method: z.string(),
+    n: z.number().int(),
+    unit: z.string(),
+    hl7: z.object({ obx7: z.string() }),
+  })
+  .meta({ id: "InForcePartition" });
+
+/** The answer of GET /api/v1/analytes/{code}/intervals; `version` is null when none is in force. */
+export const inForceIntervalsSchema = z
+  .object({
+    analyte: z.object({ code: z.string(), name: z.string(), loinc: z.string().nullable(), unit: z.string(), decimals: z.number().int() }),
+    version: z
+      .object({ id: z.uuid(), number: z.number().int(), effectiveFrom: z.string().nullable(), reviewBy: z.string().nullable() })
+      .nullable(),
+    partitions: z.array(inForcePartitionSchema),
+  })
+  .meta({ id: "InForceIntervals" });
+
+export type InForceIntervals = z.infer<typeof inForceIntervalsSchema>;

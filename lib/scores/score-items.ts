@@ -10,7 +10,7 @@ import { exactAgeYears, readDateCell, type DayOut } from "@/lib/uploads/values";
 import { ageYearsToDays } from "@/lib/versions/age-days";
 import { fastScoreItem } from "./fast-item";
 import { modelLookup, type CachedAnalyte, type CachedPartition, type CachedVersion } from "./model-cache";
-import { scoreItemSchema, type ScoreItem, type ScoreItemError, type ScoreResponse, type ScoreResult } from "./schemas";
+import { scoreItemSchema, type InForceIntervals, type ScoreItem, type ScoreItemError, type ScoreResponse, type ScoreResult } from "./schemas";
 import { scoreLogWriter, type ScoreLogWriter } from "./score-log";
 
 /**
@@ -265,28 +265,6 @@ export async function scoreItems({
   const cautionTexts: Record<string, string> = {};
   for (const code of ctx.codes) cautionTexts[code] = CAUTION_TEXTS[code];
   return { results, cautionTexts };
-}
-
-/** The answer of GET /api/v1/analytes/{code}/intervals. */
-export interface InForceIntervals {
-  analyte: { code: string; name: string; loinc: string | null; unit: string; decimals: number };
-  version: { id: string; number: number; effectiveFrom: string | null; reviewBy: string | null } | null;
-  partitions: {
-    id: string;
-    sex: "F" | "M" | null;
-    ageFrom: number | null;
-    ageTo: number | null;
-    ageFromDays: number | null;
-    ageToDays: number | null;
-    low: number | null;
-    high: number | null;
-    lowCi: [number, number] | null;
-    highCi: [number, number] | null;
-    method: string;
-    n: number;
-    unit: string;
-    hl7: { obx7: string };
-  }[];
 }
 
 /**

@@ -11,6 +11,7 @@
  * is flagged at its censoring limit, as the scoring models take it.
  */
 import { flagValue } from "@/lib/scoring/flag";
+import type { RecentScoresAnswer } from "./recent-scores";
 import { partitionLabel } from "@/lib/studies/partitions";
 import { DAYS_PER_YEAR } from "./age-days";
 
@@ -178,4 +179,6 @@ export interface ComparisonAnswer<V> {
   donorFlagChanges: Omit<VersionComparisonResult["donorFlagChanges"], "byPartition"> & {
     byPartition: Labelled<VersionComparisonResult["donorFlagChanges"]["byPartition"][number]>[];
   };
+  /** The patient scores of the last 90 days re-flagged against this version (lib/versions/recent-scores.ts). */
+  recentScores: RecentScoresAnswer;
 }

@@ -1,6 +1,7 @@
 import { createHash, randomBytes } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { Role } from "@/db/schema";
+import { createdLisConnectionSchema, lisConnectionListSchema, lisUsageSchema } from "@/lib/lis/input";
 import { testDatabase, uniqueEmail } from "../support/database";
 import { demoUser } from "../support/demo-users";
 import { BASE_URL, signInOverHttp } from "../support/http-session";
@@ -68,6 +69,8 @@ describe("POST /api/v1/lis-connections", () => {
         key: expect.stringMatching(KEY_FORM),
       });
       expect(res.headers.get("location")).toBe(`/api/v1/lis-connections/${created.id}`);
+      // The schemas the API document is built from describe what is answered.
+      expect(createdLisConnectionSchema.safeParse(created).error).toBeUndefined();
       expect(await counts()).toEqual({ lis_connections: before.lis_connections + 1, audit_events: before.audit_events + 1 });
       // Stored as its SHA-256 and prefix only; the key itself is nowhere in the database.
       const [row] = (await pool.query("SELECT key_sha256, key_prefix FROM lis_connections WHERE id = $1", [created.id])).rows;
@@ -82,6 +85,7 @@ describe("POST /api/v1/lis-connections", () => {
       expect(text).not.toContain(created.key);
       expect(JSON.parse(text)).not.toHaveProperty("key");
       const list = await (await send("GET", "/api/v1/lis-connections", "admin")).text();
+      expect(lisConnectionListSchema.safeParse(JSON.parse(list)).error).toBeUndefined();
       expect(list).toContain(created.id);
       expect(list).not.toContain(created.key);
     });
@@ -315,6 +319,7 @@ describe("GET /api/v1/lis-connections/usage", () => {
     const res = await send("GET", "/api/v1/lis-connections/usage", "admin");
     expect(res.status).toBe(200);
     const body = await res.json();
+    expect(lisUsageSchema.safeParse(body).error).toBeUndefined();
     const mine = body.connections.find((c: { id: string }) => c.id === id);
     const c = (total: number, f: Partial<Record<"L" | "N" | "H" | "LL" | "HH", number>>) => ({ total, L: 0, N: 0, H: 0, LL: 0, HH: 0, ...f });
     expect(mine).toEqual({

@@ -170,6 +170,23 @@ describe("while the database is away from one instance", () => {
   });
 });
 
+describe("shutdown", () => {
+  it("writes the score log's last entries before the instance exits", async () => {
+    const value = 4.2 + Math.floor(Math.random() * 1e6) / 1e8;
+    const res = await fetch(`${SECOND_URL}/api/v1/scores`, {
+      method: "POST",
+      headers: { authorization: `Bearer ${demoLisKey()}`, "content-type": "application/json" },
+      body: JSON.stringify({ items: [{ analyte: CODE, value }] }),
+    });
+    expect(res.status).toBe(200);
+    // SIGTERM at once: the entry is written by the flush at shutdown if the timer has not yet.
+    await stopApp(second);
+    second = null;
+    const { rows } = await pool.query("SELECT flag, channel FROM score_log WHERE analyte_id = (SELECT id FROM analytes WHERE code = $1) AND value = $2", [CODE, value]);
+    expect(rows).toEqual([{ flag: "N", channel: "api" }]);
+  });
+});
+
 describe("the score service while the database is away (in this process)", () => {
   it("goes on scoring from the cache and writes the log entries when the database returns", async () => {
     // This process's own copy of the service, connected through a relay of its own.

@@ -70,6 +70,11 @@ async function outboxOf(entityId: string, kind: string): Promise<{ recipients: s
   return (await pool.query("SELECT recipients, subject, text FROM outbox WHERE entity_id = $1 AND kind = $2 ORDER BY created_at", [entityId, kind])).rows;
 }
 
+/** Distinct contact e-mails of the LIS connections not revoked: each gets its own "version.in_force" or "version.withdrawn". */
+async function lisContacts(): Promise<number> {
+  return (await pool.query("SELECT count(DISTINCT lower(trim(contact_email)))::int AS n FROM lis_connections WHERE revoked_at IS NULL")).rows[0].n;
+}
+
 async function activeEmails(role: string): Promise<string[]> {
   return (await pool.query("SELECT email FROM users WHERE role = $1 AND active ORDER BY email", [role])).rows.map((r) => r.email);
 }
@@ -210,7 +215,7 @@ describe("POST /api/v1/interval-versions/{id}/sign", () => {
     review.setUTCMonth(review.getUTCMonth() + 12);
     expect(signed.reviewBy).toBe(review.toISOString());
     expect(await counts()).toEqual({
-      ...before, signatures: before.signatures + 1, audit_events: before.audit_events + 2 + prior.length, outbox: before.outbox + 1,
+      ...before, signatures: before.signatures + 1, audit_events: before.audit_events + 2 + prior.length, outbox: before.outbox + 1 + (await lisContacts()),
     });
     // Anyone with donors:read can recompute the hash; sha256sum agrees with it.
     const content = await ok(await send("GET", `/api/v1/interval-versions/${first.id}/canonical-content`, "scientist"));
@@ -388,7 +393,7 @@ describe("POST /api/v1/interval-versions/{id}/withdraw", () => {
     const back = await ok(await send("GET", `/api/v1/interval-versions/${previous.id}`, "scientist"));
     expect(back).toMatchObject({ state: "in_force", effectiveTo: null, effectiveFrom: body.withdrawnAt });
     expect(back.signatures.map((s: Doc) => s.meaning)).toEqual(["approved_for_clinical_use", "approved_for_clinical_use"]);
-    expect(await counts()).toEqual({ ...before, signatures: before.signatures + 2, audit_events: before.audit_events + 4, outbox: before.outbox + 1 });
+    expect(await counts()).toEqual({ ...before, signatures: before.signatures + 2, audit_events: before.audit_events + 4, outbox: before.outbox + 1 + (await lisContacts()) });
     const [mail] = await outboxOf(current.id, "version.withdrawn");
     expect(mail.recipients.sort()).toEqual([...(await activeEmails("director")), ...(await activeEmails("scientist"))].sort());
   });
@@ -398,8 +403,9 @@ describe("POST /api/v1/interval-versions/{id}/withdraw", () => {
     const before = await counts();
     await ok(await post(`/api/v1/interval-versions/${id}/withdraw`, directors.third.cookie, { password: PASSWORD, reason: "Method discontinued." }));
     expect((await pool.query("SELECT count(*)::int AS n FROM interval_versions v JOIN analytes a ON a.id = v.analyte_id WHERE a.code = $1 AND v.state = 'in_force'", [CODE])).rows[0].n).toBe(0);
-    expect(await counts()).toEqual({ ...before, signatures: before.signatures + 1, audit_events: before.audit_events + 2, outbox: before.outbox + 1 });
-    const [mail] = await outboxOf(id, "version.withdrawn");
+    expect(await counts()).toEqual({ ...before, signatures: before.signatures + 1, audit_events: before.audit_events + 2, outbox: before.outbox + 1 + (await lisContacts()) });
+    const directorsNow = await activeEmails("director");
+    const mail = (await outboxOf(id, "version.withdrawn")).find((m) => m.recipients.includes(directorsNow[0]))!;
     expect(mail.text).toContain(`No interval of ${CODE} is in force now`);
     // A withdrawn version stays withdrawn.
     expect(await problem(await post(`/api/v1/interval-versions/${id}/withdraw`, directors.third.cookie, { password: PASSWORD, reason: "again" }))).toEqual({

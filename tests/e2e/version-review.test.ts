@@ -60,6 +60,8 @@ describe("a director reviews a version awaiting sign-off", () => {
     expect(order).toEqual(["changes", "individuals", "partitions", "estimates", "warnings", "return-panel", "signature-panel"]);
     expect(await page.getByTestId("comparison-table").textContent()).toContain("This version");
     expect(await page.getByTestId("flag-changes").textContent()).toMatch(/donors in the study/);
+    // Beside the donors, the patient scores of the last 90 days re-flagged, in a sentence.
+    expect(await page.getByTestId("recent-score-changes").textContent()).toMatch(/(Of [\d,]+ scores?|No patient scores were logged) in the last 90 days/);
     // The meaning is stated in words before the password is asked.
     const panel = page.getByTestId("signature-panel");
     expect(await panel.getByTestId("signature-meaning").textContent()).toBe("Approved for clinical use");

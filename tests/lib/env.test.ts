@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { demoMode, parseEngineEnv, parseEnv, parseStartEnv } from "@/lib/env";
+import { demoMode, parseDemoLisEnv, parseEngineEnv, parseEnv, parseStartEnv } from "@/lib/env";
 
 const valid = {
   DATABASE_URL: "postgres://postgres:pw@127.0.0.1:54329/bellwether",
@@ -115,6 +115,27 @@ describe("parseStartEnv and demo mode", () => {
     );
     expect(() => parseStartEnv({ DATABASE_URL: external, BELLWETHER_MIGRATION_URL: "mysql://x" })).toThrow(
       "  - BELLWETHER_MIGRATION_URL: BELLWETHER_MIGRATION_URL must be a postgres:// connection string",
+    );
+  });
+});
+
+describe("the demo LIS connection's variables", () => {
+  const key = "bwk_test-only-demo-lis-key-for-bellwether-tests";
+
+  it("reads a key of the right form and a whole rate", () => {
+    expect(parseDemoLisEnv({})).toEqual({ key: undefined, ratePerMinute: undefined });
+    expect(parseDemoLisEnv({ BELLWETHER_DEMO_LIS_KEY: key, BELLWETHER_DEMO_LIS_RATE_PER_MINUTE: "120" })).toEqual({ key, ratePerMinute: 120 });
+    expect(parseStartEnv({ BELLWETHER_DEMO_LIS_KEY: key }).BELLWETHER_DEMO_LIS_KEY).toBe(key);
+  });
+
+  it("refuses, naming the variable, a key of another form or a rate that is not a whole number from 1", () => {
+    expect(() => parseStartEnv({ BELLWETHER_DEMO_LIS_KEY: "secret" })).toThrow(
+      'BELLWETHER_DEMO_LIS_KEY must be "bwk_" followed by 43 base64url characters (A-Z, a-z, 0-9, - and _)',
+    );
+    expect(() => parseDemoLisEnv({ BELLWETHER_DEMO_LIS_KEY: `${key}x` })).toThrow("BELLWETHER_DEMO_LIS_KEY must be");
+    expect(() => parseDemoLisEnv({ BELLWETHER_DEMO_LIS_RATE_PER_MINUTE: "0" })).toThrow("BELLWETHER_DEMO_LIS_RATE_PER_MINUTE must be at least 1");
+    expect(() => parseDemoLisEnv({ BELLWETHER_DEMO_LIS_RATE_PER_MINUTE: "1.5" })).toThrow(
+      "BELLWETHER_DEMO_LIS_RATE_PER_MINUTE must be a whole number of requests a minute",
     );
   });
 });

@@ -12,6 +12,7 @@ import { can } from "@/lib/auth/roles";
 import { requirePageCaller } from "@/lib/auth/session";
 import { formatDate, formatDateTime } from "@/lib/format";
 import { scopeLabel } from "@/lib/versions/comparison";
+import { recentScoresSentences } from "@/lib/versions/recent-scores";
 import { loadVersionReview } from "../../../../(lab)/versions/[id]/load";
 
 export const metadata: Metadata = { title: "Sign-off record" };
@@ -100,6 +101,7 @@ export default async function VersionRecordPage({ params }: { params: Promise<{ 
                 ? `version ${comparison.inForce.number}: ${comparison.donorFlagChanges.changed} of ${comparison.donorFlagChanges.total} donors would change flag`
                 : "no earlier version in force",
             ],
+            [`Patient scores, last ${comparison.recentScores.days} days`, <span key="r" data-testid="record-recent-scores">{recentScoresSentences(comparison.recentScores).join(" ")}</span>],
           ]}
         />
         {review.uploads.length > 0 ? (
