@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { AuditEventList } from "@/components/audit/audit-event-list";
 import { ReviewsDueList } from "@/components/versions/reviews-due-list";
+import { Button } from "@/components/ui/button";
 import { PageHeader, Panel } from "@/components/ui/panel";
 import { db } from "@/db/client";
 import { listAuditEvents } from "@/db/queries/audit";
@@ -41,6 +42,32 @@ export default async function OverviewPage() {
         lead={`Signed in as ${ROLE_LABELS[caller.role].toLowerCase()}. Bellwether keeps the laboratory's reference intervals: how they were established, who signed them off, and how a patient value sits against them.`}
       />
       <div className="grid gap-5 lg:grid-cols-2">
+        {caller.role === "clinician" ? (
+          <Panel title="Score a patient value" className="lg:col-span-2">
+            <form action="/score" method="get" role="search" aria-label="Find an analyte to score" className="flex flex-wrap items-end gap-3">
+              <div className="min-w-0 flex-1 space-y-1">
+                <label htmlFor="overview-analyte-search" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
+                  Analyte
+                </label>
+                <input
+                  id="overview-analyte-search"
+                  name="q"
+                  type="search"
+                  autoComplete="off"
+                  maxLength={64}
+                  placeholder="e.g. potassium, K or 2823-3"
+                  aria-describedby="overview-analyte-search-hint"
+                  className="block w-full rounded-md border border-ink-300 bg-white px-2.5 py-1.5 text-sm text-ink-900 shadow-xs focus:border-tide-500 focus:outline-none focus:ring-1 focus:ring-tide-500"
+                />
+              </div>
+              <Button type="submit">Find and score</Button>
+            </form>
+            <p id="overview-analyte-search-hint" className="mt-1 text-xs text-ink-500 [&_a]:underline">
+              By name, code or LOINC code. Or open the <Link href="/intervals">intervals in force</Link>, or score a{" "}
+              <Link href="/score?mode=panel">panel of several analytes</Link>.
+            </p>
+          </Panel>
+        ) : null}
         {reviewsDue ? (
           <Panel title="Reviews coming due" className="lg:col-span-2">
             <ReviewsDueList rows={reviewsDue} />

@@ -24,7 +24,7 @@ export function PageHeader({ title, lead, actions }: { title: string; lead?: Rea
     <div className="mb-5 flex flex-wrap items-end justify-between gap-3">
       <div>
         <h1>{title}</h1>
-        {lead ? <p className="mt-1 max-w-3xl text-sm text-ink-600">{lead}</p> : null}
+        {lead ? <p className="mt-1 max-w-3xl text-sm text-ink-600 [&_a]:underline">{lead}</p> : null}
       </div>
       {actions}
     </div>

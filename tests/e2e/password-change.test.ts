@@ -135,7 +135,7 @@ describe("the first administrator of a real installation", () => {
     await choosePassword(page, password!, "noemi-own-admin-password");
     await page.waitForURL(`${BASE_URL}/`);
     const labels = (await page.getByRole("navigation", { name: "Main" }).getByRole("link").allTextContents()).map((t) => t.trim());
-    expect(labels).toEqual(["Overview", "Users", "Outbox", "Audit trail", "Account"]);
+    expect(labels).toEqual(["Overview", "Users", "LIS connections", "Outbox", "Audit trail", "Intervals", "Score", "Account"]);
     await screenshot(page, "first-admin-overview");
     await context.close();
   });

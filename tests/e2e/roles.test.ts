@@ -15,7 +15,20 @@ const UX_NAVIGATION: Record<Role, string[]> = {
  * The sections whose pages exist so far; each later capability adds its own here. The sidebar
  * must show exactly UX.md's items among these, in UX.md's order.
  */
-const BUILT_SECTIONS = ["Overview", "Users", "LIS connections", "Outbox", "Sign-off queue", "Studies", "Adoption checks", "Analytes", "Audit trail", "Account"];
+const BUILT_SECTIONS = [
+  "Overview",
+  "Users",
+  "LIS connections",
+  "Outbox",
+  "Sign-off queue",
+  "Studies",
+  "Adoption checks",
+  "Analytes",
+  "Intervals",
+  "Score",
+  "Audit trail",
+  "Account",
+];
 
 let browser: Browser;
 beforeAll(async () => {

@@ -75,13 +75,23 @@ describe("authorize", () => {
 });
 
 describe("navigation", () => {
-  it("shows each role only the sections it may use", () => {
-    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/lis-connections", "/admin/outbox", "/audit", "/account"]);
-    // UX.md: Studies and Analytes for the scientist and the director only, Studies first;
-    // issue 8: the director's Sign-off queue right after the overview, Adoption checks right after Studies.
-    expect(navigationFor("director").map((i) => i.href)).toEqual(["/", "/signoff", "/studies", "/adoption-checks", "/analytes", "/audit", "/account"]);
-    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/adoption-checks", "/analytes", "/account"]);
-    expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/account"]);
+  it("shows each role only the sections it may use, in UX.md's order for the role", () => {
+    // UX.md, "Navigation by role (sidebar order)", written out; issue 8 put the director's and the
+    // scientist's Adoption checks right after Studies. The admins' LIS connections come between Users and Outbox.
+    expect(navigationFor("admin").map((i) => i.href)).toEqual(["/", "/admin/users", "/admin/lis-connections", "/admin/outbox", "/audit", "/intervals", "/score", "/account"]);
+    expect(navigationFor("director").map((i) => i.href)).toEqual([
+      "/",
+      "/signoff",
+      "/studies",
+      "/adoption-checks",
+      "/analytes",
+      "/intervals",
+      "/score",
+      "/audit",
+      "/account",
+    ]);
+    expect(navigationFor("scientist").map((i) => i.href)).toEqual(["/", "/studies", "/adoption-checks", "/analytes", "/intervals", "/score", "/account"]);
+    expect(navigationFor("clinician").map((i) => i.href)).toEqual(["/", "/score", "/intervals", "/account"]);
   });
 });
 
