@@ -144,11 +144,11 @@ export const CAUTION_TEXTS: Readonly<Record<CautionCode, string>> = {
   "tail-extrapolated":
     "The value lies further out than the reference data reached, so its z-score and percentile extend the fitted distribution past the data it was built from and are less certain.",
   "outside-reference-data":
-    "The value is outside the range of the reference results, so its percentile (and z-score) is only a bound, given with percentileBound: the true position is further out.",
+    "The value is outside the range of the reference results, so its percentile (and z-score) can only be given as a bound (below or above the value shown): the true position is further out.",
   "unit-converted":
     "The value was converted to the interval's unit before scoring; if the result looks unexpected, check that the unit sent matches the unit measured.",
   "value-censored":
-    "The result was reported beyond the measuring range (\"<\" or \">\") and scored at that limit, so the true z-score and percentile are further out than shown, as percentileBound says.",
+    "The result was reported beyond the measuring range (\"<\" or \">\") and scored at that limit, so the true z-score and percentile are further out than shown (the percentile is a bound).",
   "review-overdue": REVIEW_OVERDUE_CAUTION.text,
   "partition-chosen":
     "The interval was chosen by the sex or age given with the request; if they are wrong, so is the interval used.",
