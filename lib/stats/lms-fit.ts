@@ -34,14 +34,16 @@ export const LMS_MIN_DONORS = 50;
 /** Spline intervals of each curve (27 coefficients per curve). */
 export const LMS_DEFAULT_INTERVALS = 24;
 /** The smoothing grid: λ = n·10^g, g = LMS_GRID_FROM, … + 0.5, …, LMS_GRID_TO. */
-export const LMS_GRID_FROM = -9;
-export const LMS_GRID_TO = 1;
+export const LMS_GRID_FROM = -8;
+export const LMS_GRID_TO = 0;
 const GRID_STEP = 0.5;
 const GRID: readonly number[] = Array.from(
   { length: Math.round((LMS_GRID_TO - LMS_GRID_FROM) / GRID_STEP) + 1 },
   (_, i) => LMS_GRID_FROM + i * GRID_STEP,
 );
 export const LMS_DEFAULT_SEED = 1;
+/** GAIC(3): the penalty per degree of freedom used by default. */
+export const LMS_DEFAULT_CRITERION_PENALTY = 3;
 
 export interface LmsFitOptions {
   /** Seed of the restart check (default 1). */
@@ -405,7 +407,7 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
   const rng = createRandom(seed);
   const intervals = options.intervals ?? LMS_DEFAULT_INTERVALS;
   const n = ages.length;
-  const kappa = options.criterionPenalty ?? Math.log(n);
+  const kappa = options.criterionPenalty ?? LMS_DEFAULT_CRITERION_PENALTY;
   if (!(Number.isFinite(kappa) && kappa > 0)) {
     throw new StatsInputError(`the criterion's penalty must be a positive number (got ${kappa})`);
   }
@@ -438,12 +440,12 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
   const top = GRID.length - 1;
   const idx = [top, Math.round(top / 2), top]; // L and S smoothest, M in the middle
   let best = evaluateAt(idx, startValues(design, 0));
-  // Coordinate search: M, S, L in turn. From the current point each curve's smoothing walks
-  // along the grid both ways (each fit starting from its neighbour's) and stops once the
-  // criterion is worse than the best by more than WALK_SLACK: a walk that only continued while
-  // the criterion fell would stop on the flat smooth end, where a curve is already a straight
-  // line in τ. Sweeps repeat until one moves nothing.
-  const WALK_SLACK = 2;
+  // Coordinate search: M, S, L in turn, each curve's smoothing moved along its grid with the
+  // other two held, each fit starting from its neighbour's. The first sweep scans each whole
+  // grid (the criterion is flat over the smooth end, where a curve is already a straight line
+  // in τ, so a walk that stops when the criterion rises can stop short); later sweeps look
+  // LOCAL_SPAN steps either way. Sweeps repeat until one moves nothing.
+  const LOCAL_SPAN = 2;
   for (let sweep = 0; sweep < 6; sweep++) {
     let moved = false;
     for (const c of [1, 2, 0]) {
@@ -452,7 +454,8 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
       let choice = origin;
       for (const dir of [-1, 1]) {
         let from = centre.state.theta;
-        for (let g = origin + dir; g >= 0 && g <= top; g += dir) {
+        const end = sweep === 0 ? (dir < 0 ? 0 : top) : Math.max(0, Math.min(top, origin + dir * LOCAL_SPAN));
+        for (let g = origin + dir; dir < 0 ? g >= end : g <= end; g += dir) {
           const trialIdx = idx.slice();
           trialIdx[c] = g;
           const p = evaluateAt(trialIdx, from);
@@ -460,8 +463,6 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
           if (p.gaic < best.gaic - 1e-9) {
             best = p;
             choice = g;
-          } else if (p.gaic > best.gaic + WALK_SLACK) {
-            break;
           }
         }
       }
