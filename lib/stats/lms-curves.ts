@@ -5,7 +5,7 @@
  */
 import normal from "@stdlib/stats-base-dists-normal";
 import { lmsDiagnostics, type LmsDiagnostics } from "./lms-diagnostics";
-import { fitLms, type LmsFit, type LmsFitOptions } from "./lms-fit";
+import { fitLms, LMS_MIN_DONORS, type LmsFit, type LmsFitOptions } from "./lms-fit";
 import { lmsAt } from "./lms-model";
 import { lmsValueAtZ } from "./lms-z";
 import { assertFiniteSample, StatsInputError } from "./validate";
@@ -63,15 +63,24 @@ export function estimateLmsCurves(
   const at = [...options.at];
   if (at.length === 0) throw new StatsInputError("give at least one age at which to read the curves");
   assertFiniteSample(at, "requested ages");
-  const fit = fitLms(ages, values, options);
-  const { model } = fit;
+  assertFiniteSample(ages, "ages", LMS_MIN_DONORS);
+  // The range is the donors' before the fit, so a request outside it costs no fit.
+  let ageMin = Infinity;
+  let ageMax = -Infinity;
+  for (const a of ages) {
+    if (a < ageMin) ageMin = a;
+    if (a > ageMax) ageMax = a;
+  }
+  if (!(ageMax > ageMin)) throw new StatsInputError("all donors have the same age; curves in age need a spread of ages");
   for (const a of at) {
-    if (a < model.ageMin || a > model.ageMax) {
+    if (a < ageMin || a > ageMax) {
       throw new StatsInputError(
-        `age ${a} is outside the donors' ages, ${model.ageMin} to ${model.ageMax} years; the curves are not extrapolated`,
+        `age ${a} is outside the donors' ages, ${ageMin} to ${ageMax} years; the curves are not extrapolated`,
       );
     }
   }
+  const fit = fitLms(ages, values, options);
+  const { model } = fit;
   const diagnostics = lmsDiagnostics(model, ages, values);
   const warnings: string[] = [];
   if (!fit.converged) warnings.push("the penalised-likelihood fit did not converge; the curves may be unreliable");
