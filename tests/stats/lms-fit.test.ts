@@ -75,6 +75,9 @@ describe("fitLms", () => {
     expect(() => fitLms(ages.map(() => 4), values)).toThrow(
       new StatsInputError("all donors have the same age; curves in age need a spread of ages"),
     );
+    expect(() => fitLms(ages, values, { intervals: 2.5 })).toThrow(
+      new StatsInputError("the number of spline intervals must be an integer from 4 to 200 (got 2.5)"),
+    );
     expect(() => fitLms(ages, values, { criterionPenalty: 0 })).toThrow(
       new StatsInputError("the criterion's penalty must be a positive number (got 0)"),
     );
