@@ -14,7 +14,7 @@
  */
 import { z } from "zod";
 import { bsplineRow, bsplineValue } from "./cubic-bspline";
-import type { LmsParameters } from "./lms-z";
+import { lmsCentile, lmsZ, type LmsParameters } from "./lms-z";
 import { assertFiniteNumber, StatsInputError } from "./validate";
 
 const finite = z.number().refine(Number.isFinite, "must be a finite number");
@@ -71,4 +71,28 @@ export function lmsAt(model: LmsModel, ageYears: number): LmsParameters {
     M: Math.exp(bsplineValue(model.logM, row)),
     S: Math.exp(bsplineValue(model.logS, row)),
   };
+}
+
+/**
+ * z of a value at an exact age under stored LMS curves: METHODS.md §9's formula at
+ * {@link lmsAt}'s L, M and S (the L = 0 branch for |L| < 1e−6).
+ * @see Cole TJ, Green PJ. Stat Med 1992;11:1305–1319; METHODS.md §9.
+ * Complexity O(1).
+ * Throws StatsInputError as lmsAt (age outside the curves) and lmsZ (a value that is not positive).
+ * @example lmsZAt(model, 4.5, 250) // 1.32…
+ */
+export function lmsZAt(model: LmsModel, ageYears: number, value: number): number {
+  return lmsZ(lmsAt(model, ageYears), value);
+}
+
+/**
+ * The value at a centile (0 < centile < 100) at an exact age under stored LMS curves; null where
+ * 1 + L·S·z ≤ 0 (no value has that z; not clamped).
+ * @see Cole TJ, Green PJ. Stat Med 1992;11:1305–1319; METHODS.md §9.
+ * Complexity O(1).
+ * Throws StatsInputError as lmsAt and lmsCentile.
+ * @example lmsCentileAt(model, 4.5, 97.5) // 262.1…
+ */
+export function lmsCentileAt(model: LmsModel, ageYears: number, centile: number): number | null {
+  return lmsCentile(lmsAt(model, ageYears), centile);
 }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { lmsAt, lmsModelSchema, type LmsModel } from "@/lib/stats/lms-model";
+import { lmsAt, lmsCentileAt, lmsModelSchema, lmsZAt, type LmsModel } from "@/lib/stats/lms-model";
 import { StatsInputError } from "@/lib/stats/validate";
 
 const constant = (v: number, k: number) => new Array<number>(k).fill(v);
@@ -34,6 +34,15 @@ describe("the stored LMS model", () => {
     expect(lmsAt(model, 16).L).toBeCloseTo(1, 14);
     // With ageMin 1 and ageMax 9: τ = (√age − 1)/2, so age 4 gives 0.5.
     expect(lmsAt({ ...model, ageMin: 1, ageMax: 9 }, 4).L).toBeCloseTo(0.5, 14);
+  });
+
+  it("scores a value at an exact age with the §9 formulas", () => {
+    // Constant curves L = 0.3, M = 150, S = 0.12: z of 180 is ((180/150)^0.3 − 1)/(0.3·0.12)
+    // (R: ((180/150)^0.3 - 1)/(0.3*0.12) = 1.56166578998), at any age in range.
+    expect(lmsZAt(FLAT, 7.25, 180)).toBeCloseTo(1.56166578998, 10);
+    // The 97.5th centile: 150·(1 + 0.3·0.12·1.959964)^(1/0.3) (§9, z = qnorm(0.975)).
+    expect(lmsCentileAt(FLAT, 7.25, 97.5)).toBeCloseTo(150 * (1 + 0.3 * 0.12 * 1.959963984540054) ** (1 / 0.3), 9);
+    expect(() => lmsZAt(FLAT, 20, 180)).toThrow(new StatsInputError("age 20 years is outside the curves' age range, 0 to 16 years"));
   });
 
   it("survives JSON and gives the same numbers to the last bit", () => {
