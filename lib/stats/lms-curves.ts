@@ -87,6 +87,11 @@ export function estimateLmsCurves(
   if (fit.restarts.improved) {
     warnings.push("a restart from other start values found a better fit than the first: the likelihood has several optima, read the curves with care");
   }
+  if (fit.edfBudget.binding) {
+    warnings.push(
+      `with ${fit.n} donors the curves were held to ${Math.round(fit.edfBudget.limit * 10) / 10} effective degrees of freedom in all (Bellwether allows one per 10 donors); the criterion wanted more, so more donors would give more detailed curves`,
+    );
+  }
   for (const c of ["L", "M", "S"] as const) {
     if (fit.smoothing[c].atGridEnd === "roughest") {
       warnings.push(`the ${c} curve took the least smoothing Bellwether allows; it may follow noise rather than age`);

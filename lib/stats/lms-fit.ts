@@ -50,6 +50,13 @@ const GRID: readonly number[] = Array.from(
 export const LMS_DEFAULT_SEED = 1;
 /** GAIC(3): the penalty per degree of freedom used by default. */
 export const LMS_DEFAULT_CRITERION_PENALTY = 3;
+/**
+ * The curves may spend at most one effective degree of freedom per 10 donors in all (never
+ * less than 6.5, which three straight lines in τ need): with few donors the criterion alone can
+ * let S follow single donors. Bellwether's rule, stated, not from a source.
+ */
+export const LMS_DONORS_PER_EDF = 10;
+export const LMS_MIN_EDF_BUDGET = 6.5;
 
 export interface LmsFitOptions {
   /** Seed of the restart check (default 1). */
@@ -81,6 +88,8 @@ export interface LmsFit {
   fits: number;
   seed: number;
   restarts: { tried: number; improved: boolean };
+  /** The most edf the curves could spend together, and whether the criterion wanted more. */
+  edfBudget: { limit: number; binding: boolean };
 }
 
 /** Parameters are interleaved by coefficient: θ[3r + c] is coefficient r of curve c (L, ln M, ln S). */
@@ -430,7 +439,17 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
     state: State;
     edf: number[];
     gaic: number;
+    /** Within the budget of degrees of freedom (at least LMS_DONORS_PER_EDF donors each). */
+    eligible: boolean;
   }
+  const edfBudget = Math.max(LMS_MIN_EDF_BUDGET, n / LMS_DONORS_PER_EDF);
+  let overBudget = false;
+  // An eligible point beats an ineligible one; among ineligible ones the fewer edf win.
+  const better = (p: Point, q: Point): boolean => {
+    if (p.eligible !== q.eligible) return p.eligible;
+    if (!p.eligible) return p.edf[0] + p.edf[1] + p.edf[2] < q.edf[0] + q.edf[1] + q.edf[2];
+    return p.gaic < q.gaic - 1e-9;
+  };
   const cache = new Map<string, Point>();
   let fits = 0;
   const evaluateAt = (idx: readonly number[], from: Float64Array): Point => {
@@ -443,7 +462,7 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
     const edf = edfOf(design, state.theta, lambdas);
     const total = edf[0] + edf[1] + edf[2];
     const gaic = Number.isFinite(total) && Number.isFinite(state.logLik) ? -2 * state.logLik + kappa * total : Infinity;
-    const point = { state, edf, gaic };
+    const point = { state, edf, gaic, eligible: total <= edfBudget };
     cache.set(key, point);
     return point;
   };
@@ -471,7 +490,8 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
           trialIdx[c] = g;
           const p = evaluateAt(trialIdx, from);
           from = p.state.theta;
-          if (p.gaic < best.gaic - 1e-9) {
+          if (!p.eligible && p.gaic < best.gaic - 1e-9) overBudget = true;
+          if (better(p, best)) {
             best = p;
             choice = g;
           }
@@ -495,7 +515,7 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
     fits++;
     if (state.penalised > best.state.penalised + 1e-6 * Math.max(1, Math.abs(best.state.penalised))) {
       const edf = edfOf(design, state.theta, lambdas);
-      best = { state, edf, gaic: -2 * state.logLik + kappa * (edf[0] + edf[1] + edf[2]) };
+      best = { state, edf, gaic: -2 * state.logLik + kappa * (edf[0] + edf[1] + edf[2]), eligible: best.eligible };
       improved = true;
     }
   }
@@ -527,6 +547,7 @@ export function fitLms(ages: readonly number[], values: readonly number[], optio
     fits,
     seed,
     restarts: { tried, improved },
+    edfBudget: { limit: edfBudget, binding: overBudget },
   };
 }
 

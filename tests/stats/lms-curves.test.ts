@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { estimateLmsCurves } from "@/lib/stats/lms-curves";
 import { lmsCentile } from "@/lib/stats/lms-z";
+import { createRandom } from "@/lib/stats/random";
 import { StatsInputError } from "@/lib/stats/validate";
 import { lmsDonors } from "@/tests/support/lms-fixtures";
 
@@ -26,6 +27,20 @@ describe("estimateLmsCurves", () => {
     expect(diagnostics.z).toHaveLength(3000);
     // Ages are uniform from birth: the first √age band (to 0.13 years) holds about 21 donors.
     expect(doc.warnings.every((w) => /hold only \d+ donors/.test(w))).toBe(true);
+  }, 60_000);
+
+  it("holds the curves to one degree of freedom per 10 donors, and says so", () => {
+    // 80 donors, values uniform on [50, 70] from the seeded generator: left alone, GAIC(3) lets
+    // the S curve follow single donors (about 18 edf on 50 donors in a trial run).
+    const rng = createRandom(3);
+    const a = Array.from({ length: 80 }, () => 18 * rng.nextFloat());
+    const v = a.map(() => 50 + 20 * rng.nextFloat());
+    const { document: doc, fit } = estimateLmsCurves(a, v, { at: [9] });
+    expect(fit.edfBudget).toEqual({ limit: 8, binding: true });
+    expect(doc.edf.L + doc.edf.M + doc.edf.S).toBeLessThanOrEqual(8);
+    expect(doc.warnings).toContain(
+      "with 80 donors the curves were held to 8 effective degrees of freedom in all (Bellwether allows one per 10 donors); the criterion wanted more, so more donors would give more detailed curves",
+    );
   }, 60_000);
 
   it("refuses ages outside the donors' range and an empty list of ages", () => {
