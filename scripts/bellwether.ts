@@ -2,6 +2,7 @@
  * Bellwether's command line for batch work by laboratory informaticians.
  *   npm run -s bellwether -- estimate FILE [--outliers …] [--screening …] [--transform …] [--seed N]
  *   npm run -s bellwether -- score --model MODEL.json VALUE…
+ *   npm run -s bellwether -- lms FILE --at AGES [--seed N]
  * Each command prints one result to stdout. Bad input prints one line to stderr and exits 2; a
  * crash says it is a bug in Bellwether (the stack with --debug) and exits 1.
  */
