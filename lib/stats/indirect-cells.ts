@@ -153,7 +153,8 @@ export function indirectCells(values: readonly RoutineValue[]): IndirectCells {
   const K = lowOpen + k + highOpen;
   const edges = new Float64Array(K + 1);
   if (lowOpen) edges[0] = 0;
-  for (let j = 0; j <= k; j++) edges[lowOpen + j] = origin + j * width;
+  // Edges rounded to 12 significant digits, so that 4.35 does not print as 4.3500000000000005.
+  for (let j = 0; j <= k; j++) edges[lowOpen + j] = Number((origin + j * width).toPrecision(12));
   if (highOpen) edges[K] = Number.POSITIVE_INFINITY;
   const counts = new Float64Array(K);
   const cellOf = new Int32Array(n);
@@ -162,18 +163,18 @@ export function indirectCells(values: readonly RoutineValue[]): IndirectCells {
     const v = values[i];
     let c: number;
     if (typeof v === "number") {
-      if (v < origin) {
+      if (v < edges[lowOpen]) {
         c = 0;
         folded++;
-      } else if (v >= top) {
+      } else if (v >= edges[lowOpen + k]) {
         c = K - 1;
         if (aboveCount === 0 || v < aboveLimit) folded++;
       } else {
-        let j = Math.floor((v - origin) / width);
+        let j = lowOpen + Math.floor((v - origin) / width);
         // Rounding in (v − origin)/width can land a value one cell off.
-        while (j > 0 && v < origin + j * width) j--;
-        while (j < k - 1 && v >= origin + (j + 1) * width) j++;
-        c = lowOpen + j;
+        while (j > lowOpen && v < edges[j]) j--;
+        while (j < lowOpen + k - 1 && v >= edges[j + 1]) j++;
+        c = j;
       }
     } else {
       c = v.side === "below" ? 0 : K - 1;

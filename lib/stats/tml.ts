@@ -3,7 +3,7 @@
  * results, separated from the diseased ones, after Arzideh et al.
  */
 import chisquare from "@stdlib/stats-base-dists-chisquare";
-import normal from "@stdlib/stats-base-dists-normal";
+import erfc from "@stdlib/math-base-special-erfc";
 import { boxCoxFitFromTable, boxCoxOfLog } from "./box-cox";
 import type { IndirectCells } from "./indirect-cells";
 import { nelderMead } from "./nelder-mead";
@@ -97,10 +97,6 @@ interface Work {
 
 const SQRT1_2 = Math.SQRT1_2;
 
-function stdCdf(z: number): number {
-  return normal.cdf(z, 0, 1);
-}
-
 /** Fills z, Φ(z) for z ≤ 0 and Φ(−z) for z > 0 at edges [from, to]. */
 function fillEdges(cells: IndirectCells, w: Work, d: PowerNormal, from: number, to: number): void {
   const { edges } = cells;
@@ -113,16 +109,11 @@ function fillEdges(cells: IndirectCells, w: Work, d: PowerNormal, from: number, 
     const z = (y - d.mu) / d.sigma;
     w.z[e] = z;
     if (z <= 0) {
-      w.lowerTail[e] = z === Number.NEGATIVE_INFINITY ? 0 : 0.5 * erfcOf(-z * SQRT1_2);
+      w.lowerTail[e] = z === Number.NEGATIVE_INFINITY ? 0 : 0.5 * erfc(-z * SQRT1_2);
     } else {
-      w.upperTail[e] = z === Number.POSITIVE_INFINITY ? 0 : 0.5 * erfcOf(z * SQRT1_2);
+      w.upperTail[e] = z === Number.POSITIVE_INFINITY ? 0 : 0.5 * erfc(z * SQRT1_2);
     }
   }
-}
-
-// Φ through @stdlib's normal CDF keeps one dependency; erfc(t) = 2·Φ(−t√2).
-function erfcOf(t: number): number {
-  return 2 * stdCdf(-t / SQRT1_2);
 }
 
 /** P(edge_j ≤ X < edge_k) from the filled tails, without cancellation in either tail. */
