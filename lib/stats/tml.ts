@@ -195,19 +195,25 @@ function fitInterval(
   to: number,
   start: PowerNormal,
 ): { d: PowerNormal; logLik: number } {
-  const f = (p: readonly number[]) => -truncatedLogLik(cells, w, { lambda: p[0], mu: p[1], sigma: Math.exp(p[2]) }, from, to);
+  let inside = 0;
+  for (let j = from; j < to; j++) inside += cells.counts[j];
+  // Per value, so that the stopping rule means the same at any n.
+  const f = (p: readonly number[]) =>
+    -truncatedLogLik(cells, w, { lambda: p[0], mu: p[1], sigma: Math.exp(p[2]) }, from, to) / inside;
   let x = [start.lambda, start.mu, Math.log(start.sigma)];
   let best = Number.POSITIVE_INFINITY;
-  // One restart from the optimum found: Nelder–Mead can stall on a ridge (λ against μ).
-  for (let round = 0; round < 2; round++) {
-    const r = nelderMead(f, x, { steps: [0.3, 0.3 * Math.exp(x[2]), 0.2], tolerance: 1e-11, maxEvaluations: 500 });
-    if (r.fx < best - 1e-9 || round === 0) {
+  // Restarts from the optimum found until it stops improving: Nelder–Mead can stall on the
+  // ridge of λ against μ.
+  for (let round = 0; round < 4; round++) {
+    const r = nelderMead(f, x, { steps: [0.2, 0.2 * Math.exp(x[2]), 0.1], tolerance: 1e-13, maxEvaluations: 600 });
+    const improved = r.fx < best - 1e-12;
+    if (r.fx < best) {
       best = r.fx;
       x = r.x;
-    } else {
-      break;
     }
+    if (!improved) break;
   }
+  best *= inside;
   return { d: { lambda: x[0], mu: x[1], sigma: Math.exp(x[2]) }, logLik: -best };
 }
 
