@@ -217,7 +217,7 @@ function bootstrapLimits(
       counts.fill(0);
       for (let i = 0; i < sample.length; i++) counts[sample[i]]++;
       try {
-        const r = truncatedMaximumLikelihood(resampled, { candidates: near, start: tml.chosen.scaled });
+        const r = truncatedMaximumLikelihood(resampled, { candidates: near, start: tml.chosen.scaled, precision: "resample" });
         return [r.lower, r.upper];
       } catch (e) {
         if (e instanceof StatsInputError) return [null, null];

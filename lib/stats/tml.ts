@@ -85,6 +85,12 @@ export interface TmlOptions {
   candidates?: readonly TmlCandidate[];
   /** Start the fits here (scaled parameters) instead of the moment-based start. */
   start?: PowerNormal;
+  /**
+   * "full" (default): Nelder–Mead to a spread of 1e−13 in the per-value log-likelihood, restarted
+   * until it stops improving; "resample": 1e−10 and one restart, for bootstrap replicates that
+   * start at the chosen fit.
+   */
+  precision?: "full" | "resample";
 }
 
 /** Per-edge state, reused between likelihood evaluations. */
@@ -194,6 +200,7 @@ function fitInterval(
   from: number,
   to: number,
   start: PowerNormal,
+  precision: "full" | "resample" = "full",
 ): { d: PowerNormal; logLik: number } {
   let inside = 0;
   for (let j = from; j < to; j++) inside += cells.counts[j];
@@ -204,8 +211,15 @@ function fitInterval(
   let best = Number.POSITIVE_INFINITY;
   // Restarts from the optimum found until it stops improving: Nelder–Mead can stall on the
   // ridge of λ against μ.
-  for (let round = 0; round < 4; round++) {
-    const r = nelderMead(f, x, { steps: [0.2, 0.2 * Math.exp(x[2]), 0.1], tolerance: 1e-13, maxEvaluations: 600 });
+  const full = precision === "full";
+  for (let round = 0; round < (full ? 4 : 2); round++) {
+    // A resample starts at the chosen fit, so its first simplex is smaller.
+    const step = full || round > 0 ? 1 : 0.25;
+    const r = nelderMead(f, x, {
+      steps: [0.2 * step, 0.2 * step * Math.exp(x[2]), 0.1 * step],
+      tolerance: full ? 1e-13 : 1e-10,
+      maxEvaluations: 600,
+    });
     const improved = r.fx < best - 1e-12;
     if (r.fx < best) {
       best = r.fx;
@@ -345,13 +359,20 @@ export function tmlScale(cells: IndirectCells): number {
 /**
  * Fits one candidate and scores it by the selection criterion.
  */
-function scoreCandidate(cells: IndirectCells, w: Work, cand: TmlCandidate, start: PowerNormal | null, scale: number): TmlCandidateFit | null {
+function scoreCandidate(
+  cells: IndirectCells,
+  w: Work,
+  cand: TmlCandidate,
+  start: PowerNormal | null,
+  scale: number,
+  precision: "full" | "resample",
+): TmlCandidateFit | null {
   const { from, to } = cand;
   let inside = 0;
   for (let j = from; j < to; j++) inside += cells.counts[j];
   if (inside < 20) return null;
   const s = start ?? startingValues(cells, scale, from, to);
-  const { d, logLik } = fitInterval(cells, w, from, to, s);
+  const { d, logLik } = fitInterval(cells, w, from, to, s, precision);
   if (!Number.isFinite(logLik)) return null;
   fillEdges(cells, w, d, from, to);
   const pab = probBetween(w, from, to);
@@ -421,7 +442,7 @@ export function truncatedMaximumLikelihood(cells: IndirectCells, options: TmlOpt
   const candidates = options.candidates ?? all;
   const fits: TmlCandidateFit[] = [];
   for (const cand of candidates) {
-    const r = scoreCandidate(cells, w, cand, options.start ?? null, scale);
+    const r = scoreCandidate(cells, w, cand, options.start ?? null, scale, options.precision ?? "full");
     if (r !== null) fits.push(r);
   }
   if (fits.length === 0) {
