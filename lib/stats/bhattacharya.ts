@@ -25,7 +25,7 @@ export interface BhattacharyaLine {
  * divided by h; bins of unequal width (cells mapped through a Box-Cox transform) keep the same
  * line. The fit is weighted least squares with weights 1/(1/c_k + 1/c_{k+1}), the inverse of
  * the approximate variance of ln c_{k+1} − ln c_k for counts c (METHODS.md §8.3: weight by the
- * bin counts). `use(k)` selects the pairs.
+ * bin counts). `include(b)` selects the pairs by their boundary.
  * @see Bhattacharya CG. A simple method of resolution of a distribution into Gaussian
  *   components. Biometrics 1967;23:115–135.
  * Complexity O(k). Throws StatsInputError when fewer than 3 pairs are usable or the slope is
@@ -36,7 +36,7 @@ export function bhattacharyaLine(
   centres: ArrayLike<number>,
   densities: ArrayLike<number>,
   counts: ArrayLike<number>,
-  use: (boundary: number) => boolean = () => true,
+  include: (boundary: number) => boolean = () => true,
 ): BhattacharyaLine {
   let sw = 0;
   let sb = 0;
@@ -49,7 +49,7 @@ export function bhattacharyaLine(
     const c1 = counts[k + 1];
     if (!(c0 > 0 && c1 > 0 && densities[k] > 0 && densities[k + 1] > 0)) continue;
     const b = (centres[k] + centres[k + 1]) / 2;
-    if (!use(b)) continue;
+    if (!include(b)) continue;
     const d = (Math.log(densities[k + 1]) - Math.log(densities[k])) / (centres[k + 1] - centres[k]);
     const w = 1 / (1 / c0 + 1 / c1);
     sw += w;
