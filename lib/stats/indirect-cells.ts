@@ -81,9 +81,11 @@ export function reportingResolution(sorted: Float64Array): number | null {
  * cell is exactly the probability of the values that round into it.
  *
  * Censored values are kept, never dropped: those below a limit of quantitation ("<L") fill the
- * open cell (0, e₁), whose edge e₁ is the highest such limit (to half a resolution step); a
- * measured value below it is counted there too. Those above ("> U") fill the open top cell.
- * The likelihood of an open cell is a cumulative probability.
+ * open cell (0, L), L the highest such limit; a measured value below L is counted there too.
+ * Those above ("> U", U the lowest such limit) fill the open cell (U, ∞); the regular cells
+ * are cut at L and U, so the first and last may be narrower than the rest. The likelihood of
+ * an open cell is a cumulative probability. Without censoring above, measured values beyond
+ * 4,000 regular cells also go to an open top cell (counted in `foldedIntoOpenCells`).
  * @see Freedman D, Diaconis P. Z Wahrscheinlichkeitstheorie verw Gebiete 1981;57:453–476;
  *   Arzideh F et al. J Lab Med 2009;33:52–66 (a binned, truncated likelihood).
  * Complexity O(n log n) for the sort, O(n + K) otherwise.
@@ -138,23 +140,37 @@ export function indirectCells(values: readonly RoutineValue[]): IndirectCells {
   const half = resolution === null ? 0 : resolution / 2;
   if (resolution !== null) width = Math.max(1, Math.ceil(width / resolution - 1e-9)) * resolution;
 
-  let origin = min - half;
-  if (belowCount > 0) origin = belowLimit - half;
-  if (resolution === null && belowCount === 0) origin = min;
-  if (!(origin > 0)) origin = belowCount > 0 ? belowLimit : Math.min(min, half > 0 ? half : min);
-  let top = aboveCount > 0 ? aboveLimit - half : max;
-  let k = Math.max(1, Math.ceil((top - origin) / width - 1e-9));
-  if (resolution === null && aboveCount === 0 && origin + k * width <= max) k++;
-  k = Math.min(k, MAX_CELLS);
-  top = origin + k * width;
+  // The regular cells: an aligned grid base + j·width (base half a step below the smallest
+  // value, so edges fall half-way between reportable values), cut at the censoring limits.
+  const base = min - half;
+  const lowStart = belowCount > 0 ? belowLimit : base;
+  const tiny = 1e-9 * width;
+  const regularEdges: number[] = [lowStart];
+  let j = Math.floor((lowStart - base) / width) + 1;
+  let capped = false;
+  for (;;) {
+    const e = Number((base + j * width).toPrecision(12));
+    j++;
+    if (aboveCount > 0 ? e >= aboveLimit - tiny : regularEdges[regularEdges.length - 1] > max) break;
+    if (e <= regularEdges[regularEdges.length - 1] + tiny) continue;
+    if (regularEdges.length > MAX_CELLS) {
+      capped = true;
+      break;
+    }
+    regularEdges.push(e);
+  }
+  if (aboveCount > 0 && aboveLimit > regularEdges[regularEdges.length - 1] + tiny) regularEdges.push(aboveLimit);
+  if (regularEdges.length < 2) throw new StatsInputError("the censoring limits leave no room for measured values");
+  const k = regularEdges.length - 1;
+  const top = regularEdges[k];
 
+  // Edges rounded to 12 significant digits, so that 4.35 does not print as 4.3500000000000005.
   const lowOpen = belowCount > 0 ? 1 : 0;
-  const highOpen = aboveCount > 0 || max >= top ? 1 : 0;
+  const highOpen = aboveCount > 0 || capped || max > top ? 1 : 0;
   const K = lowOpen + k + highOpen;
   const edges = new Float64Array(K + 1);
   if (lowOpen) edges[0] = 0;
-  // Edges rounded to 12 significant digits, so that 4.35 does not print as 4.3500000000000005.
-  for (let j = 0; j <= k; j++) edges[lowOpen + j] = Number((origin + j * width).toPrecision(12));
+  for (let r = 0; r <= k; r++) edges[lowOpen + r] = regularEdges[r];
   if (highOpen) edges[K] = Number.POSITIVE_INFINITY;
   const counts = new Float64Array(K);
   const cellOf = new Int32Array(n);
@@ -163,18 +179,23 @@ export function indirectCells(values: readonly RoutineValue[]): IndirectCells {
     const v = values[i];
     let c: number;
     if (typeof v === "number") {
-      if (v < edges[lowOpen]) {
+      if (v < lowStart) {
+        // Below the highest "<L": counted with the censored values (lowOpen is 1 here).
         c = 0;
         folded++;
-      } else if (v >= edges[lowOpen + k]) {
+      } else if (v > top || (v === top && aboveCount === 0)) {
         c = K - 1;
-        if (aboveCount === 0 || v < aboveLimit) folded++;
+        folded++;
       } else {
-        let j = lowOpen + Math.floor((v - origin) / width);
-        // Rounding in (v − origin)/width can land a value one cell off.
-        while (j > lowOpen && v < edges[j]) j--;
-        while (j < lowOpen + k - 1 && v >= edges[j + 1]) j++;
-        c = j;
+        // Binary search for the regular cell [e_r, e_{r+1}) holding v (the last one closed at a limit).
+        let lo = lowOpen;
+        let hi = lowOpen + k - 1;
+        while (lo < hi) {
+          const mid = (lo + hi + 1) >> 1;
+          if (edges[mid] <= v) lo = mid;
+          else hi = mid - 1;
+        }
+        c = lo;
       }
     } else {
       c = v.side === "below" ? 0 : K - 1;

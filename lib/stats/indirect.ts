@@ -36,8 +36,13 @@ export interface IndirectEstimate {
   lambda: number;
   mu: number;
   sigma: number;
-  /** Estimated non-diseased share of all values, 0–1. */
+  /**
+   * Estimated non-diseased share of all values, 0–1 (the estimate N_inside/(N·P_inside) can
+   * exceed 1 by chance when nearly every value is non-diseased; it is reported as 1 then, and
+   * `fractionEstimate` keeps the raw figure).
+   */
   fraction: number;
+  fractionEstimate: number;
   truncation: [number, number];
   chiSquare: number;
   df: number;
@@ -172,7 +177,8 @@ export function indirectReferenceInterval(values: readonly RoutineValue[], optio
     lambda: tml.lambda,
     mu: tml.mu,
     sigma: tml.sigma,
-    fraction: tml.fraction,
+    fraction: Math.min(1, tml.fraction),
+    fractionEstimate: tml.fraction,
     truncation: tml.truncation,
     chiSquare: tml.chiSquare,
     df: tml.df,

@@ -321,10 +321,13 @@ export function tmlCandidates(cells: IndirectCells): TmlCandidate[] {
   };
   const out: TmlCandidate[] = [];
   const seen = new Set<string>();
+  // An interval may start at 0 (the open cell of values censored below) but not end at +∞: its
+  // ends are reported as numbers.
+  const last = Number.isFinite(cells.edges[K]) ? K : K - 1;
   for (let a = 0; a < TML_SHARES.length; a++) {
     const from = nearestEdge(below * (1 - TML_SHARES[a]), 0, mode);
     for (let b = 0; b < TML_SHARES.length; b++) {
-      const to = nearestEdge(below + above * TML_SHARES[b], mode + 1, K);
+      const to = nearestEdge(below + above * TML_SHARES[b], mode + 1, Math.max(mode + 1, last));
       if (to - from < 6) continue;
       const key = `${from}:${to}`;
       if (seen.has(key)) continue;

@@ -59,12 +59,14 @@ const CONTRACT_KEYS = [
   "warnings",
 ];
 
-describe.concurrent("bellwether indirect (as a process)", () => {
-  it("prints one JSON document with the contract's keys, the same for the same seed, through tsx and the built launcher", async () => {
-    const [a, b, built] = await Promise.all([cli([TSH, "--seed", "3"]), cli([TSH, "--seed=3"]), launch([TSH, "--seed", "3"])]);
+// Each run bootstraps 200 replicates: the process runs go one after another, not side by side,
+// to keep the machine free for the rest of the suite.
+describe("bellwether indirect (as a process)", () => {
+  it("prints one JSON document with the contract's keys, the same through tsx and the built launcher", async () => {
+    const a = await cli([TSH, "--seed", "3"]);
+    const built = await launch([TSH, "--seed=3"]);
     expect(a.code).toBe(0);
     expect(a.stderr).toBe("");
-    expect(b.stdout).toBe(a.stdout);
     expect(built).toEqual(a);
     const doc = JSON.parse(a.stdout);
     expect(Object.keys(doc)).toEqual(CONTRACT_KEYS);
@@ -72,7 +74,8 @@ describe.concurrent("bellwether indirect (as a process)", () => {
   }, 180_000);
 
   it("exits 2 with one line on stderr for bad input, through the launcher too", async () => {
-    const [r, built] = await Promise.all([cli([FIX("estimate-no-value-column.csv")]), launch([FIX("estimate-no-value-column.csv")])]);
+    const r = await cli([FIX("estimate-no-value-column.csv")]);
+    const built = await launch([FIX("estimate-no-value-column.csv")]);
     expect(r).toEqual({ code: 2, stdout: "", stderr: expect.stringMatching(/^bellwether: .*has no "value" column \(columns: donor, result\)\n$/) });
     expect(built).toEqual(r);
   }, 120_000);
@@ -91,7 +94,7 @@ describe("bellwether indirect (in-process)", () => {
     expect(doc.lowerCi[0]).toBeLessThanOrEqual(doc.lowerCi[1]);
     expect(doc.upperCi[0]).toBeLessThanOrEqual(doc.upperCi[1]);
     expect(doc.fraction).toBeGreaterThan(0);
-    expect(doc.fraction).toBeLessThanOrEqual(1.02);
+    expect(doc.fraction).toBeLessThanOrEqual(1);
     expect(doc.truncation).toHaveLength(2);
     expect(doc.secondOpinion).toEqual({ method: "bhattacharya", lower: expect.any(Number), upper: expect.any(Number) });
     expect(typeof doc.chiSquare).toBe("number");

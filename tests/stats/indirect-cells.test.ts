@@ -38,7 +38,10 @@ describe("indirectCells", () => {
     expect(c.censoredBelow).toEqual({ count: 2, limit: 2.5 });
     expect(c.censoredAbove).toEqual({ count: 1, limit: 8 });
     expect(c.edges[0]).toBe(0);
-    expect(c.edges[1]).toBeCloseTo(2.45, 12);
+    // The regular cells start at the "<2.5" limit and end at the ">8" limit.
+    expect(c.edges[1]).toBe(2.5);
+    expect(c.edges[2]).toBeCloseTo(2.95, 12);
+    expect(c.edges[c.edges.length - 2]).toBe(8);
     expect(c.edges[c.edges.length - 1]).toBe(Number.POSITIVE_INFINITY);
     expect(c.counts[0]).toBe(2);
     expect(c.counts[c.counts.length - 1]).toBe(1);

@@ -119,6 +119,17 @@ describe("indirectReferenceInterval", () => {
     expect(r.accepted).toBe(true);
   });
 
+  it("never ends the truncation interval at +∞, even when many values are censored above", () => {
+    // The clean sample with everything above 30 (about 27% of it) reported as ">30".
+    const values: RoutineValue[] = cleanLognormal(5000, 25, 0.3).map((v) => (v > 30 ? { value: 30, side: "above" as const } : v));
+    const r = indirectReferenceInterval(values, { replicates: 0 });
+    expect(r.censored.above).toBeGreaterThan(1000);
+    expect(Number.isFinite(r.truncation[1])).toBe(true);
+    expect(r.truncation[1]).toBeLessThanOrEqual(30);
+    expect(r.fraction).toBeLessThanOrEqual(1);
+    expect(r.lower as number).toBeCloseTo(13.886, 0);
+  });
+
   it("refuses bad options and unusable values", () => {
     const values = cleanLognormal(200, 25, 0.3);
     expect(() => indirectReferenceInterval(values, { replicates: 50 })).toThrow(StatsInputError);
