@@ -37,3 +37,4 @@ export * from "./indirect-cells";
 export * from "./tml";
 export * from "./bhattacharya";
 export * from "./indirect";
+export * from "./indirect-histogram";

@@ -19,7 +19,8 @@ function cleanLognormal(n: number, median: number, sigma: number): number[] {
   return Array.from({ length: n }, (_, i) => Math.round(10 * median * Math.exp(sigma * normal.quantile((i + 0.5) / n, 0, 1))) / 10);
 }
 
-describe("truncated maximum likelihood: the fit", () => {
+// Each fit searches about a hundred intervals: generous timeouts for a loaded machine.
+describe("truncated maximum likelihood: the fit", { timeout: 60_000 }, () => {
   it("recovers the parameters from exact expected counts (the likelihood's maximum is the truth there)", () => {
     // Cells of width 0.05 from 2 to 8 holding N·P_j of a power-normal with λ = 0.4, μ = 1.2, σ = 0.12
     // (its scale: g(x) = (x^0.4 − 1)/0.4): a multinomial likelihood is largest where the
@@ -62,7 +63,7 @@ describe("truncated maximum likelihood: the fit", () => {
   });
 });
 
-describe("indirectReferenceInterval", () => {
+describe("indirectReferenceInterval", { timeout: 60_000 }, () => {
   it("gives the same document for the same seed, and CIs around the limits", () => {
     const values = readCsv("lognormal-5k-10");
     const a = indirectReferenceInterval(values, { seed: 7, replicates: 100 });
