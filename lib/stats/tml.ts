@@ -231,29 +231,33 @@ function fitInterval(
   return { d: { lambda: x[0], mu: x[1], sigma: Math.exp(x[2]) }, logLik: -best };
 }
 
-/** χ² over the cells inside (merged left to right until each group expects ≥ 5 values). */
+/** χ² over the cells inside (merged left to right until each group expects ≥ 5 values; a remainder joins the last group). */
 function chiSquareInside(cells: IndirectCells, w: Work, from: number, to: number, inside: number): { chi: number; groups: number } {
   const pab = probBetween(w, from, to);
   let chi = 0;
   let groups = 0;
   let o = 0;
   let e = 0;
+  let lastO = 0;
+  let lastE = 0;
   for (let j = from; j < to; j++) {
     o += cells.counts[j];
     e += (inside * probBetween(w, j, j + 1)) / pab;
     if (e >= 5) {
       chi += ((o - e) * (o - e)) / e;
       groups++;
+      lastO = o;
+      lastE = e;
       o = 0;
       e = 0;
     }
   }
   if (e > 0 || o > 0) {
     if (groups === 0) return { chi: Number.NaN, groups: 0 };
-    // The remainder joins the last group: recompute that group's term is not possible without
-    // storing it, so count the remainder as its own term, which is the conservative choice.
-    chi += e > 0 ? ((o - e) * (o - e)) / e : o;
-    groups++;
+    chi -= ((lastO - lastE) * (lastO - lastE)) / lastE;
+    const mo = lastO + o;
+    const me = lastE + e;
+    chi += ((mo - me) * (mo - me)) / me;
   }
   return { chi, groups };
 }
@@ -263,9 +267,9 @@ function chiSquareInside(cells: IndirectCells, w: Work, from: number, to: number
  * values in a cell and fewer were observed, T = Σ (O_j − E_j)²/E_j. Without a deficit each
  * term is 0 or χ²₁ with equal chance (mean ½, variance 5/4), which standardises T to a z.
  */
-function deficitOutside(cells: IndirectCells, w: Work, from: number, to: number, expectedTotal: number): number {
+function deficitOutside(cells: IndirectCells, w: Work, d: PowerNormal, from: number, to: number, expectedTotal: number): number {
   const K = cells.counts.length;
-  fillEdges(cells, w, currentFit as PowerNormal, 0, K);
+  fillEdges(cells, w, d, 0, K);
   let t = 0;
   let k = 0;
   for (let j = 0; j < K; j++) {
@@ -278,7 +282,6 @@ function deficitOutside(cells: IndirectCells, w: Work, from: number, to: number,
   }
   return k === 0 ? 0 : (t - 0.5 * k) / Math.sqrt(1.25 * k);
 }
-let currentFit: PowerNormal | null = null;
 
 /**
  * The candidate truncation intervals around the mode: each keeps a share s_L of the values
@@ -384,9 +387,7 @@ function scoreCandidate(
   const df = groups - 4;
   if (!(df >= 1) || !Number.isFinite(chi)) return null;
   const pValue = 1 - chisquare.cdf(chi, df);
-  currentFit = d;
-  const deficitZ = deficitOutside(cells, w, from, to, inside / pab);
-  currentFit = null;
+  const deficitZ = deficitOutside(cells, w, d, from, to, inside / pab);
   const plausible = fraction <= 1 + TML_FRACTION_SLACK && deficitZ <= TML_DEFICIT_Z;
   return {
     candidate: cand,
