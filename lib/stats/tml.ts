@@ -423,8 +423,8 @@ function scoreCandidate(
  *    p ≥ {@link TML_ALPHA};
  *  - plausibility: the fraction is at most 1 + {@link TML_FRACTION_SLACK}, and outside the
  *    interval the fitted non-diseased part does not predict significantly more values than
- *    were observed (the diseased part cannot be negative; one-sided deficit z ≤
- *    {@link TML_DEFICIT_Z});
+ *    were observed (the diseased density D_d = D_mix − D_nd of Arzideh et al. 2007 cannot be
+ *    negative; one-sided deficit z ≤ {@link TML_DEFICIT_Z});
  *  - among the intervals that pass, the consensus: the one whose limits lie closest to the
  *    medians of all passing intervals' limits (see consensusChoice); when none passes, the
  *    plausible one with the best p-value, and `accepted` is false.
