@@ -9,7 +9,8 @@ import { CliError } from "./cli-error";
 export const USAGE = `usage:
   bellwether estimate FILE [--outliers none|dixon|tukey|horn] [--screening apply|propose] [--transform auto|none|ln|box-cox] [--seed N] [--debug]
   bellwether score --model MODEL.json VALUE... [--debug]
-  bellwether lms FILE --at AGES [--seed N] [--debug]`;
+  bellwether lms FILE --at AGES [--seed N] [--debug]
+  bellwether indirect FILE [--seed N] [--debug]`;
 
 export type Command = (args: string[]) => Promise<number>;
 
@@ -18,6 +19,7 @@ export const COMMANDS: Readonly<Record<string, () => Promise<Command>>> = {
   estimate: async () => (await import("./estimate")).run,
   score: async () => (await import("./score")).run,
   lms: async () => (await import("./lms")).run,
+  indirect: async () => (await import("./indirect")).run,
 };
 
 export interface CliIo {
