@@ -4,6 +4,7 @@
  * database down) as an OperationOutcome instead of problem+json.
  */
 import { FHIR_JSON, operationOutcome, outcomeOfStatus, issueTypeOfStatus } from "@/lib/scoring/fhir";
+import { parseJsonBody, readBoundedBody } from "./body";
 import { AppError } from "./errors";
 import type { Problem } from "./problem";
 
@@ -43,27 +44,5 @@ export async function readFhirJson(request: Request, maxBytes: number): Promise<
   if (!ACCEPTED_TYPES.includes(type)) {
     throw new AppError("unsupported_media_type", `Send the resource as ${FHIR_JSON} (or application/json); got ${type || "no content type"}.`);
   }
-  const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${maxBytes} bytes.`);
-  const declared = Number(request.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > maxBytes) throw tooLarge();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  if (request.body) {
-    const reader = request.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      total += value.byteLength;
-      if (total > maxBytes) {
-        await reader.cancel();
-        throw tooLarge();
-      }
-      chunks.push(value);
-    }
-  }
-  try {
-    return JSON.parse(Buffer.concat(chunks, total).toString("utf8"));
-  } catch {
-    throw new AppError("bad_request", "The request body is not valid JSON.");
-  }
+  return parseJsonBody(await readBoundedBody(request, maxBytes));
 }

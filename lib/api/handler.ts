@@ -3,6 +3,7 @@ import type { z } from "zod";
 import type { Caller } from "@/lib/auth/authorize";
 import type { Principal } from "@/lib/auth/principal";
 import type { Permission } from "@/lib/auth/roles";
+import { readBoundedBody, parseJsonBody } from "./body";
 import { AppError } from "./errors";
 import { resolvePrincipal } from "./principal";
 import { problemResponse, toProblem, type Problem } from "./problem";
@@ -54,15 +55,7 @@ async function readJson(request: Request, maxBytes: number): Promise<unknown> {
   if (!type.includes("application/json")) {
     throw new AppError("unsupported_media_type", "Send the request body as application/json.");
   }
-  const text = await request.text();
-  if (Buffer.byteLength(text) > maxBytes) {
-    throw new AppError("payload_too_large", `The request body is larger than ${maxBytes} bytes.`);
-  }
-  try {
-    return JSON.parse(text);
-  } catch {
-    throw new AppError("bad_request", "The request body is not valid JSON.");
-  }
+  return parseJsonBody(await readBoundedBody(request, maxBytes));
 }
 
 /** Reads a multipart/form-data body, refusing another type (415) or more than `maxBytes` (413). */
@@ -71,26 +64,9 @@ async function readMultipart(request: Request, maxBytes: number): Promise<FormDa
   if (!type.toLowerCase().startsWith("multipart/form-data")) {
     throw new AppError("unsupported_media_type", "Send the request body as multipart/form-data.");
   }
-  const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${maxBytes} bytes.`);
-  const declared = Number(request.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > maxBytes) throw tooLarge();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  if (request.body) {
-    const reader = request.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      total += value.byteLength;
-      if (total > maxBytes) {
-        await reader.cancel();
-        throw tooLarge();
-      }
-      chunks.push(value);
-    }
-  }
+  const bytes = await readBoundedBody(request, maxBytes);
   try {
-    return await new Response(Buffer.concat(chunks, total), { headers: { "content-type": type } }).formData();
+    return await new Response(bytes, { headers: { "content-type": type } }).formData();
   } catch {
     throw new AppError("bad_request", "The request body is not valid multipart/form-data.");
   }
