@@ -1,5 +1,6 @@
 "use client";
 
+import type { Session } from "next-auth";
 import { SessionProvider, useSession } from "next-auth/react";
 import { useRouter } from "next/navigation";
 import { useCallback } from "react";
@@ -12,15 +13,23 @@ import type { ActionState, FormServerAction } from "@/lib/auth/action-state";
 /**
  * Changing one's own password ends every session signed in before, this one included, unless
  * it takes up the ticket the action returns through next-auth's session update.
+ *
+ * The page hands in the session it was rendered with: next-auth's update does nothing while the
+ * provider is still fetching the session, and a fetch that lands after the change would find this
+ * session already ended, so the provider must not start by fetching.
  */
-export function ChangePasswordForm(props: {
+export function ChangePasswordForm({
+  session,
+  ...props
+}: {
+  session: Session;
   action: FormServerAction;
   /** Where to go once the password is changed: stay on the page, or go to the overview. */
   afterChange?: "stay" | "overview";
   currentLabel?: string;
 }) {
   return (
-    <SessionProvider refetchOnWindowFocus={false}>
+    <SessionProvider session={session} refetchOnWindowFocus={false}>
       <PasswordFields {...props} />
     </SessionProvider>
   );

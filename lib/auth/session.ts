@@ -1,5 +1,5 @@
 import "server-only";
-import { getServerSession } from "next-auth";
+import { getServerSession, type Session } from "next-auth";
 import { forbidden, redirect } from "next/navigation";
 import { db } from "@/db/client";
 import type { Actor } from "@/db/queries/audit";
@@ -38,6 +38,11 @@ export async function currentSession(): Promise<{ caller: Caller; sessionId: str
     },
     sessionId: claims.sessionId,
   };
+}
+
+/** next-auth's own session object, for a client component that needs its SessionProvider primed. */
+export async function nextAuthSession(): Promise<Session | null> {
+  return getServerSession(authOptions());
 }
 
 export async function currentCaller(): Promise<Caller | null> {

@@ -1,9 +1,10 @@
 import type { Metadata } from "next";
+import { redirect } from "next/navigation";
 import { changeOwnPasswordAction } from "@/app/(workspace)/account/actions";
 import { ChangePasswordForm } from "@/components/account/change-password-form";
 import { SignOutButton } from "@/components/shell/sign-out-button";
 import { Wordmark } from "@/components/shell/wordmark";
-import { requirePasswordChangeCaller } from "@/lib/auth/session";
+import { nextAuthSession, requirePasswordChangeCaller } from "@/lib/auth/session";
 
 export const metadata: Metadata = { title: "Choose your password" };
 export const dynamic = "force-dynamic";
@@ -14,6 +15,8 @@ export const dynamic = "force-dynamic";
  */
 export default async function ChangePasswordPage() {
   const caller = await requirePasswordChangeCaller();
+  const session = await nextAuthSession();
+  if (!session) redirect("/sign-in");
   return (
     <div className="flex flex-1 items-center justify-center bg-ink-900 px-4 py-12">
       <div className="w-full max-w-md">
@@ -26,7 +29,7 @@ export default async function ChangePasswordPage() {
             {caller.name}, an administrator set the password you signed in with. Choose your own before you go on: until
             then Bellwether opens nothing else.
           </p>
-          <ChangePasswordForm action={changeOwnPasswordAction} afterChange="overview" currentLabel="Password you were given" />
+          <ChangePasswordForm session={session} action={changeOwnPasswordAction} afterChange="overview" currentLabel="Password you were given" />
           <div className="mt-5 flex items-center justify-between border-t border-ink-100 pt-3 text-xs text-ink-500">
             <span>Signed in as {caller.email}</span>
             <SignOutButton tone="light" />

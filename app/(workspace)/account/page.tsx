@@ -1,8 +1,9 @@
 import type { Metadata } from "next";
+import { redirect } from "next/navigation";
 import Link from "next/link";
 import { ChangePasswordForm } from "@/components/account/change-password-form";
 import { PageHeader, Panel } from "@/components/ui/panel";
-import { requirePageCaller } from "@/lib/auth/session";
+import { nextAuthSession, requirePageCaller } from "@/lib/auth/session";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { changeOwnPasswordAction } from "./actions";
 
@@ -10,6 +11,8 @@ export const metadata: Metadata = { title: "Account" };
 
 export default async function AccountPage() {
   const caller = await requirePageCaller();
+  const session = await nextAuthSession();
+  if (!session) redirect("/sign-in");
   return (
     <>
       <PageHeader title="Account" />
@@ -29,7 +32,7 @@ export default async function AccountPage() {
           </p>
         </Panel>
         <Panel title="Change password">
-          <ChangePasswordForm action={changeOwnPasswordAction} />
+          <ChangePasswordForm session={session} action={changeOwnPasswordAction} />
         </Panel>
       </div>
     </>
