@@ -163,6 +163,15 @@ export const analytes = pgTable(
 export const STUDY_STATUSES = ["open", "closed"] as const;
 export const studyStatusEnum = pgEnum("study_status", STUDY_STATUSES);
 
+/**
+ * What a study estimates: `direct`, limits per partition from healthy donors (CLSI EP28-A3c);
+ * `age_curve`, continuous LMS centile curves in age from healthy donors of known exact age
+ * (METHODS.md §9). Set at creation and never changed.
+ */
+export const STUDY_KINDS = ["direct", "age_curve"] as const;
+export const studyKindEnum = pgEnum("study_kind", STUDY_KINDS);
+export type StudyKind = (typeof STUDY_KINDS)[number];
+
 /** One collection of healthy-donor results for one analyte, method and specimen. */
 export const studies = pgTable(
   "studies",
@@ -172,6 +181,7 @@ export const studies = pgTable(
       .notNull()
       .references(() => analytes.id, { onDelete: "restrict" }),
     title: text("title").notNull(),
+    kind: studyKindEnum("kind").notNull().default("direct"),
     method: text("method"),
     specimen: text("specimen"),
     /** The reference individuals and the exclusion criteria used when recruiting them. */
@@ -466,7 +476,9 @@ export const intervalVersions = pgTable(
 
 /**
  * The methods of an estimate a partition may take its limits from. The table also allows
- * "adopted": limits taken from an accepted adoption check (scored by zlog, or a flag only).
+ * "adopted": limits taken from an accepted adoption check (scored by zlog, or a flag only), and
+ * "lms": LMS age curves from an age-curve study, whose limits depend on the exact age, so the
+ * partition's own low and high are null and its model (lib/stats/lms-model.ts) holds the curves.
  */
 export const PARTITION_METHODS = ["nonparametric", "parametric", "robust"] as const;
 
@@ -504,9 +516,10 @@ export const intervalPartitions = pgTable(
       "interval_partitions_age_order",
       sql`${t.ageFromDays} IS NULL OR ${t.ageToDays} IS NULL OR ${t.ageFromDays} < ${t.ageToDays}`,
     ),
-    check("interval_partitions_has_limit", sql`${t.low} IS NOT NULL OR ${t.high} IS NOT NULL`),
+    check("interval_partitions_has_limit", sql`${t.method} = 'lms' OR ${t.low} IS NOT NULL OR ${t.high} IS NOT NULL`),
     check("interval_partitions_limit_order", sql`${t.low} IS NULL OR ${t.high} IS NULL OR ${t.low} <= ${t.high}`),
-    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust', 'adopted')`),
+    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust', 'adopted', 'lms')`),
+    check("interval_partitions_lms_model", sql`(${t.method} = 'lms') = (${t.model}->>'kind' = 'lms')`),
     check("interval_partitions_n_positive", sql`${t.n} > 0`),
   ],
 );
