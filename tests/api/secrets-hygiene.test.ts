@@ -199,6 +199,17 @@ describe("where secrets must not be", () => {
     expect(found, `secrets found in ${where}`).toEqual([]);
   };
 
+  it("the search finds a secret where one is meant to be (so that finding none below means something)", async () => {
+    const { key } = await createLisConnectionOverHttp(cookies.admin, { name: `Secrets control ${Date.now()}`, contactEmail: "lis@secrets.example" });
+    secrets.set(key, "the control key");
+    // The one-time answer that carries the key, searched as the refusals are.
+    const found = [...secrets].filter(([secret]) => `{"key":"${key}"}`.includes(secret)).map(([, label]) => label);
+    expect(found).toEqual(["the control key"]);
+    // The first 12 characters of every key are kept (lis_connections.key_prefix): the table search finds them.
+    const { rows } = await pool.query(`SELECT count(*)::int AS n FROM lis_connections t WHERE t::text LIKE ANY($1)`, [[`%${key.slice(0, 12)}%`]]);
+    expect(rows[0].n).toBe(1);
+  });
+
   it("the flows handled at least the secrets they were meant to", () => {
     // Four demo passwords and their cookies, the demo key, and those made above.
     expect(secrets.size).toBeGreaterThan(25);
