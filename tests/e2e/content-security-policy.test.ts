@@ -66,4 +66,22 @@ describe("pages under the production content security policy", () => {
     await page.waitForLoadState("networkidle");
     expect(violations).toEqual([]);
   });
+
+  for (const role of ["director", "admin"] as const) {
+    it(`the ${role} opens every section of the navigation: no violation`, async () => {
+      const { page, violations } = await watchedPage();
+      const user = demoUser(role);
+      await signIn(page, user.email, user.password);
+      await page.waitForURL("/");
+      const nav = page.getByRole("navigation", { name: "Main" });
+      const hrefs = await nav.getByRole("link").evaluateAll((links) => links.map((a) => a.getAttribute("href") as string));
+      expect(hrefs.length).toBeGreaterThan(3);
+      for (const href of hrefs) {
+        await page.goto(href);
+        await page.getByRole("heading", { level: 1 }).waitFor();
+        await page.waitForLoadState("networkidle");
+      }
+      expect(violations).toEqual([]);
+    });
+  }
 });
