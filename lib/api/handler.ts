@@ -88,11 +88,11 @@ function refuseCrossSiteChange(request: Request): void {
 }
 
 /**
- * The one wrapper for every route handler: resolves the caller (session, or an LIS key where
- * `lisKey` allows it, within its rate limit), refuses cross-site changes made with the session
- * cookie, checks the permission, parses
- * params, query and body with zod, runs the handler, and answers every error as
- * application/problem+json. A handler returns a Response or a value to be sent as JSON.
+ * The one wrapper for every route handler: refuses cross-site changes made with the session
+ * cookie, resolves the caller (session, or an LIS key where `lisKey` allows it, within its rate
+ * limit), checks the permission, parses params, query and body with zod, runs the handler, and
+ * answers every error as application/problem+json. A handler returns a Response or a value to be
+ * sent as JSON.
  */
 export function apiRoute<
   P extends z.ZodType = z.ZodType<Record<string, never>>,
