@@ -4,6 +4,7 @@
  * intervals route's limits at requested ages, and FHIR's referenceRange age.
  */
 import normal from "@stdlib/stats-base-dists-normal";
+import ExcelJS from "exceljs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { LmsModel } from "@/lib/stats/lms-model";
 import { testDatabase } from "../support/database";
@@ -250,5 +251,49 @@ describe("FHIR $score against LMS curves", () => {
     expect(body.note.map((n: Doc) => n.text)).toContain(
       "The limits are those of the patient's exact age on the laboratory's continuous age curves (LMS method): they change smoothly with age, so the same value may be judged differently a few months earlier or later. Check that the age is right.",
     );
+  });
+});
+
+describe("pages and exports that show an lms version", () => {
+  const page = async (path: string, role: keyof Cookies) => {
+    const res = await fetch(`${BASE_URL}${path}`, { headers: { cookie: cookies[role] }, redirect: "manual" });
+    expect(res.status, path).toBe(200);
+    return res.text();
+  };
+
+  it("shows the curves and the limits at ages on the intervals page, to a clinician too", async () => {
+    const html = await page(`/intervals/${ALP}`, "clinician");
+    expect(html).toContain("age curves 0.03 to 17.97 years");
+    expect(html).toContain('data-testid="lms-limits-table"');
+    expect(html).toContain('data-testid="lms-curves-chart"');
+    expect(html).toContain("by age (LMS curves)");
+    expect(html).toContain("LMS age curves (Cole and Green)");
+  });
+
+  it("shows them on the version review page and the sign-off record", async () => {
+    const review = await page(`/versions/${versionId}`, "director");
+    expect(review).toContain('data-testid="lms-partitions"');
+    expect(review).toContain("The curves and the limits at each age are shown under Partitions.");
+    const record = await page(`/versions/${versionId}/record`, "director");
+    expect(record).toContain('data-testid="lms-limits-table"');
+  });
+
+  it("writes the limits at ages into the dossier's Age curves sheet, the same as the intervals route gives", async () => {
+    const res = await fetch(`${BASE_URL}/api/v1/interval-versions/${versionId}/dossier`, { headers: { cookie: cookies.director } });
+    expect(res.status).toBe(200);
+    const workbook = new ExcelJS.Workbook();
+    await workbook.xlsx.load(Buffer.from(await res.arrayBuffer()) as unknown as ExcelJS.Buffer);
+    const sheet = workbook.getWorksheet("Age curves");
+    expect(sheet).toBeDefined();
+    const rows = (sheet!.getSheetValues() as unknown[][]).filter(Boolean).map((r) => r.slice(1));
+    expect(rows[0]).toEqual(["Position", "Partition", "Age (years)", "Lower limit (U/L)", "Median (U/L)", "Upper limit (U/L)", "L", "M", "S"]);
+    const atFour = rows.find((r) => r[2] === 4)!;
+    const api = await (await intervals(ALP, "?ages=4")).json();
+    expect(atFour.slice(0, 2)).toEqual([1, "age curves 0.03 to 17.97 years"]);
+    expect(atFour[3]).toBe(api.partitions[0].atAges[0].low);
+    expect(atFour[5]).toBe(api.partitions[0].atAges[0].high);
+    // The first and last rows are the curves' own age range.
+    expect(rows[1][2]).toBe(0.027);
+    expect(rows.at(-1)![2]).toBe(17.974);
   });
 });
