@@ -69,14 +69,14 @@ export function ScoreCard({ result, cautionTexts }: { result: ScoreResult; cauti
             <span className="text-base font-semibold tabular-nums text-ink-900">
               {valueText(result)} {unit}
             </span>{" "}
-            against the reference interval{lms ? ` at the exact age of ${ageWords(lms.ageYears)}` : ""}{" "}
+            against the reference interval{" "}
             <span className="font-semibold tabular-nums text-ink-900">
               {intervalText(interval)} {unit}
             </span>{" "}
             {lms ? (
               <>
-                from the laboratory&apos;s continuous age curves ({interval.partition.sex ? `${interval.partition.sex === "F" ? "female" : "male"}, ` : ""}
-                ages {ageWords(lms.ageMin)} to {ageWords(lms.ageMax)}).
+                at the exact age of {ageWords(lms.ageYears)}, from the laboratory&apos;s continuous age curves (
+                {interval.partition.sex ? `${interval.partition.sex === "F" ? "female" : "male"}, ` : ""}ages {ageWords(lms.ageMin)} to {ageWords(lms.ageMax)}).
               </>
             ) : (
               <>for {partitionWords(interval.partition)}.</>

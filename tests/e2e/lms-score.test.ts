@@ -63,7 +63,7 @@ describe("scoring a child against age curves", () => {
     // 2022-01-01 → 2026-07-02: 4 + 182/365 = 4.4986 years (arithmetic), shown with 2 decimals.
     expect(await card.textContent()).toContain("4.50 years");
     expect(await card.getByTestId("value-against-interval").textContent()).toContain(
-      `against the reference interval at the exact age of 4.5 years ${r.interval.low.toFixed(0)}–${r.interval.high.toFixed(0)} U/L from the laboratory's continuous age curves`,
+      `against the reference interval ${r.interval.low.toFixed(0)}–${r.interval.high.toFixed(0)} U/L at the exact age of 4.5 years, from the laboratory's continuous age curves (ages 0.03 years to 17.97 years).`,
     );
     expect(await card.getByTestId("lms-at-age").textContent()).toContain(`a median of ${r.model.M.toFixed(0)} U/L`);
     await card.getByTestId("reference-chart").waitFor();
