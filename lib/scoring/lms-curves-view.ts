@@ -47,6 +47,9 @@ export function lmsCurvePoints(model: LmsModel, steps = 120): LmsRow[] {
   const t0 = Math.sqrt(model.ageMin);
   const t1 = Math.sqrt(model.ageMax);
   const ages = Array.from({ length: steps + 1 }, (_, i) => {
+    // The ends exactly, not their square roots squared back.
+    if (i === 0) return model.ageMin;
+    if (i === steps) return model.ageMax;
     const t = t0 + ((t1 - t0) * i) / steps;
     return Math.min(model.ageMax, Math.max(model.ageMin, t * t));
   });

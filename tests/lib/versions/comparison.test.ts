@@ -119,7 +119,7 @@ describe("compareVersions", () => {
 
 describe("compareVersions with LMS age curves", () => {
   // Constant curves L = 0 (ln branch), M = 100, S = 0.1 from 0 to 18 years: at every age the
-  // limits are 100·exp(∓0.1·qnorm(0.975)); R: 100*exp(c(-1,1)*0.1*qnorm(0.975)) → 82.21 121.64.
+  // limits are 100·exp(∓0.1·qnorm(0.975)); R: 100*exp(c(-1,1)*0.1*qnorm(0.975)) → 82.20 121.65.
   // The second curves have M = 200 (limits 164.4 and 243.3). Cubic B-splines with equal
   // coefficients are that constant (they sum to one; de Boor 1978).
   const curves = (m: number) => ({
