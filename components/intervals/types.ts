@@ -6,6 +6,8 @@ export interface IntervalPartitionView {
   cis: string;
   method: string;
   n: number;
+  /** LMS age curves: the stored curves (no donor values), drawn with the limits at a table of ages; else null. */
+  curves: { sex: "F" | "M" | null; n: number; model: Record<string, unknown> } | null;
 }
 
 export interface IntervalVersionView {
@@ -15,6 +17,8 @@ export interface IntervalVersionView {
   stateLabel: string;
   effectiveFrom: string | null;
   effectiveTo: string | null;
+  /** The version's display decimals. */
+  decimals: number;
   partitions: IntervalPartitionView[];
   /** The signature that put it in force: who and when. */
   signedOff: { by: string; at: string } | null;

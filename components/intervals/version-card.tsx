@@ -1,6 +1,7 @@
 import Link from "next/link";
 import { Badge } from "@/components/ui/badge";
 import { SimpleTable } from "@/components/ui/simple-table";
+import { LmsPartitionsCurves } from "@/components/versions/lms-partition";
 import type { IntervalVersionView } from "./types";
 
 const STATE_TONES: Record<string, "ok" | "neutral" | "warn" | "off" | "brand"> = {
@@ -59,6 +60,7 @@ export function VersionCard({ version: v, unit, reviewHref }: { version: Interva
           p.n.toLocaleString("en"),
         ])}
       />
+      <LmsPartitionsCurves partitions={v.partitions.flatMap((p) => (p.curves ? [p.curves] : []))} unit={unit} decimals={v.decimals} />
       <ul className="space-y-0.5 text-sm text-ink-700">
         <li>{v.signedOff ? `Signed off by ${v.signedOff.by}, ${v.signedOff.at}.` : "Not signed off."}</li>
         {v.reviewed ? <li>Last reviewed by {v.reviewed.by}, {v.reviewed.at}: still valid.</li> : null}

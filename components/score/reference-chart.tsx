@@ -7,7 +7,8 @@ import { ChartFigure } from "@/components/charts/chart-figure";
 import { CHART_COLORS } from "@/components/charts/palette";
 import { registerCharts } from "@/components/charts/setup";
 import { formatValue } from "@/lib/format";
-import { referenceCurve, shadedBelow, unitTicks, valueOfScale, type CurveModel } from "@/lib/scoring/reference-curve";
+import { ageWords } from "@/lib/scoring/lms-curves-view";
+import { lmsAsGaussian, referenceCurve, shadedBelow, unitTicks, valueOfScale, type CurveModel } from "@/lib/scoring/reference-curve";
 import type { ScoreResult } from "@/lib/scores/schemas";
 import { percentileText, valueText } from "./words";
 
@@ -39,7 +40,10 @@ function scaleWords(model: CurveModel): string {
  * A limits-only interval has no distribution to draw, and the card says so instead.
  */
 export function ReferenceChart({ result }: { result: ScoreResult }) {
-  const model = result.model as CurveModel;
+  // LMS curves are, at the patient's age, a normal distribution on the Box-Cox scale with λ = L.
+  const lms = result.model.kind === "lms" ? result.model : null;
+  const model = (lms ? lmsAsGaussian(lms) : result.model) as CurveModel;
+  const words = lms ? `the LMS age curves' distribution at ${ageWords(lms.ageYears)}, a normal on the Box-Cox scale with λ = L` : scaleWords(model);
   const { interval } = result;
   const unit = interval.unit;
   const fmt = (v: number | null) => formatValue(v, interval.decimals);
@@ -69,7 +73,7 @@ export function ReferenceChart({ result }: { result: ScoreResult }) {
       },
       {
         type: "line",
-        label: `Reference distribution (${scaleWords(model)})`,
+        label: `Reference distribution (${lms ? `at ${ageWords(lms.ageYears)}` : words})`,
         data: curve.points,
         borderColor: CHART_COLORS.donorDark,
         borderWidth: 2,
@@ -170,7 +174,7 @@ export function ReferenceChart({ result }: { result: ScoreResult }) {
     },
   };
   const caption =
-    `The reference distribution of ${result.analyte.name} (${scaleWords(model)}) with the interval's limits; the dark marker is this value ` +
+    `The reference distribution of ${result.analyte.name} (${words}) with the interval's limits${lms ? " at that age" : ""}; the dark marker is this value ` +
     `and the shaded area the share of healthy reference individuals below it (percentile ${percentile}).`;
   return (
     <ChartFigure

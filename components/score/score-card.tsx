@@ -1,6 +1,8 @@
 import type { ScoreItemError, ScoreResult } from "@/lib/scores/schemas";
 import { formatIsoDate } from "@/lib/format";
 import { METHOD_WORDS } from "@/components/versions/numbers";
+import { ageWords } from "@/lib/scoring/lms-curves-view";
+import { formatValue } from "@/lib/format";
 import { itemNextStep } from "./api";
 import { ReferenceChart } from "./reference-chart";
 import { FLAG_TONES, FLAG_WORDS, intervalText, partitionWords, percentileText, valueText, zText } from "./words";
@@ -54,6 +56,7 @@ export function ItemErrorNotice({ error, analyte }: { error: ScoreItemError["err
 export function ScoreCard({ result, cautionTexts }: { result: ScoreResult; cautionTexts: Record<string, string> }) {
   const { interval } = result;
   const unit = interval.unit;
+  const lms = result.model.kind === "lms" ? result.model : null;
   return (
     <article className="space-y-4 rounded-lg border border-ink-200 bg-white p-4" aria-labelledby="score-card-title" data-testid="score-card">
       <header className="flex flex-wrap items-start gap-3">
@@ -70,7 +73,14 @@ export function ScoreCard({ result, cautionTexts }: { result: ScoreResult; cauti
             <span className="font-semibold tabular-nums text-ink-900">
               {intervalText(interval)} {unit}
             </span>{" "}
-            for {partitionWords(interval.partition)}.
+            {lms ? (
+              <>
+                at the exact age of {ageWords(lms.ageYears)}, from the laboratory&apos;s continuous age curves (
+                {interval.partition.sex ? `${interval.partition.sex === "F" ? "female" : "male"}, ` : ""}ages {ageWords(lms.ageMin)} to {ageWords(lms.ageMax)}).
+              </>
+            ) : (
+              <>for {partitionWords(interval.partition)}.</>
+            )}
           </p>
         </div>
       </header>
@@ -95,10 +105,18 @@ export function ScoreCard({ result, cautionTexts }: { result: ScoreResult; cauti
         <div className="rounded-md bg-ink-50 px-3 py-2">
           <dt className="text-xs font-medium uppercase tracking-wide text-ink-600">Age used</dt>
           <dd className="text-lg font-semibold tabular-nums text-ink-900">
-            {result.ageYearsUsed === null ? "not given" : `${result.ageYearsUsed.toFixed(1)} years`}
+            {result.ageYearsUsed === null ? "not given" : lms ? `${result.ageYearsUsed.toFixed(2)} years` : `${result.ageYearsUsed.toFixed(1)} years`}
           </dd>
         </div>
       </dl>
+
+      {lms ? (
+        <p className="rounded-md bg-ink-50 px-3 py-2 text-sm text-ink-800" data-testid="lms-at-age">
+          At {ageWords(lms.ageYears)} the curves give a median of {formatValue(lms.M, interval.decimals)} {unit}, a coefficient of
+          variation S = {formatValue(lms.S, 3)} and a Box-Cox power L = {formatValue(lms.L, 2)}; the limits are the 2.5th and
+          97.5th centiles there{interval.low === null || interval.high === null ? " (where the curves give one)" : ""}.
+        </p>
+      ) : null}
 
       <ReferenceChart result={result} />
 

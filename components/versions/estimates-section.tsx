@@ -3,6 +3,7 @@ import { SimpleTable } from "@/components/ui/simple-table";
 import type { VersionReviewView as VersionReview } from "./types";
 import { scopeLabel } from "@/lib/versions/comparison";
 import { EstimateCharts } from "./estimate-charts";
+import { lmsScopeLabel } from "@/lib/scoring/lms-curves-view";
 import { ciText, fixed, METHOD_WORDS } from "./numbers";
 
 const METHODS = ["nonparametric", "parametric", "robust"] as const;
@@ -16,6 +17,19 @@ export function EstimatesSection({ review, step }: { review: VersionReview; step
       {version.partitions.map((p, i) => {
         const estimate = estimates[i];
         const label = scopeLabel(p);
+        if (p.method === "lms") {
+          // LMS curves: no methods side by side; the curves and their limits by age are under Partitions.
+          const edf = (estimate?.document as unknown as { edf?: { L?: number; M?: number; S?: number } } | undefined)?.edf;
+          return (
+            <p key={p.id} className="text-sm text-ink-700" data-testid="estimate-block">
+              <strong>{lmsScopeLabel(p) ?? label}</strong> · n = {p.n}: {METHOD_WORDS.lms}, fitted by penalised likelihood
+              {edf && edf.L !== undefined && edf.M !== undefined && edf.S !== undefined
+                ? ` (effective degrees of freedom L ${fixed(edf.L, 1)}, M ${fixed(edf.M, 1)}, S ${fixed(edf.S, 1)})`
+                : ""}
+              . The curves and the limits at each age are shown under Partitions.
+            </p>
+          );
+        }
         if (!estimate) {
           return (
             <p key={p.id} className="text-sm text-ink-700">

@@ -6,7 +6,8 @@ export function fixed(value: number | null | undefined, decimals: number): strin
 /** Limits as a range: "3.50–5.10", or one side only ("≤ 5.10", "≥ 3.50"). */
 export function limitsText(limits: { low: number | null; high: number | null } | null, decimals: number): string {
   if (!limits) return "—";
-  if (limits.low === null && limits.high === null) return "—";
+  // Only LMS age curves have neither limit: theirs are read at each exact age.
+  if (limits.low === null && limits.high === null) return "by age (LMS curves)";
   if (limits.low === null) return `≤ ${fixed(limits.high, decimals)}`;
   if (limits.high === null) return `≥ ${fixed(limits.low, decimals)}`;
   return `${fixed(limits.low, decimals)}–${fixed(limits.high, decimals)}`;
@@ -22,4 +23,5 @@ export const METHOD_WORDS: Record<string, string> = {
   parametric: "Parametric",
   robust: "Robust (Horn, Pesce and Copeland)",
   adopted: "Adopted (verified external interval)",
+  lms: "LMS age curves (Cole and Green)",
 };

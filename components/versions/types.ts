@@ -16,6 +16,8 @@ export interface VersionPartitionView {
   highCi: [number, number] | null;
   method: string;
   n: number;
+  /** The scoring model as the API shows it (LMS age curves carry their curves; never donor values). */
+  model: Record<string, unknown>;
 }
 
 export interface VersionReviewView {

@@ -128,9 +128,9 @@ export async function listIncludedDonorValues(
 export async function listIncludedDonorAgesAndValues(
   executor: Executor,
   { studyId }: { studyId: string },
-): Promise<{ sex: string; ageDays: number; value: number }[]> {
+): Promise<{ sex: string; ageDays: number; ageYears: number; value: number }[]> {
   return executor
-    .select({ sex: donorResults.sex, ageDays: donorResults.ageDays, value: donorResults.value })
+    .select({ sex: donorResults.sex, ageDays: donorResults.ageDays, ageYears: donorResults.ageYears, value: donorResults.value })
     .from(donorResults)
     .where(and(eq(donorResults.studyId, studyId), sql`NOT EXISTS ${hasActiveExclusion}`))
     .orderBy(asc(donorResults.id));

@@ -21,7 +21,7 @@ import {
   lisUsageSchema,
   updateLisConnectionBody,
 } from "@/lib/lis/input";
-import { analyteIntervalsSchema, intervalsParams, MAX_FHIR_BODY_BYTES, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
+import { analyteIntervalsSchema, intervalsParams, intervalsQuery, MAX_FHIR_BODY_BYTES, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
 import { lookupQuery, partitionQuery } from "@/lib/studies/chart-data";
 import { donorResultsQuery } from "@/lib/studies/donor-results-query";
 import { createEstimateBody, estimateIdParams } from "@/lib/studies/estimate-input";
@@ -209,9 +209,10 @@ const ANALYTES: ApiOperation[] = [
     tag: "Analytes",
     summary: "The intervals in force for an analyte",
     description:
-      "The in-force version's partitions, each also as a FHIR R4 Observation.referenceRange element, and `referenceRange` beside them: the list an Observation would carry. `version` is null when nothing is in force. The path takes our code or the analyte's LOINC code.",
+      "The in-force version's partitions, each also as a FHIR R4 Observation.referenceRange element, and `referenceRange` beside them: the list an Observation would carry. `version` is null when nothing is in force. The path takes our code or the analyte's LOINC code. A partition of LMS age curves (method `lms`) has no fixed limits (`low` and `high` null, `curves` its age range): ask `?ages=0.5,4,12` and every partition lists under `atAges` its limits at each requested age it covers (for curves the 2.5th and 97.5th centiles at that exact age, each also as a referenceRange whose `age` is that age).",
     access: { permission: "intervals:read", lisKey: true },
     params: intervalsParams,
+    query: intervalsQuery,
     success: { status: 200, description: "The analyte, its version in force and its partitions", schema: analyteIntervalsSchema },
     errors: [404],
   },

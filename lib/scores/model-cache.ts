@@ -3,7 +3,7 @@ import { db } from "@/db/client";
 import { listenerStatus, subscribe } from "@/db/listen";
 import { loadInForceSnapshot, type InForceAnalyteRow, type InForcePartitionRow, type InForceSnapshot, type InForceVersionRow } from "@/db/queries/in-force-intervals";
 import { obx7 } from "@/lib/scoring/hl7";
-import { scoringPartitionSchema, type ScoringPartition } from "@/lib/scoring/model";
+import { scoringPartitionSchema, type LmsModel, type ScoringPartition } from "@/lib/scoring/model";
 import { createScorer, type ModelScore } from "@/lib/scoring/score";
 import { DAYS_PER_YEAR } from "@/lib/versions/age-days";
 import type { ScoreResult } from "./schemas";
@@ -43,12 +43,20 @@ export interface CachedPartition {
   readonly method: string;
   readonly n: number;
   readonly scoring: ScoringPartition;
-  /** The prepared model; null for a limits-only (flag-only) model. */
+  /** The prepared model; null for a limits-only (flag-only) model and for LMS curves (scored at an age). */
   readonly scorer: ((x: number) => ModelScore) | null;
-  /** The `interval` of every result scored against this partition (frozen, shared). */
+  /**
+   * The `interval` of every result scored against this partition (frozen, shared). For LMS
+   * curves its low and high are null: each result carries a copy with the limits at its age.
+   */
   readonly interval: Interval;
-  /** The `model` of every result (frozen, shared): kind and parameters, never reference values. */
-  readonly model: ModelDescription;
+  /**
+   * The `model` of every result (frozen, shared): kind and parameters, never reference values.
+   * Null for LMS curves, whose description (L, M, S at the age) is made per result.
+   */
+  readonly model: ModelDescription | null;
+  /** LMS curves: the stored model, for scoring at an age and for limits at requested ages; else null. */
+  readonly lms: LmsModel | null;
   readonly obx7: string;
   /** "analyteId\tversionId\tpartitionId": the score log's columns for this partition. */
   readonly logKey: string;
@@ -125,13 +133,16 @@ function state(): CacheState {
 const years = (days: number | null) => (days === null ? null : Math.round((days / DAYS_PER_YEAR) * 100) / 100);
 const pair = (a: number | null, b: number | null): readonly [number, number] | null => (a === null || b === null ? null : Object.freeze([a, b] as const));
 
-function describeModel(scoring: ScoringPartition): ModelDescription {
+function describeModel(scoring: ScoringPartition): ModelDescription | null {
   const m = scoring.model;
+  if (m.kind === "lms") return null;
   if (m.kind === "gaussian") return { kind: "gaussian", transform: m.transform, lambda: m.lambda ?? null, mean: m.mean, sd: m.sd };
   if (m.kind === "empirical") return { kind: "empirical", n: m.values.length };
   if (m.kind === "zlog") return { kind: "zlog", scale: m.scale };
   return { kind: "limits" };
 }
+
+const freezeOrNull = <T extends object>(o: T | null): T | null => (o === null ? null : Object.freeze(o));
 
 function prepareVersion(v: InForceVersionRow, rows: InForcePartitionRow[]): CachedVersion {
   const effectiveFrom = v.effectiveFrom ? v.effectiveFrom.toISOString() : null;
@@ -198,9 +209,10 @@ function prepareVersion(v: InForceVersionRow, rows: InForcePartitionRow[]): Cach
         method: p.method,
         n: p.n,
         scoring,
-        scorer: scoring.model.kind === "limits" ? null : createScorer(scoring),
+        scorer: scoring.model.kind === "limits" || scoring.model.kind === "lms" ? null : createScorer(scoring),
         interval: Object.freeze(interval),
-        model: Object.freeze(describeModel(scoring)),
+        model: freezeOrNull(describeModel(scoring)),
+        lms: scoring.model.kind === "lms" ? Object.freeze(scoring.model) : null,
         obx7: obx7(p.low, p.high, v.decimals),
         logKey: `${v.analyteId}\t${v.id}\t${p.id}`,
       }),

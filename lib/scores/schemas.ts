@@ -114,6 +114,17 @@ export const modelDescriptionSchema = z
     z.object({ kind: z.literal("empirical"), n: z.number().int() }),
     z.object({ kind: z.literal("zlog"), scale: z.enum(["log", "linear"]) }),
     z.object({ kind: z.literal("limits") }),
+    z
+      .object({
+        kind: z.literal("lms"),
+        ageYears: z.number().meta({ description: "The exact age in years at which the curves were read" }),
+        L: z.number().meta({ description: "Box-Cox power at that age" }),
+        M: z.number().meta({ description: "Median at that age, in the interval's unit" }),
+        S: z.number().meta({ description: "Coefficient of variation at that age" }),
+        ageMin: z.number().meta({ description: "Youngest age the curves cover, in years" }),
+        ageMax: z.number().meta({ description: "Oldest age the curves cover, in years" }),
+      })
+      .meta({ description: "LMS age curves (Cole & Green 1992) read at the patient's exact age; the interval's low and high are the 2.5th and 97.5th centiles there" }),
   ])
   .meta({ id: "ScoringModelDescription" });
 
@@ -157,6 +168,35 @@ export type ScoreResult = z.infer<typeof scoreResultSchema>;
 export type ScoreItemError = z.infer<typeof itemErrorSchema>;
 export type ScoreResponse = z.infer<typeof scoreResponseSchema>;
 
+/** Most ages one intervals request may ask for. */
+export const MAX_INTERVAL_AGES = 200;
+
+/** `?ages=0.5,1,2.25`: years, comma-separated; the limits of every partition at each of them. */
+export const intervalsQuery = z.object({
+  ages: z
+    .string()
+    .optional()
+    .transform((text, ctx) => {
+      if (text === undefined) return undefined;
+      const parts = text.split(",").map((t) => t.trim());
+      if (parts.length > MAX_INTERVAL_AGES) {
+        ctx.addIssue({ code: "custom", message: `give at most ${MAX_INTERVAL_AGES} ages (got ${parts.length})` });
+        return z.NEVER;
+      }
+      const ages: number[] = [];
+      for (const part of parts) {
+        const age = part === "" ? NaN : Number(part);
+        if (!Number.isFinite(age) || age < 0 || age > 150) {
+          ctx.addIssue({ code: "custom", message: `"${part}" is not an age in years from 0 to 150; give ages such as 0.5,1,2.25` });
+          return z.NEVER;
+        }
+        ages.push(age);
+      }
+      return ages;
+    })
+    .meta({ description: "Ages in years, comma-separated (e.g. 0.5,1,2.25): each partition then lists its limits at those ages that it covers", example: "0.5,4,12" }),
+});
+
 /** The path of GET /api/v1/analytes/{code}/intervals: our analyte code, or its LOINC code. */
 export const intervalsParams = z.object({
   code: z.string().trim().min(1).max(32).meta({ description: "Our analyte code (e.g. K), or its LOINC code (e.g. 2823-3)", example: "K" }),
@@ -182,6 +222,23 @@ export const inForcePartitionSchema = z
     n: z.number().int(),
     unit: z.string(),
     hl7: z.object({ obx7: z.string() }),
+    /** LMS age curves: their age range; null for fixed limits. */
+    curves: z
+      .object({ kind: z.literal("lms"), ageMin: z.number(), ageMax: z.number() })
+      .nullable()
+      .meta({ description: "For LMS age curves (method lms, low and high null) the ages they cover, in years; null for a partition with fixed limits" }),
+    /** With `?ages=`: the limits at each requested age this partition covers. */
+    atAges: z
+      .array(
+        z.object({
+          ageYears: z.number(),
+          low: z.number().nullable().meta({ description: "The 2.5th centile at that age (null where the curves give none)" }),
+          high: z.number().nullable().meta({ description: "The 97.5th centile at that age" }),
+          hl7: z.object({ obx7: z.string() }),
+        }),
+      )
+      .optional()
+      .meta({ description: "Only with ?ages=: the limits at each requested age that this partition covers (the curves' limits there, or the fixed limits of an age band)" }),
   })
   .meta({ id: "InForcePartition" });
 
@@ -194,6 +251,8 @@ export const inForceIntervalsSchema = z
       .nullable()
       .meta({ description: "null when no version of the analyte is in force" }),
     partitions: z.array(inForcePartitionSchema),
+    /** The ages asked for with `?ages=`, as read. */
+    ages: z.array(z.number()).optional().meta({ description: "Only with ?ages=: the ages asked for, in years" }),
   })
   .meta({ id: "InForceIntervals" });
 
@@ -213,7 +272,21 @@ export const fhirReferenceRangeSchema = z
 
 /** The route's answer: the score service's in-force intervals with each partition's FHIR referenceRange, and the list beside them. */
 export const intervalPartitionSchema = inForcePartitionSchema
-  .extend({ referenceRange: fhirReferenceRangeSchema.meta({ description: "The partition as a FHIR R4 Observation.referenceRange element" }) })
+  .extend({
+    referenceRange: fhirReferenceRangeSchema.meta({ description: "The partition as a FHIR R4 Observation.referenceRange element (for LMS curves: a text range over the curves' ages)" }),
+    atAges: z
+      .array(
+        z.object({
+          ageYears: z.number(),
+          low: z.number().nullable(),
+          high: z.number().nullable(),
+          hl7: z.object({ obx7: z.string() }),
+          referenceRange: fhirReferenceRangeSchema.meta({ description: "The limits at that age as a referenceRange whose age is that exact age (low = high)" }),
+        }),
+      )
+      .optional()
+      .meta({ description: "Only with ?ages=: the limits at each requested age this partition covers" }),
+  })
   .meta({ id: "IntervalPartition" });
 
 export const analyteIntervalsSchema = inForceIntervalsSchema
@@ -221,7 +294,10 @@ export const analyteIntervalsSchema = inForceIntervalsSchema
     partitions: z.array(intervalPartitionSchema),
     referenceRange: z
       .array(fhirReferenceRangeSchema)
-      .meta({ description: "Every partition's referenceRange element: the list an Observation would carry" }),
+      .meta({
+        description:
+          "Every partition's referenceRange element: the list an Observation would carry; with ?ages=, LMS curves contribute one element per requested age they cover (its age that exact age) instead of their text range",
+      }),
   })
   .meta({ id: "AnalyteIntervals" });
 

@@ -3,7 +3,8 @@ import { AppError } from "@/lib/api/errors";
 import { zodIssues } from "@/lib/api/problem";
 import type { Principal } from "@/lib/auth/principal";
 import { CAUTION_TEXTS, type CautionCode, type PartitionChoice } from "@/lib/scoring/cautions";
-import { scoreValue, type Score } from "@/lib/scoring/score";
+import { obx7 } from "@/lib/scoring/hl7";
+import { lmsLimitsAt, scoreValue, type Score } from "@/lib/scoring/score";
 import { StatsInputError } from "@/lib/stats/validate";
 import { convertUnit } from "@/lib/units/ucum";
 import { exactAgeYears, readDateCell, type DayOut } from "@/lib/uploads/values";
@@ -109,10 +110,16 @@ function resolveAge(item: ScoreItem): Age | string {
   return { days: null, years: null };
 }
 
-const hasAgeBounds = (p: CachedPartition) => p.ageFromDays !== null || p.ageToDays !== null;
+const hasAgeBounds = (p: CachedPartition) => p.lms !== null || p.ageFromDays !== null || p.ageToDays !== null;
 const sexFits = (p: CachedPartition, sex: "F" | "M" | null) => p.sex === null || p.sex === sex;
-const ageFits = (p: CachedPartition, days: number | null) =>
-  !hasAgeBounds(p) || (days !== null && (p.ageFromDays === null || days >= p.ageFromDays) && (p.ageToDays === null || days < p.ageToDays));
+/** LMS curves hold the exact ages in [ageMin, ageMax]; an age band the days in [ageFromDays, ageToDays). */
+const ageFits = (p: CachedPartition, age: Age) =>
+  p.lms !== null
+    ? age.years !== null && age.years >= p.lms.ageMin && age.years <= p.lms.ageMax
+    : !hasAgeBounds(p) ||
+      (age.days !== null && (p.ageFromDays === null || age.days >= p.ageFromDays) && (p.ageToDays === null || age.days < p.ageToDays));
+
+const yearsText = (years: number) => String(Math.round(years * 100) / 100);
 
 /**
  * The partition for a patient: its sex (or, without one, a partition for both sexes) and its age
@@ -120,13 +127,21 @@ const ageFits = (p: CachedPartition, days: number | null) =>
  * version's partitions do not overlap, so at most one fits.
  */
 function pickPartition(analyte: CachedAnalyte, version: CachedVersion, sex: "F" | "M" | null, age: Age): CachedPartition | string {
-  for (const p of version.partitions) if (sexFits(p, sex) && ageFits(p, age.days)) return p;
+  for (const p of version.partitions) if (sexFits(p, sex) && ageFits(p, age)) return p;
   const what = `The interval in force for ${analyte.code} (version ${version.number})`;
-  if (sex === null && version.partitions.some((p) => ageFits(p, age.days))) {
+  if (sex === null && version.partitions.some((p) => ageFits(p, age))) {
     return `${what} is partitioned by sex and has no partition for both sexes: give sex (F or M).`;
+  }
+  const curves = version.partitions.filter((p) => p.lms !== null && sexFits(p, sex));
+  if (age.days === null && curves.length > 0) {
+    return `${what} follows age curves: give the patient's exact age (birthDate and collectedAt, or ageYears).`;
   }
   if (age.days === null && version.partitions.some((p) => sexFits(p, sex))) {
     return `${what} is partitioned by age: give ageYears, or birthDate and collectedAt.`;
+  }
+  if (age.years !== null && curves.length > 0) {
+    const ranges = curves.map((p) => `${yearsText(p.lms!.ageMin)} to ${yearsText(p.lms!.ageMax)} years${p.sex === null ? "" : ` (${p.sex === "F" ? "female" : "male"})`}`);
+    return `${what} follows age curves that cover ${ranges.join(" and ")}; the patient's age, ${yearsText(age.years)} years, is outside them, and the curves are not extrapolated.`;
   }
   const who = `${sex === "F" ? "a female" : sex === "M" ? "a male" : "a"} patient${age.years === null ? "" : ` aged ${Math.round(age.years * 100) / 100} years`}`;
   return `${what} has no partition for ${who}.`;
@@ -209,6 +224,7 @@ function scoreOne(raw: unknown, ctx: Context): ScoreResult | ScoreItemError {
         unitConverted: converted ? { from: item.unit } : null,
         reviewOverdue: version.reviewByMs !== null && ctx.nowMs > version.reviewByMs,
         partitionChosenBy: choiceOf(partition),
+        ageYears: age.years,
       },
       partition.scorer ?? undefined,
     );
@@ -223,6 +239,7 @@ function scoreOne(raw: unknown, ctx: Context): ScoreResult | ScoreItemError {
     ctx.codes.add(code);
   }
   ctx.log(partition.logKey, value, censored, score.flag, score.z, score.percentile);
+  const at = score.lms;
   return {
     ref,
     analyte: analyte.ref,
@@ -232,8 +249,12 @@ function scoreOne(raw: unknown, ctx: Context): ScoreResult | ScoreItemError {
     percentile: score.percentile,
     percentileBound: score.percentileBound ?? undefined,
     flag: score.flag,
-    interval: partition.interval,
-    model: partition.model,
+    // LMS curves: this age's limits and L, M, S (the shared parts stay untouched).
+    interval: at === null ? partition.interval : { ...partition.interval, low: at.low, high: at.high },
+    model:
+      at === null || partition.lms === null
+        ? (partition.model as NonNullable<CachedPartition["model"]>)
+        : { kind: "lms", ageYears: at.ageYears, L: at.L, M: at.M, S: at.S, ageMin: partition.lms.ageMin, ageMax: partition.lms.ageMax },
     hl7: score.hl7,
     cautions,
     ageYearsUsed: age.years,
@@ -271,7 +292,7 @@ export async function scoreItems({
  * The in-force partitions of the analyte named by our code or a LOINC code, from the model cache;
  * null when no analyte has that code. `version` is null when none is in force.
  */
-export async function inForceIntervals(codeOrLoinc: string): Promise<InForceIntervals | null> {
+export async function inForceIntervals(codeOrLoinc: string, { ages }: { ages?: readonly number[] } = {}): Promise<InForceIntervals | null> {
   const { byCode, byLoinc } = await modelLookup();
   const byLoincFound = byLoinc(codeOrLoinc);
   const analyte = byCode(codeOrLoinc.toUpperCase()) ?? (byLoincFound.length === 1 ? byLoincFound[0] : undefined);
@@ -295,6 +316,23 @@ export async function inForceIntervals(codeOrLoinc: string): Promise<InForceInte
       n: p.n,
       unit: v?.unit ?? analyte.unit,
       hl7: { obx7: p.obx7 },
+      curves: p.lms ? { kind: "lms" as const, ageMin: p.lms.ageMin, ageMax: p.lms.ageMax } : null,
+      ...(ages === undefined ? {} : { atAges: limitsAtAges(p, ages, v?.decimals ?? analyte.decimals) }),
     })),
+    ...(ages === undefined ? {} : { ages: [...ages] }),
   };
+}
+
+/**
+ * A partition's limits at each requested age it covers: LMS curves read at the exact age (the
+ * 2.5th and 97.5th centiles there), an age band's or an all-ages partition's fixed limits.
+ */
+function limitsAtAges(p: CachedPartition, ages: readonly number[], decimals: number): NonNullable<InForceIntervals["partitions"][number]["atAges"]> {
+  const out: NonNullable<InForceIntervals["partitions"][number]["atAges"]> = [];
+  for (const ageYears of ages) {
+    if (!ageFits(p, { years: ageYears, days: ageYearsToDays(ageYears) })) continue;
+    const { low, high } = p.lms ? lmsLimitsAt(p.lms, ageYears) : p;
+    out.push({ ageYears, low, high, hl7: { obx7: p.lms ? obx7(low, high, decimals) : p.obx7 } });
+  }
+  return out;
 }

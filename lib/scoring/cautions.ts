@@ -15,7 +15,10 @@ export type CautionCode =
   | "partition-chosen"
   | "partition-default"
   | "limits-only"
-  | "flag-only";
+  | "flag-only"
+  | "limits-at-age"
+  | "limit-undefined-at-age"
+  | "z-undefined";
 
 export interface Caution {
   code: CautionCode;
@@ -114,6 +117,53 @@ export const FLAG_ONLY_CAUTION: Caution = {
     "computed from it.",
 };
 
+const ageWords = (ageYears: number) => `${(Math.round(ageYears * 100) / 100).toFixed(2)} years`;
+
+/** LMS curves: the limits are those of the patient's exact age, not of an age band. */
+export function limitsAtAgeCaution(ageYears: number): Caution {
+  return {
+    code: "limits-at-age",
+    get text() {
+      return (
+        `The limits are those of the patient's exact age (${ageWords(ageYears)}) on the laboratory's ` +
+        "continuous age curves (LMS method): they change smoothly with age, so the same value may be " +
+        "judged differently a few months earlier or later. Check that the age is right."
+      );
+    },
+  };
+}
+
+/**
+ * LMS curves: at this age a limit has no value, since 1 + L·S·z ≤ 0 there (METHODS.md §9); that
+ * side of the interval is open and nothing is clamped.
+ */
+export function limitUndefinedAtAgeCaution(sides: readonly ("lower" | "upper")[], ageYears: number): Caution {
+  const which = sides.length === 2 ? "neither the 2.5th nor the 97.5th centile" : sides[0] === "lower" ? "no 2.5th centile (lower limit)" : "no 97.5th centile (upper limit)";
+  return {
+    code: "limit-undefined-at-age",
+    get text() {
+      return (
+        `At ${ageWords(ageYears)} the age curves give ${which}: the curves' skewness puts that centile ` +
+        "outside the values the LMS formula can reach (1 + L·S·z ≤ 0), so that side is left open rather " +
+        "than set to an invented number. Ask the laboratory to review the curves."
+      );
+    },
+  };
+}
+
+/** LMS curves: a value of 0 or below has no z (the Box-Cox scale needs positive values). */
+export function zUndefinedCaution(value: number, unit: string): Caution {
+  return {
+    code: "z-undefined",
+    get text() {
+      return (
+        `The age curves give no z-score or percentile for ${value} ${unit}: the LMS method is defined ` +
+        "for positive values only, so only the flag against the limits is given."
+      );
+    },
+  };
+}
+
 export type PartitionChoice = "sex" | "age" | "age-and-sex" | "default";
 
 export function partitionCaution(choice: PartitionChoice): Caution {
@@ -156,4 +206,10 @@ export const CAUTION_TEXTS: Readonly<Record<CautionCode, string>> = {
     "No age or sex was given, so the combined or default interval was used; an age- or sex-specific interval, where the laboratory has one, may differ.",
   "limits-only": LIMITS_ONLY_CAUTION.text,
   "flag-only": FLAG_ONLY_CAUTION.text,
+  "limits-at-age":
+    "The limits are those of the patient's exact age on the laboratory's continuous age curves (LMS method): they change smoothly with age, so the same value may be judged differently a few months earlier or later. Check that the age is right.",
+  "limit-undefined-at-age":
+    "At this age the age curves give no value for one of the limits (1 + L·S·z ≤ 0 under the LMS formula), so that side of the interval is left open rather than set to an invented number. Ask the laboratory to review the curves.",
+  "z-undefined":
+    "The age curves give no z-score or percentile for a value of 0 or below: the LMS method is defined for positive values only, so only the flag against the limits is given.",
 };

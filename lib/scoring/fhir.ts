@@ -54,6 +54,10 @@ export interface ReferenceRangeInput {
   ageFrom?: number | null;
   /** Years, exclusive (the partition's band is half-open). */
   ageTo?: number | null;
+  /** LMS age curves: the exact age in years the limits belong to (the Range's low = high). */
+  atAge?: number | null;
+  /** LMS age curves asked without an age: the ages they cover, for a text-only element. */
+  curves?: { ageMin: number; ageMax: number } | null;
 }
 
 function ucumQuantity(value: number, code: string, unit: string = code): Quantity {
@@ -96,8 +100,12 @@ export function referenceRangeOf(input: ReferenceRangeInput): ObservationReferen
   };
   const sex = input.sex ?? null;
   if (sex !== null) range.appliesTo = [SEX_APPLIES_TO[sex]];
-  const ageFrom = input.ageFrom ?? null;
-  const ageTo = input.ageTo ?? null;
+  const atAge = input.atAge ?? null;
+  const curves = input.curves ?? null;
+  // LMS curves: the exact age (a Range of one point) or, asked without one, the ages they cover
+  // (both inclusive, as the curves are).
+  const ageFrom = atAge ?? curves?.ageMin ?? input.ageFrom ?? null;
+  const ageTo = atAge ?? curves?.ageMax ?? input.ageTo ?? null;
   if (ageFrom !== null || ageTo !== null) {
     range.age = {};
     if (ageFrom !== null) range.age.low = ucumQuantity(ageFrom, "a", "years");
@@ -109,8 +117,18 @@ export function referenceRangeOf(input: ReferenceRangeInput): ObservationReferen
       ? `${f(input.low)} to ${f(input.high)} ${input.unit}`
       : input.low !== null
         ? `${f(input.low)} ${input.unit} or more (lower limit only)`
-        : `${f(input.high as number)} ${input.unit} or less (upper limit only)`;
-  const who = [sex === "F" ? "female" : sex === "M" ? "male" : null, ageText(ageFrom, ageTo)].filter((s) => s !== null);
+        : input.high !== null
+          ? `${f(input.high)} ${input.unit} or less (upper limit only)`
+          : curves !== null
+            ? "Limits continuous in age (LMS age curves): the 2.5th and 97.5th centiles at the patient's exact age"
+            : "No limits at this age";
+  const ageWords =
+    atAge !== null
+      ? `at the exact age of ${Math.round(atAge * 100) / 100} years (LMS age curves)`
+      : curves !== null
+        ? `age ${curves.ageMin} to ${curves.ageMax} years`
+        : ageText(ageFrom, ageTo);
+  const who = [sex === "F" ? "female" : sex === "M" ? "male" : null, ageWords].filter((s) => s !== null);
   range.text = `${limits}${who.length > 0 ? `; ${who.join(", ")}` : ""}. ${REFERENCE_INTERVAL_DEFINITION}.`;
   return range;
 }
@@ -379,6 +397,8 @@ export interface ScoredValue {
   percentile: number | null;
   percentileBound?: "below" | "above";
   flag: Flag;
+  /** For LMS curves, `ageYears` is the exact age whose limits `interval` holds. */
+  model?: { kind: string; ageYears?: number };
   interval: {
     low: number | null;
     high: number | null;
@@ -412,6 +432,7 @@ export function scoredObservation(observation: Observation, score: ScoredValue, 
         sex: interval.partition.sex ?? null,
         ageFrom: interval.partition.ageFrom ?? null,
         ageTo: interval.partition.ageTo ?? null,
+        atAge: score.model?.kind === "lms" ? (score.model.ageYears ?? null) : null,
       }),
     ],
     interpretation: [interpretationOf(score.flag)],

@@ -4,6 +4,7 @@
  * API, command-line model file).
  */
 import { z } from "zod";
+import { lmsModelSchema } from "../stats/lms-model";
 
 const finite = z.number().refine(Number.isFinite, "must be a finite number");
 
@@ -46,11 +47,19 @@ export const zlogModelSchema = z.object({
  */
 export const limitsModelSchema = z.object({ kind: z.literal("limits") });
 
+/**
+ * LMS age curves (Cole & Green 1992; lib/stats/lms-model.ts's stored form, kept exactly): L, M
+ * and S at the patient's exact age give z, the percentile and the limits (the 2.5th and 97.5th
+ * centiles) at that age. A partition with this model has no fixed limits.
+ */
+export { lmsModelSchema };
+
 export const scoringModelSchema = z.discriminatedUnion("kind", [
   gaussianModelSchema,
   empiricalModelSchema,
   zlogModelSchema,
   limitsModelSchema,
+  lmsModelSchema,
 ]);
 
 /**
@@ -69,7 +78,13 @@ export const scoringPartitionSchema = z
     model: scoringModelSchema,
     n: z.number().int().positive().optional(),
   })
-  .refine((p) => p.low !== null || p.high !== null, { message: "a partition needs a low or a high limit" })
+  .refine((p) => p.model.kind === "lms" || p.low !== null || p.high !== null, {
+    message: "a partition needs a low or a high limit (only LMS age curves have none)",
+  })
+  .refine((p) => p.model.kind !== "lms" || (p.low === null && p.high === null), {
+    message: "an lms partition's limits follow the age curves: low and high must be null",
+    path: ["low"],
+  })
   .refine((p) => p.model.kind !== "zlog" || (p.low !== null && p.high !== null && p.low < p.high), {
     message: "a zlog model needs a low limit below a high limit",
     path: ["model"],
@@ -95,6 +110,7 @@ export type GaussianModel = z.infer<typeof gaussianModelSchema>;
 export type EmpiricalModel = z.infer<typeof empiricalModelSchema>;
 export type ZlogModel = z.infer<typeof zlogModelSchema>;
 export type ScoringModel = z.infer<typeof scoringModelSchema>;
+export type { LmsModel } from "../stats/lms-model";
 export type ScoringPartition = z.infer<typeof scoringPartitionSchema>;
 /** A partition before defaults are applied (decimals optional). */
 export type ScoringPartitionInput = z.input<typeof scoringPartitionSchema>;

@@ -158,3 +158,16 @@ function roundToSignificant(v: number, digits: number): number {
   const factor = Math.pow(10, digits - 1 - magnitude);
   return Math.round(v * factor) / factor;
 }
+
+/**
+ * LMS curves at one age as the gaussian on the Box-Cox scale with λ = L that they are there:
+ * z = ((x/M)^L − 1)/(L·S) = (g(x) − g(M))/(M^L·S) with g(x) = (x^L − 1)/L, so the mean is g(M)
+ * and the sd M^L·S; for L = 0, ln with mean ln M and sd S (METHODS.md §9). The score page
+ * draws the distribution at the patient's age with it.
+ * @example lmsAsGaussian({ L: 0, M: 100, S: 0.1 }) // { kind: "gaussian", transform: "ln", lambda: null, mean: 4.605…, sd: 0.1 }
+ */
+export function lmsAsGaussian(p: { L: number; M: number; S: number }): Extract<CurveModel, { kind: "gaussian" }> {
+  if (Math.abs(p.L) < 1e-6) return { kind: "gaussian", transform: "ln", lambda: null, mean: Math.log(p.M), sd: p.S };
+  const mL = Math.pow(p.M, p.L);
+  return { kind: "gaussian", transform: "box-cox", lambda: p.L, mean: (mL - 1) / p.L, sd: mL * p.S };
+}

@@ -1,10 +1,14 @@
 import normal from "@stdlib/stats-base-dists-normal";
 import { boxCoxOfValue } from "../stats/box-cox";
 import { rankType6 } from "../stats/quantile";
+import { lmsAt, type LmsModel } from "../stats/lms-model";
+import { lmsCentile, lmsZ } from "../stats/lms-z";
 import { assertFiniteNumber, StatsInputError } from "../stats/validate";
 import {
   FLAG_ONLY_CAUTION,
   GENERAL_CAUTION,
+  limitsAtAgeCaution,
+  limitUndefinedAtAgeCaution,
   LIMITS_ONLY_CAUTION,
   outsideReferenceDataCaution,
   partitionCaution,
@@ -12,6 +16,7 @@ import {
   tailExtrapolatedCaution,
   unitConvertedCaution,
   valueCensoredCaution,
+  zUndefinedCaution,
   type Caution,
   type PartitionChoice,
 } from "./cautions";
@@ -34,6 +39,20 @@ export interface ScoreInput {
   reviewOverdue?: boolean;
   /** How the partition was picked: by the sex/age given, or the default for lack of them. */
   partitionChosenBy?: PartitionChoice | null;
+  /** The patient's exact age in years: required by an lms model, ignored by the others. */
+  ageYears?: number | null;
+}
+
+/** LMS curves at one exact age: L, M, S and the limits there (null where a centile is undefined). */
+export interface LmsAtAge {
+  ageYears: number;
+  L: number;
+  M: number;
+  S: number;
+  /** The 2.5th centile at this age; null where 1 + L·S·z ≤ 0 (no value has that z). */
+  low: number | null;
+  /** The 97.5th centile at this age; null likewise. */
+  high: number | null;
 }
 
 export interface Score {
@@ -45,6 +64,8 @@ export interface Score {
   flag: Flag;
   hl7: { obx7: string; obx8: string };
   cautions: Caution[];
+  /** For an lms model: the curves at the patient's age, whose limits the flag used; else null. */
+  lms: LmsAtAge | null;
 }
 
 /** z, percentile and bound of one value, without flag or cautions: the fast path. */
@@ -57,6 +78,25 @@ export interface ModelScore {
 // Standard-normal Φ and Φ⁻¹ from @stdlib, bound once: the batch path calls them per value.
 const phi = normal.cdf.factory(0, 1);
 const phiInverse = normal.quantile.factory(0, 1);
+
+/**
+ * The LMS curves at an exact age: L, M and S (lmsAt) and the reference limits there, the 2.5th
+ * and 97.5th centiles (the same arithmetic as lmsCentileAt), null where 1 + L·S·z ≤ 0.
+ *
+ * @see Cole TJ, Green PJ. Stat Med 1992;11:1305–1319; METHODS.md §9.
+ * @throws StatsInputError for an age that is not finite or lies outside [ageMin, ageMax]
+ * Complexity: O(1).
+ * @example
+ * lmsLimitsAt(model, 4.5); // → { ageYears: 4.5, L, M, S, low: 98.1…, high: 262.1… }
+ */
+export function lmsLimitsAt(model: LmsModel, ageYears: number): LmsAtAge {
+  const p = lmsAt(model, ageYears);
+  return { ageYears, L: p.L, M: p.M, S: p.S, low: lmsCentile(p, 2.5), high: lmsCentile(p, 97.5) };
+}
+
+function lmsNeedsAge(): never {
+  throw new StatsInputError("this partition's limits follow age curves (LMS): the patient's exact age is needed to score a value");
+}
 
 function flagOnly(): never {
   throw new StatsInputError("this partition's model gives a flag only (a one-sided interval): it has no z-score or percentile");
@@ -120,6 +160,7 @@ export function createScorer(partition: ScoringPartition): (x: number) => ModelS
     return (x) => ({ ...zlog(x, low, high, { scale: model.scale }), bound: null });
   }
   if (model.kind === "limits") flagOnly();
+  if (model.kind === "lms") lmsNeedsAge();
   const idx: EmpiricalIndex = indexEmpirical(model);
   return (x) => {
     assertFiniteNumber(x, "value");
@@ -152,6 +193,7 @@ export function scoreMany(
   const bound = new Int8Array(m);
   const invalid: number[] = [];
   const model = partition.model;
+  if (model.kind === "lms") lmsNeedsAge();
   if (model.kind === "gaussian") {
     const { mean, sd } = model;
     // ln is Box-Cox with λ = 0.
@@ -230,6 +272,7 @@ export function scoreValue(input: ScoreInput, scorer?: (x: number) => ModelScore
     throw new StatsInputError(`value must be a finite number (got ${String(value)})`);
   }
   const model = partition.model;
+  if (model.kind === "lms") return scoreLms(input, model);
   const s: ModelScore =
     model.kind === "limits" ? { z: NaN, percentile: NaN, bound: null } : (scorer ?? createScorer(partition))(value);
   const censored = input.censored ?? null;
@@ -269,5 +312,52 @@ export function scoreValue(input: ScoreInput, scorer?: (x: number) => ModelScore
     flag,
     hl7: { obx7: obx7Of(partition), obx8: obx8(flag) },
     cautions,
+    lms: null,
+  };
+}
+
+/**
+ * Score against LMS curves at the patient's exact age (METHODS.md §9): L, M and S there, z =
+ * ((x/M)^L − 1)/(L·S) (ln(x/M)/S for L = 0), percentile 100·Φ(z), and the flag against the
+ * 2.5th and 97.5th centiles at that age. A limit that is undefined at this age (1 + L·S·z ≤ 0)
+ * leaves its side open, and a value ≤ 0 has no z: both are said in a caution, never clamped.
+ */
+function scoreLms(input: ScoreInput, model: LmsModel): Score {
+  const { partition, value } = input;
+  const ageYears = input.ageYears ?? null;
+  if (ageYears === null) lmsNeedsAge();
+  const at = lmsLimitsAt(model, ageYears);
+  const censored = input.censored ?? null;
+  const limits = { low: at.low, high: at.high, criticalLow: partition.criticalLow, criticalHigh: partition.criticalHigh };
+  const flag = censored ? flagCensored(censored, value, limits) : flagValue(value, limits);
+
+  const cautions: Caution[] = [GENERAL_CAUTION, limitsAtAgeCaution(ageYears)];
+  const undefinedSides = [...(at.low === null ? ["lower" as const] : []), ...(at.high === null ? ["upper" as const] : [])];
+  if (undefinedSides.length > 0) cautions.push(limitUndefinedAtAgeCaution(undefinedSides, ageYears));
+  let z: number | null = null;
+  let percentile: number | null = null;
+  let percentileBound: "below" | "above" | null = null;
+  if (value > 0) {
+    z = lmsZ(at, value);
+    percentile = 100 * phi(z);
+    if (Math.abs(z) > dataReach(partition.n)) cautions.push(tailExtrapolatedCaution(z, partition.n));
+  } else {
+    cautions.push(zUndefinedCaution(value, partition.unit));
+  }
+  if (censored) {
+    if (z !== null) percentileBound = censored === "<" ? "below" : "above";
+    cautions.push(valueCensoredCaution(censored, value, partition.unit));
+  }
+  if (input.unitConverted) cautions.push(unitConvertedCaution(input.unitConverted.from, partition.unit));
+  if (input.reviewOverdue) cautions.push(REVIEW_OVERDUE_CAUTION);
+  if (input.partitionChosenBy) cautions.push(partitionCaution(input.partitionChosenBy));
+  return {
+    z,
+    percentile,
+    percentileBound,
+    flag,
+    hl7: { obx7: obx7(at.low, at.high, partition.decimals), obx8: obx8(flag) },
+    cautions,
+    lms: at,
   };
 }

@@ -11,6 +11,8 @@
  * is flagged at its censoring limit, as the scoring models take it.
  */
 import { flagValue } from "@/lib/scoring/flag";
+import { lmsModelOf } from "@/lib/scoring/lms-curves-view";
+import { lmsLimitsAt } from "@/lib/scoring/score";
 import type { RecentScoresAnswer } from "./recent-scores";
 import { partitionLabel } from "@/lib/studies/partitions";
 import { DAYS_PER_YEAR } from "./age-days";
@@ -23,11 +25,15 @@ export interface ComparedPartition {
   ageToDays: number | null;
   low: number | null;
   high: number | null;
+  /** The scoring model: for LMS age curves (method lms) the limits are read at each donor's exact age. */
+  model?: unknown;
 }
 
 export interface ComparedDonor {
   sex: string;
   ageDays: number;
+  /** The exact age, for partitions of LMS age curves. */
+  ageYears?: number;
   value: number;
 }
 
@@ -96,6 +102,18 @@ export function simpleFlag(value: number, limits: LimitsPair): SimpleFlag {
  * none is) over the study's donors.
  * Complexity: O(d·(p + q)) for d donors, p new and q old partitions.
  */
+/**
+ * The limits a donor is flagged against in a partition: fixed limits, or for LMS age curves the
+ * 2.5th and 97.5th centiles at the donor's exact age (null when the age is not within the curves).
+ */
+function limitsForDonor(p: ComparedPartition, d: ComparedDonor): LimitsPair | null {
+  const curves = lmsModelOf(p.model);
+  if (!curves) return limitsOf(p);
+  if (d.ageYears === undefined || !(d.ageYears >= curves.ageMin && d.ageYears <= curves.ageMax)) return null;
+  const at = lmsLimitsAt(curves, d.ageYears);
+  return { low: at.low, high: at.high };
+}
+
 export function compareVersions({
   next,
   current,
@@ -116,13 +134,15 @@ export function compareVersions({
   let notCovered = 0;
   for (const d of donors) {
     const i = next.findIndex((p) => covers(p, d.sex, d.ageDays));
-    if (i < 0) {
+    const newLimits = i < 0 ? null : limitsForDonor(next[i], d);
+    if (newLimits === null) {
       notCovered++;
       continue;
     }
-    const to = simpleFlag(d.value, next[i]);
+    const to = simpleFlag(d.value, newLimits);
     const oldPartition = current ? old.find((o) => covers(o, d.sex, d.ageDays)) : undefined;
-    const from = oldPartition ? simpleFlag(d.value, oldPartition) : null;
+    const oldLimits = oldPartition ? limitsForDonor(oldPartition, d) : null;
+    const from = oldLimits ? simpleFlag(d.value, oldLimits) : null;
     const tally = tallies[i];
     tally.total++;
     // Without a version in force there is nothing to change from: nothing counts as changed.

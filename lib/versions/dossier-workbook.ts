@@ -5,6 +5,8 @@
  * donor-level data), Audit events. Pure: plain data in, bytes out; every cell is written by
  * lib/xlsx/streamed-workbook.ts, so text is never a formula.
  */
+import { lmsModelOf, lmsRows, lmsScopeLabel, lmsTableAges } from "@/lib/scoring/lms-curves-view";
+import { lmsAt } from "@/lib/stats/lms-model";
 import { donorSheet, estimatesSheet, num, partitionsSheet, str, type StudyExportData } from "@/lib/studies/export-workbook";
 import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWriter } from "@/lib/xlsx/streamed-workbook";
 import { scopeLabel } from "./comparison";
@@ -146,6 +148,31 @@ function versionPartitionsSheet(workbook: WorkbookWriter, data: DossierData): vo
   sheet.commit();
 }
 
+/**
+ * LMS age curves: each lms partition's limits (2.5th and 97.5th centiles), median and L, M, S at
+ * the table ages that the pages show; the curves themselves are in the Partitions sheet's
+ * scoring model, from which every other age can be reproduced.
+ */
+function ageCurvesSheet(workbook: WorkbookWriter, data: DossierData): void {
+  const curves = data.version.partitions.flatMap((p) => {
+    const model = lmsModelOf(p.model);
+    return model ? [{ p, model }] : [];
+  });
+  if (curves.length === 0) return;
+  const unit = data.version.unit;
+  const sheet = tableSheet(workbook, "Age curves", [
+    "Position", "Partition", "Age (years)", `Lower limit (${unit})`, `Median (${unit})`, `Upper limit (${unit})`, "L", "M", "S",
+  ]);
+  for (const { p, model } of curves) {
+    const label = lmsScopeLabel(p);
+    for (const row of lmsRows(model, lmsTableAges(model))) {
+      const at = lmsAt(model, row.ageYears);
+      addRow(sheet, [p.position, label, row.ageYears, num(row.low), row.median, num(row.high), at.L, at.M, at.S]);
+    }
+  }
+  sheet.commit();
+}
+
 function exclusionsSheet(workbook: WorkbookWriter, data: DossierData): void {
   const sheet = tableSheet(workbook, "Exclusions", [
     "Donor result", "Donor code", "Sex", "Age (years)", `Value (${data.version.unit})`, "Source", "Rule", "Reason", "Excluded at", "Excluded by",
@@ -164,12 +191,14 @@ function auditSheet(workbook: WorkbookWriter, data: DossierData): void {
 
 /** The dossier's bytes. */
 export async function dossierWorkbook(data: DossierData): Promise<Buffer> {
-  const estimateIds = new Set(data.version.partitions.map((p) => p.estimateId));
+  // LMS curves have no methods side by side: their estimates are shown in "Age curves" instead.
+  const estimateIds = new Set(data.version.partitions.filter((p) => p.method !== "lms").map((p) => p.estimateId));
   const estimates = data.study?.estimates.filter((e) => estimateIds.has(e.id)) ?? [];
   return streamedWorkbook(data.exportedAt, (workbook) => {
     summarySheet(workbook, data);
     signaturesSheet(workbook, data);
     versionPartitionsSheet(workbook, data);
+    ageCurvesSheet(workbook, data);
     estimatesSheet(workbook, { estimates }, "Methods");
     partitionsSheet(workbook, { assessments: data.study?.assessments ?? [] }, "Partition verdicts");
     if (data.donorLevel) {

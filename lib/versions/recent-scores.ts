@@ -73,6 +73,8 @@ function sortedTransitions(counts: Map<string, number>): TransitionCounts {
  * Re-flags grouped logged scores against the new version.
  * Complexity: O(g + s·p) for g groups, s distinct logged partitions and p new partitions.
  */
+const isAgeCurves = (p: ComparedPartition) => (p.model as { kind?: unknown } | null | undefined)?.kind === "lms";
+
 export function recentScoreChanges({
   next,
   critical,
@@ -104,7 +106,8 @@ export function recentScoreChanges({
     let target = mapping.get(key);
     if (target === undefined) {
       const covering = g.partition ? next.flatMap((p, i) => (containsScope(p, g.partition!) ? [i] : [])) : [];
-      target = covering.length === 1 ? covering[0] : -1;
+      // LMS age curves need each patient's age, which the log does not keep: not re-flagged.
+      target = covering.length === 1 && !isAgeCurves(next[covering[0]]) ? covering[0] : -1;
       mapping.set(key, target);
     }
     if (target < 0) {

@@ -73,6 +73,9 @@ export async function run(args: string[]): Promise<number> {
   if (rawValues.length === 0) throw new CliError(`give at least one value to score\n${USAGE}`);
 
   const partition = await loadPartition(modelPath);
+  if (partition.model.kind === "lms") {
+    throw new CliError(`model file ${modelPath} holds LMS age curves, which score at an exact age: score them with the API (POST /api/v1/scores with ageYears, or birthDate and collectedAt)`);
+  }
   const values = rawValues.map(parseValue);
   // A limits-only model gives a flag and no z: scoreValue handles it without a scorer.
   const scorer = partition.model.kind === "limits" ? undefined : createScorer(partition);

@@ -378,6 +378,8 @@ describe("GET /api/v1/analytes/{code}/intervals", () => {
         lowCi: [r.low_ci_lower, r.low_ci_upper], highCi: [r.high_ci_lower, r.high_ci_upper], method: r.method, n: r.n, unit: "g/L",
         // HL7 v2 OBX-7 "low-high" with the analyte's 0 decimals.
         hl7: { obx7: `${r.low.toFixed(0)}-${r.high.toFixed(0)}` },
+        // Fixed limits: no LMS age curves (tests/api/lms-scores.test.ts has those).
+        curves: null,
         // The FHIR element itself is checked in tests/api/fhir-score.test.ts.
         referenceRange: expect.objectContaining({ low: expect.objectContaining({ value: r.low }), high: expect.objectContaining({ value: r.high }) }),
       })),

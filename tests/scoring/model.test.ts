@@ -26,9 +26,9 @@ describe("scoring model schema", () => {
       "model.values: an empirical model needs at least 2 reference values",
     ]);
     expect(issues({ ...base, low: 6 })).toEqual(["low: low must not exceed high"]);
-    expect(issues({ ...base, low: null, high: null })).toEqual([": a partition needs a low or a high limit"]);
+    expect(issues({ ...base, low: null, high: null })).toEqual([": a partition needs a low or a high limit (only LMS age curves have none)"]);
     expect(issues({ ...base, criticalLow: 4 })).toEqual(["criticalLow: criticalLow must not exceed low"]);
     expect(issues({ ...base, criticalHigh: 5 })).toEqual(["criticalHigh: criticalHigh must not be below high"]);
-    expect(issues({ ...base, model: { kind: "lms" } }).length).toBe(1);
+    expect(issues({ ...base, model: { kind: "centile-table" } }).length).toBe(1);
   });
 });

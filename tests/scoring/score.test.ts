@@ -144,6 +144,9 @@ describe("scoreMany", () => {
     // against METHODS.md §10.1's zlog table; they have no R fixture here.
     covered.add("zlog");
     covered.add("limits");
+    // lms (age curves) scores at an age, not in batches: tests/scoring/lms-score.test.ts checks it
+    // against METHODS.md §9's CDC values.
+    covered.add("lms");
     // Every member of the union (lib/scoring/model.ts), so a new kind cannot go unchecked.
     const union = scoringModelSchema.options.flatMap((o) =>
       o.shape.kind.value === "gaussian"

@@ -15,7 +15,7 @@ export interface PartitionSpec {
   ageToDays?: number | null;
   low: number | null;
   high: number | null;
-  method: "nonparametric" | "parametric" | "robust" | "adopted";
+  method: "nonparametric" | "parametric" | "robust" | "adopted" | "lms";
   n: number;
   model: Record<string, unknown>;
 }

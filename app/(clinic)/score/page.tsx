@@ -11,6 +11,7 @@ import { formatDate } from "@/lib/format";
 import { can } from "@/lib/auth/roles";
 import { requirePageCaller } from "@/lib/auth/session";
 import { noIntervalReason, patientScopeLabel } from "@/lib/versions/availability";
+import { lmsScopeLabel } from "@/lib/scoring/lms-curves-view";
 import { scopeLabel } from "@/lib/versions/comparison";
 
 export const metadata: Metadata = { title: "Score" };
@@ -47,7 +48,7 @@ export default async function ScorePage({ searchParams }: { searchParams: Promis
         ? {
             number: v.number,
             effectiveFrom: v.effectiveFrom ? formatDate(v.effectiveFrom) : null,
-            partitions: v.partitions.map((p) => patientScopeLabel(scopeLabel(p))),
+            partitions: v.partitions.map((p) => lmsScopeLabel(p) ?? patientScopeLabel(scopeLabel(p))),
             bySex: v.partitions.some((p) => p.sex !== null),
             byAge: v.partitions.some((p) => p.ageFromDays !== null || p.ageToDays !== null),
           }

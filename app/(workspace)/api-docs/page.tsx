@@ -170,6 +170,14 @@ export default async function ApiDocsPage() {
               intervals, method, n, the HL7 <Code>obx7</Code> string and its FHIR <Code>referenceRange</Code> elements. Reload when a new
               version comes into force: the contact e-mail of each LIS connection is told.
             </p>
+            <p>
+              Children&apos;s intervals may follow continuous age curves (method <Code>lms</Code>): such a partition has no fixed limits
+              (<Code>low</Code> and <Code>high</Code> are <Code>null</Code>, <Code>curves</Code> gives the ages covered). Ask for the limits at
+              given ages with <Code>?ages=0.5,4,12</Code>: every partition then lists under <Code>atAges</Code> its limits at each of those
+              ages it covers, each with a FHIR <Code>referenceRange</Code> whose <Code>age</Code> is that age. Scores against curves need the
+              patient&apos;s exact age (<Code>birthDate</Code> and <Code>collectedAt</Code>, or <Code>ageYears</Code>) and answer the limits
+              at that age in <Code>interval</Code>, with <Code>model</Code> giving L, M and S there.
+            </p>
           </Section>
 
           <Section id="errors" title="Errors">

@@ -3,6 +3,7 @@ import type { IntervalVersionView } from "@/components/intervals/types";
 import { fixed, limitsText, METHOD_WORDS } from "@/components/versions/numbers";
 import type { VersionOut } from "@/db/queries/interval-versions";
 import { formatDate, formatDateTime } from "@/lib/format";
+import { lmsScopeLabel } from "@/lib/scoring/lms-curves-view";
 import { patientScopeLabel } from "@/lib/versions/availability";
 import { scopeLabel } from "@/lib/versions/comparison";
 import { reviewDueWording } from "@/lib/versions/review-due";
@@ -28,15 +29,17 @@ export function versionView(v: VersionOut, now: Date): IntervalVersionView {
     stateLabel: VERSION_STATE_LABELS[v.state],
     effectiveFrom: v.effectiveFrom ? formatDate(v.effectiveFrom) : null,
     effectiveTo: v.effectiveTo ? formatDate(v.effectiveTo) : null,
+    decimals: v.decimals,
     partitions: v.partitions.map((p) => {
       const low = ci(p.lowCi, v.decimals);
       const high = ci(p.highCi, v.decimals);
       return {
-        scope: patientScopeLabel(scopeLabel(p)),
+        scope: lmsScopeLabel(p) ?? patientScopeLabel(scopeLabel(p)),
         limits: limitsText({ low: p.low, high: p.high }, v.decimals),
         cis: low || high ? `lower ${low ?? "—"}, upper ${high ?? "—"}` : "",
         method: METHOD_WORDS[p.method] ?? p.method,
         n: p.n,
+        curves: p.method === "lms" ? { sex: p.sex, n: p.n, model: p.model } : null,
       };
     }),
     signedOff: signedOff ? { by: signedOff.signer.name, at: formatDateTime(signedOff.at) } : null,

@@ -116,3 +116,36 @@ describe("compareVersions", () => {
     expect(result.donorFlagChanges).toMatchObject({ total: 3, changed: 0, notCovered: 3 });
   });
 });
+
+describe("compareVersions with LMS age curves", () => {
+  // Constant curves L = 0 (ln branch), M = 100, S = 0.1 from 0 to 18 years: at every age the
+  // limits are 100·exp(∓0.1·qnorm(0.975)); R: 100*exp(c(-1,1)*0.1*qnorm(0.975)) → 82.20 121.65.
+  // The second curves have M = 200 (limits 164.4 and 243.3). Cubic B-splines with equal
+  // coefficients are that constant (they sum to one; de Boor 1978).
+  const curves = (m: number) => ({
+    kind: "lms",
+    ageTransform: "sqrt",
+    ageMin: 0,
+    ageMax: 18,
+    intervals: 1,
+    L: [0, 0, 0, 0],
+    logM: Array(4).fill(Math.log(m)),
+    logS: Array(4).fill(Math.log(0.1)),
+  });
+  const lms = (m: number) => ({ sex: null, ageFromDays: 0, ageToDays: 6576, low: null, high: null, model: curves(m) });
+
+  it("flags each donor against the limits at its exact age, and leaves out a donor without an age or outside the curves", () => {
+    const donors = [
+      { sex: "F", ageDays: 365, ageYears: 1, value: 125 }, // H under M = 100, L under M = 200
+      { sex: "M", ageDays: 3652, ageYears: 10, value: 180 }, // H, then N
+      { sex: "M", ageDays: 3652, value: 100 }, // no exact age: not placed
+    ];
+    const result = compareVersions({ next: [lms(200)], current: [lms(100)], donors });
+    expect(result.partitions[0].new).toEqual({ low: null, high: null });
+    expect(result.donorFlagChanges).toMatchObject({ total: 2, changed: 2, notCovered: 1 });
+    expect(result.donorFlagChanges.byPartition[0].transitions).toEqual([
+      { from: "H", to: "L", count: 1 },
+      { from: "H", to: "N", count: 1 },
+    ]);
+  });
+});

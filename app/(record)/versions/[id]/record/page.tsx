@@ -3,6 +3,7 @@ import Link from "next/link";
 import type { ReactNode } from "react";
 import { SimpleTable } from "@/components/ui/simple-table";
 import { limitsText, ciText, fixed, METHOD_WORDS } from "@/components/versions/numbers";
+import { LmsPartitionsCurves } from "@/components/versions/lms-partition";
 import { PrintButton } from "@/components/versions/print-button";
 import { SignatureList } from "@/components/versions/signature-list";
 import { versionStateWords } from "@/components/versions/version-header";
@@ -11,6 +12,7 @@ import { getLaboratoryName } from "@/db/queries/laboratory";
 import { can } from "@/lib/auth/roles";
 import { requirePageCaller } from "@/lib/auth/session";
 import { formatDate, formatDateTime } from "@/lib/format";
+import { lmsScopeLabel } from "@/lib/scoring/lms-curves-view";
 import { scopeLabel } from "@/lib/versions/comparison";
 import { recentScoresSentences } from "@/lib/versions/recent-scores";
 import { loadVersionReview } from "../../../../(lab)/versions/[id]/load";
@@ -72,8 +74,9 @@ export default async function VersionRecordPage({ params }: { params: Promise<{ 
         <SimpleTable
           caption="Partitions with limits, 90% CIs, method and n"
           head={["Partition", `Limits (${v.unit})`, "Lower 90% CI", "Upper 90% CI", "Method", "n"]}
-          rows={v.partitions.map((p) => [scopeLabel(p), limitsText(p, d), ciText(p.lowCi, d), ciText(p.highCi, d), METHOD_WORDS[p.method] ?? p.method, String(p.n)])}
+          rows={v.partitions.map((p) => [lmsScopeLabel(p) ?? scopeLabel(p), limitsText(p, d), ciText(p.lowCi, d), ciText(p.highCi, d), METHOD_WORDS[p.method] ?? p.method, String(p.n)])}
         />
+        <LmsPartitionsCurves partitions={v.partitions} unit={v.unit} decimals={d} />
         <Facts
           rows={[
             ["Critical limits", `${fixed(v.criticalLow, d)} low, ${fixed(v.criticalHigh, d)} high`],
