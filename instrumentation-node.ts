@@ -41,6 +41,8 @@ export async function startScheduledJobs(): Promise<void> {
   process.once("SIGTERM", stop);
   process.once("SIGINT", stop);
   await startScoringJobs();
+  const { startAuditSealer } = await import("./lib/audit/sealer");
+  startAuditSealer();
 }
 
 /**
