@@ -11,7 +11,7 @@
  * events became visible, not the order of their ids. Only sealers queue behind each other, for
  * milliseconds.
  */
-import { Client, Pool, type PoolClient } from "pg";
+import type { Client, Pool, PoolClient } from "pg";
 import { chainLinks, ChainWalker, type ChainBreak, type ChainedEvent, type ChainHead, type ChainLink } from "../lib/audit/chain";
 
 type Connection = Pool | Client | PoolClient;
@@ -32,8 +32,16 @@ const EVENT_COLUMNS = `
   e.summary,
   e.details::text AS details`;
 
+/**
+ * A pool hands each query to any of its connections, so a transaction needs one client of it.
+ * Told apart by shape, not `instanceof`: bundlers and test runners may load pg twice.
+ */
+function isPool(connection: Connection): connection is Pool {
+  return typeof (connection as Pool).totalCount === "number";
+}
+
 async function withClient<T>(connection: Connection, work: (client: Client | PoolClient) => Promise<T>): Promise<T> {
-  if (connection instanceof Pool) {
+  if (isPool(connection)) {
     const client = await connection.connect();
     try {
       return await work(client);

@@ -46,7 +46,7 @@ export function summaryLine(v: AuditVerification): string {
 export function brokenLine(v: AuditVerification): string {
   const b = v.break!;
   const where = b.eventId !== null ? `event ${b.eventId}` : `link ${b.position}`;
-  return `audit trail broken at ${where}: ${b.reason} (${count(v.links)} links before it hold)`;
+  return `audit trail broken at ${where}: ${b.reason} (${v.links === 1 ? "1 link" : `${count(v.links)} links`} before it hold${v.links === 1 ? "s" : ""})`;
 }
 
 export async function run(args: string[]): Promise<number> {
