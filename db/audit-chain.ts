@@ -55,7 +55,7 @@ async function withClient<T>(connection: Connection, work: (client: Client | Poo
 /** The newest link, or null while the chain is empty. */
 export async function readChainHead(connection: Connection): Promise<ChainHead | null> {
   const { rows } = await connection.query<{ position: string; eventId: string; hash: string }>(
-    `SELECT position::text AS position, event_id::text AS "eventId", hash FROM audit_chain ORDER BY position DESC LIMIT 1`,
+    `SELECT c.position::text AS position, c.event_id::text AS "eventId", c.hash FROM audit_chain c ORDER BY c.position DESC LIMIT 1`,
   );
   return rows.length ? { position: Number(rows[0].position), eventId: rows[0].eventId, hash: rows[0].hash } : null;
 }

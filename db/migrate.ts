@@ -33,7 +33,8 @@ export async function migrateDatabase(ownerUrl: string): Promise<void> {
   }
 }
 
-async function applyGrants(client: Client): Promise<void> {
+/** Applies db/grants.sql in one transaction (also after a restore, since a dump carries no roles or grants). */
+export async function applyGrants(client: Client): Promise<void> {
   const grants = fs.readFileSync(GRANTS_FILE, "utf8");
   try {
     await client.query("BEGIN");
