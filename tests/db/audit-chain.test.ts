@@ -12,6 +12,7 @@ import { migrateDatabase } from "@/db/migrate";
 import { recordAuditEvent, SYSTEM_ACTOR } from "@/db/queries/audit";
 import { chainLinks, type ChainedEvent } from "@/lib/audit/chain";
 import { testDatabase } from "../support/database";
+import { waitFor } from "../support/scores";
 import { appUrl, createScratchDatabase, ownerUrl, pgError, queryRows, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
 
 const exec = promisify(execFile);
@@ -53,6 +54,13 @@ describe("the audit chain on the served test database", () => {
     expect(v.links).toBe(v.events - v.pending);
     expect(v.signatures).toBeGreaterThan(0);
     expect(v.head?.position).toBe(v.links);
+  });
+
+  it("the served app seals committed events by itself (lib/audit/sealer.ts, once a second)", async () => {
+    const id = await marker("sealed by the app");
+    // A bound on the wait, not a speed check: the machine may be busy.
+    await waitFor(async () => (await linkOf(id)) !== null, 20_000, 100);
+    expect((await verifyAuditChain(pool)).ok).toBe(true);
   });
 
   it("an audited transaction left open holds no other audited write, and the chain follows commit order", async () => {
