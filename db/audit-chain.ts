@@ -11,7 +11,12 @@
  * events became visible, not the order of their ids. Only sealers queue behind each other, for
  * milliseconds.
  */
+import { inArray } from "drizzle-orm";
+import { drizzle } from "drizzle-orm/node-postgres";
 import type { Client, Pool, PoolClient } from "pg";
+import { canonicalContentOf } from "../lib/versions/canonical-content";
+import * as schema from "./schema";
+import { canonicalVersionOf } from "./version-content";
 import { chainLinks, ChainWalker, type ChainBreak, type ChainedEvent, type ChainHead, type ChainLink } from "../lib/audit/chain";
 
 type Connection = Pool | Client | PoolClient;
@@ -139,6 +144,11 @@ export async function verifyAuditChain(connection: Connection, { expected }: { e
   });
 }
 
+/** The same check inside a transaction the caller holds open (it sees the caller's own changes). */
+export function verifyAuditChainInTransaction(client: Client | PoolClient, { expected }: { expected?: ExpectedHead | null } = {}): Promise<AuditVerification> {
+  return verifyInSnapshot(client, expected ?? null);
+}
+
 async function verifyInSnapshot(client: Client | PoolClient, expected: ExpectedHead | null): Promise<AuditVerification> {
   const walker = new ChainWalker();
   let broken: ChainBreak | null = null;
@@ -184,8 +194,8 @@ async function verifyInSnapshot(client: Client | PoolClient, expected: ExpectedH
   }
 
   if (!broken) {
-    const { rows } = await client.query<{ id: string; hashOk: boolean; eventId: string | null; eventHash: string | null; contentSha256: string }>(
-      `SELECT s.id::text AS id,
+    const { rows } = await client.query<{ id: string; versionId: string; canonicalContent: string; hashOk: boolean; eventId: string | null; eventHash: string | null; contentSha256: string }>(
+      `SELECT s.id::text AS id, s.version_id::text AS "versionId", s.canonical_content AS "canonicalContent",
               encode(sha256(convert_to(s.canonical_content, 'UTF8')), 'hex') = s.content_sha256 AS "hashOk",
               s.content_sha256 AS "contentSha256",
               e.id::text AS "eventId",
@@ -208,6 +218,7 @@ async function verifyInSnapshot(client: Client | PoolClient, expected: ExpectedH
         break;
       }
     }
+    if (!broken) broken = await versionContentBreak(client, rows);
   }
 
   if (!broken && expected) {
@@ -233,4 +244,39 @@ async function verifyInSnapshot(client: Client | PoolClient, expected: ExpectedH
     head: last,
     break: broken,
   };
+}
+
+/**
+ * A signed version's content recomputed from its rows now (db/version-content.ts, the very reading
+ * signing used) against the canonical content each of its signatures holds: a limit, model or
+ * partition changed behind the database's guards shows here. Versions never change once they
+ * leave draft, so every signature of a version covers the same content.
+ */
+async function versionContentBreak(
+  client: Client | PoolClient,
+  signed: readonly { id: string; versionId: string; canonicalContent: string; eventId: string | null }[],
+): Promise<ChainBreak | null> {
+  if (signed.length === 0) return null;
+  const orm = drizzle(client, { schema });
+  const versionIds = [...new Set(signed.map((s) => s.versionId))];
+  const versions = new Map((await orm.select().from(schema.intervalVersions).where(inArray(schema.intervalVersions.id, versionIds))).map((v) => [v.id, v]));
+  const analyteIds = [...new Set([...versions.values()].map((v) => v.analyteId))];
+  const analytes = new Map((await orm.select().from(schema.analytes).where(inArray(schema.analytes.id, analyteIds))).map((a) => [a.id, a]));
+  const now = new Map<string, { text: string; sha256: string }>();
+  for (const s of signed) {
+    let content = now.get(s.versionId);
+    if (!content) {
+      const version = versions.get(s.versionId)!;
+      content = canonicalContentOf(await canonicalVersionOf(orm, { version, analyte: analytes.get(version.analyteId)! }));
+      now.set(s.versionId, content);
+    }
+    if (content.text !== s.canonicalContent) {
+      return {
+        position: null,
+        eventId: s.eventId,
+        reason: `signature ${s.id}: interval version ${s.versionId} no longer holds the content it signed (it now hashes to ${content.sha256})`,
+      };
+    }
+  }
+  return null;
 }

@@ -7,7 +7,7 @@ import { drizzle } from "drizzle-orm/node-postgres";
 import { migrate } from "drizzle-orm/node-postgres/migrator";
 import { Client } from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { sealAuditChain, verifyAuditChain } from "@/db/audit-chain";
+import { sealAuditChain, verifyAuditChain, verifyAuditChainInTransaction } from "@/db/audit-chain";
 import { migrateDatabase } from "@/db/migrate";
 import { recordAuditEvent, SYSTEM_ACTOR } from "@/db/queries/audit";
 import { chainLinks, type ChainedEvent } from "@/lib/audit/chain";
@@ -101,6 +101,69 @@ describe("the audit chain on the served test database", () => {
     );
     expect(rows[0]).toEqual({ n: "30", positions: "30" });
     expect((await verifyAuditChain(pool)).ok).toBe(true);
+  });
+
+  /** Runs `tamper` as the owner and the verification in the same transaction, then rolls both back. */
+  async function verifyTampered(tamper: string) {
+    const owner = new Client({ connectionString: ownerUrl() });
+    await owner.connect();
+    try {
+      await owner.query("BEGIN");
+      await owner.query(tamper);
+      return await verifyAuditChainInTransaction(owner);
+    } finally {
+      await owner.query("ROLLBACK");
+      await owner.end();
+    }
+  }
+
+  async function signedVersion(): Promise<{ versionId: string; signatureId: string; eventId: string }> {
+    const [row] = await queryRows<{ versionId: string; signatureId: string; eventId: string }>(
+      appUrl(),
+      `SELECT s.version_id::text AS "versionId", s.id::text AS "signatureId", e.id::text AS "eventId"
+       FROM signatures s JOIN interval_versions v ON v.id = s.version_id
+       JOIN audit_events e ON e.action = 'signature.created' AND e.details->>'signatureId' = s.id::text
+       WHERE v.state = 'in_force' ORDER BY s.signed_at, s.id LIMIT 1`,
+    );
+    return row;
+  }
+
+  it("a signed version whose limits were changed behind the guards fails at its signature", async () => {
+    await sealAuditChain(pool);
+    const { versionId, signatureId, eventId } = await signedVersion();
+    // Only the first signature of the version may be named: the earliest one that no longer holds.
+    const [{ first }] = await queryRows<{ first: string }>(appUrl(), `SELECT id::text AS first FROM signatures WHERE version_id = '${versionId}' ORDER BY signed_at, id LIMIT 1`);
+    expect(first).toBe(signatureId);
+    const result = await verifyTampered(
+      `ALTER TABLE interval_partitions DISABLE TRIGGER interval_partitions_guard;
+       UPDATE interval_partitions SET high = high + 1 WHERE version_id = '${versionId}';`,
+    );
+    expect(result.ok).toBe(false);
+    expect(result.break).toEqual({
+      position: null,
+      eventId,
+      reason: expect.stringMatching(new RegExp(`^signature ${signatureId}: interval version ${versionId} no longer holds the content it signed \\(it now hashes to [0-9a-f]{64}\\)$`)),
+    });
+  });
+
+  it("a signature whose content and hash were both rewritten fails against its audit event", async () => {
+    await sealAuditChain(pool);
+    const { signatureId, eventId } = await signedVersion();
+    const result = await verifyTampered(
+      `ALTER TABLE signatures DISABLE TRIGGER signatures_no_update_delete;
+       UPDATE signatures SET canonical_content = canonical_content || ' ',
+         content_sha256 = encode(sha256(convert_to(canonical_content || ' ', 'UTF8')), 'hex') WHERE id = '${signatureId}';`,
+    );
+    expect(result.break).toEqual({
+      position: null,
+      eventId,
+      reason: `signature ${signatureId}: its SHA-256 differs from the one audit event ${eventId} recorded when it was made`,
+    });
+    const onlyContent = await verifyTampered(
+      `ALTER TABLE signatures DISABLE TRIGGER signatures_no_update_delete;
+       UPDATE signatures SET canonical_content = canonical_content || ' ' WHERE id = '${signatureId}';`,
+    );
+    expect(onlyContent.break?.reason).toBe(`signature ${signatureId}: its content no longer hashes to its recorded SHA-256`);
   });
 
   it("the app's role may add links but not change or remove them, and the owner is refused by the triggers", async () => {
