@@ -33,7 +33,8 @@ export async function versionDossierData(
         entityType: "interval_version",
         entityId: id,
         summary: `Exported the dossier of version ${version.number} of ${version.analyte.code}${donorLevel ? " with donor-level data" : " without donor-level data"}`,
-        details: { donorLevel, donorResults: study?.donorResults.length ?? 0, signatures: signatures.length },
+        // The head handed out with the dossier, so the trail itself says which head each copy carries.
+        details: { donorLevel, donorResults: study?.donorResults.length ?? 0, signatures: signatures.length, auditChainHead },
       });
       return {
         version: {

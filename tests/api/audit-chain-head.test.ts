@@ -47,11 +47,13 @@ describe("the audit chain's head in each dossier and sign-off record", () => {
     expect(field("Check the audit trail against it")).toBe(`npm run -s bellwether -- verify-audit --head ${position}:${link.hash}`);
 
     // The export's own audit event was written after that head was read.
-    const [exported] = await queryRows<{ id: string }>(
+    const [exported] = await queryRows<{ id: string; head: unknown }>(
       appUrl(),
-      `SELECT id::text FROM audit_events WHERE action = 'interval_version.dossier_exported' AND entity_id = '${versionId}' ORDER BY id DESC LIMIT 1`,
+      `SELECT id::text, details->'auditChainHead' AS head FROM audit_events WHERE action = 'interval_version.dossier_exported' AND entity_id = '${versionId}' ORDER BY id DESC LIMIT 1`,
     );
     expect(Number(exported.id)).toBeGreaterThan(Number(eventId));
+    // The export's audit event names the head it handed out.
+    expect(exported.head).toEqual({ position: Number(position), eventId, hash: link.hash });
 
     const { stdout } = await exec(TSX, ["scripts/bellwether.ts", "verify-audit", "--head", `${position}:${link.hash}`], { cwd: ROOT, env: { ...process.env, DATABASE_URL: appUrl() } });
     expect(stdout).toMatch(/^audit trail intact: /);

@@ -34,9 +34,11 @@ async function linkOf(id: number): Promise<{ position: number } | null> {
   return rows.length ? { position: Number(rows[0].position) } : null;
 }
 
-async function verifyCli(url: string, args: string[] = []): Promise<{ code: number; stdout: string; stderr: string }> {
+/** The command line through tsx, or with `launcher` through the bundle that `npm run -s bellwether` runs. */
+async function verifyCli(url: string, args: string[] = [], { launcher = false } = {}): Promise<{ code: number; stdout: string; stderr: string }> {
   try {
-    const { stdout, stderr } = await exec(TSX, ["scripts/bellwether.ts", "verify-audit", ...args], { cwd: ROOT, env: { ...process.env, DATABASE_URL: url } });
+    const [bin, entry] = launcher ? [process.execPath, "scripts/cli/launch.cjs"] : [TSX, "scripts/bellwether.ts"];
+    const { stdout, stderr } = await exec(bin, [entry, "verify-audit", ...args], { cwd: ROOT, env: { ...process.env, DATABASE_URL: url } });
     return { code: 0, stdout, stderr };
   } catch (e) {
     const err = e as { code: number; stdout: string; stderr: string };
@@ -220,6 +222,7 @@ describe.skipIf(!SUPERUSER_URL)("a trail from before the chain, and an owner who
     expect(result.stderr).toBe("");
     expect(result.code).toBe(0);
     expect(result.stdout).toMatch(/^audit trail intact: 3 links checked, head at link 3 \(event \d+\) [0-9a-f]{64}; 3 events, 0 awaiting the chain; 0 signatures match their content hashes\n$/);
+    expect(await verifyCli(s.appUrl, [], { launcher: true })).toEqual(result);
   });
 
   it("an event edited by the owner fails the check at that event", async () => {
