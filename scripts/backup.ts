@@ -12,7 +12,8 @@
  *
  * The database is BELLWETHER_MIGRATION_URL (the owner, who can read every table and drizzle's
  * bookkeeping), else the private cluster of `npm start`. DIR is --out, else
- * BELLWETHER_BACKUP_DIR, else backups/ in the data folder (.data/backups). Exit 2 for wrong
+ * BELLWETHER_BACKUP_DIR, else .backups/ beside the data folder (not inside it: restoring means
+ * moving the data folder aside, and its backups must not go with it). Exit 2 for wrong
  * arguments, 1 when the backup could not be made (nothing is left behind but what was complete).
  */
 import { spawn } from "node:child_process";
@@ -113,7 +114,7 @@ async function main(): Promise<number> {
   let cluster: PrivateCluster | null = null;
   try {
     const ownerUrl = process.env.BELLWETHER_MIGRATION_URL || (cluster = openPrivateCluster()).ownerUrl;
-    const outDir = path.resolve(out ?? process.env.BELLWETHER_BACKUP_DIR ?? path.join(privateClusterDir().dataRoot, "backups"));
+    const outDir = path.resolve(out ?? process.env.BELLWETHER_BACKUP_DIR ?? path.join(path.dirname(privateClusterDir().dataRoot), ".backups"));
     const { dumpPath, manifest } = await backup({ ownerUrl, outDir });
     const head = manifest.chainHead ? `audit chain head ${manifest.chainHead.position} ${manifest.chainHead.hash}` : "audit chain empty";
     console.log(`backup: ${dumpPath} (${manifest.sizeBytes.toLocaleString("en-GB")} bytes, SHA-256 ${manifest.sha256})`);
