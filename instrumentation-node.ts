@@ -19,7 +19,8 @@ export async function refuseUnsafeDatabase(): Promise<void> {
  * The app's scheduled mail work (lib/mail/scheduler.ts): delivery of the outbox every
  * BELLWETHER_MAIL_INTERVAL_SECONDS through Resend's SDK (at RESEND_BASE_URL when set), and the
  * daily review-due job. Without RESEND_API_KEY messages stay queued. Stopped on SIGTERM and
- * SIGINT before scripts/serve.ts closes the server.
+ * SIGINT before scripts/serve.ts closes the server. Then scoring's jobs, and the audit chain's
+ * sealer (lib/audit/sealer.ts: links committed audit events once a second, and at shutdown).
  */
 export async function startScheduledJobs(): Promise<void> {
   const settings = env();
@@ -41,6 +42,8 @@ export async function startScheduledJobs(): Promise<void> {
   process.once("SIGTERM", stop);
   process.once("SIGINT", stop);
   await startScoringJobs();
+  const { startAuditSealer } = await import("./lib/audit/sealer");
+  startAuditSealer();
 }
 
 /**

@@ -35,7 +35,7 @@ DECLARE
   -- Tables whose rows, once written, are never changed or removed (their triggers refuse UPDATE,
   -- DELETE and TRUNCATE too). The app may read them and add to them, nothing else. A name here
   -- whose table does not exist yet is skipped until a migration creates it.
-  append_only CONSTANT text[] := ARRAY['audit_events', 'signatures'];
+  append_only CONSTANT text[] := ARRAY['audit_events', 'audit_chain', 'signatures'];
   t record;
 BEGIN
   FOR t IN

@@ -4,6 +4,7 @@ import { drizzle } from "drizzle-orm/node-postgres";
 import { readMigrationFiles } from "drizzle-orm/migrator";
 import { migrate } from "drizzle-orm/node-postgres/migrator";
 import { Client } from "pg";
+import { sealAuditChain } from "./audit-chain";
 
 const MIGRATIONS_FOLDER = path.join(process.cwd(), "drizzle");
 const GRANTS_FILE = path.join(process.cwd(), "db", "grants.sql");
@@ -13,7 +14,8 @@ export const APP_ROLE = "bellwether_app";
 
 /**
  * Applies every migration in drizzle/ that the database has not seen yet, then db/grants.sql,
- * both as the owner of the schema (BELLWETHER_MIGRATION_URL, or the private cluster's owner).
+ * both as the owner of the schema (BELLWETHER_MIGRATION_URL, or the private cluster's owner);
+ * then seals the audit events still queued for the hash chain (db/audit-chain.ts).
  */
 export async function migrateDatabase(ownerUrl: string): Promise<void> {
   const client = new Client({ connectionString: ownerUrl });
@@ -23,12 +25,16 @@ export async function migrateDatabase(ownerUrl: string): Promise<void> {
     client.on("notice", () => undefined);
     await migrate(drizzle(client), { migrationsFolder: MIGRATIONS_FOLDER });
     await applyGrants(client);
+    // Events queued by migration 0013 (a trail from before the chain) or left queued while no
+    // app ran are linked now, before anything serves.
+    await sealAuditChain(client);
   } finally {
     await client.end();
   }
 }
 
-async function applyGrants(client: Client): Promise<void> {
+/** Applies db/grants.sql in one transaction (also after a restore, since a dump carries no roles or grants). */
+export async function applyGrants(client: Client): Promise<void> {
   const grants = fs.readFileSync(GRANTS_FILE, "utf8");
   try {
     await client.query("BEGIN");

@@ -118,6 +118,41 @@ export const auditEvents = pgTable(
 );
 
 /**
+ * The audit trail's hash chain (drizzle/0013_audit-hash-chain.sql, DEVELOPERS.md "Audit hash
+ * chain"): one link per audit event, in the order the events were sealed after their transactions
+ * committed. `hash` is the SHA-256 of the RFC 8785 text of {position, prevHash, event} (lib/audit/
+ * chain.ts); `prevHash` is the link before's hash, 64 zeros for the first. Append-only like
+ * audit_events (triggers refuse UPDATE, DELETE and TRUNCATE).
+ */
+export const auditChain = pgTable(
+  "audit_chain",
+  {
+    position: bigint("position", { mode: "number" }).primaryKey(),
+    eventId: bigint("event_id", { mode: "number" })
+      .notNull()
+      .references(() => auditEvents.id, { onDelete: "restrict" }),
+    prevHash: text("prev_hash").notNull(),
+    hash: text("hash").notNull(),
+    sealedAt: timestamp("sealed_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    uniqueIndex("audit_chain_event_unique").on(t.eventId),
+    check("audit_chain_position_positive", sql`${t.position} > 0`),
+    check("audit_chain_hash_format", sql`${t.hash} ~ '^[0-9a-f]{64}$' AND ${t.prevHash} ~ '^[0-9a-f]{64}$'`),
+  ],
+);
+
+/**
+ * Audit events committed but not yet in the chain. A trigger adds each new event's id in the
+ * event's own transaction; the sealer (db/audit-chain.ts) links them and removes them here.
+ */
+export const auditChainPending = pgTable("audit_chain_pending", {
+  eventId: bigint("event_id", { mode: "number" })
+    .primaryKey()
+    .references(() => auditEvents.id, { onDelete: "restrict" }),
+});
+
+/**
  * The analyte catalogue: what the laboratory measures, in which UCUM unit, shown with how many
  * decimals. Our own `code` is the key the API and the LIS use. The unit and decimals lock once an
  * interval version beyond draft exists (lib/analytes/unit-lock.ts holds that rule).

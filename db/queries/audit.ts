@@ -1,7 +1,8 @@
 import "server-only";
 import { and, desc, eq, gte, ilike, lt, or, sql, type SQL } from "drizzle-orm";
 import type { Executor } from "../client";
-import { auditEvents } from "../schema";
+import type { ChainHead } from "@/lib/audit/chain";
+import { auditChain, auditEvents } from "../schema";
 
 /** Who did something: a user (id and e-mail), or the system itself (seed, migrations). */
 export interface Actor {
@@ -87,4 +88,18 @@ export async function listAuditVocabulary(executor: Executor) {
     executor.selectDistinct({ value: auditEvents.entityType }).from(auditEvents).orderBy(auditEvents.entityType),
   ]);
   return { actions: actions.map((a) => a.value), entityTypes: entityTypes.map((e) => e.value) };
+}
+
+/**
+ * The audit chain's newest link (db/audit-chain.ts seals events into it after they commit), read
+ * in the caller's snapshot: what a dossier or a printed record carries, so that a trail rewritten
+ * afterwards fails `bellwether verify-audit --head POSITION:HASH`. Null while the chain is empty.
+ */
+export async function readAuditChainHead(executor: Executor): Promise<ChainHead | null> {
+  const [row] = await executor
+    .select({ position: auditChain.position, eventId: sql<string>`${auditChain.eventId}::text`, hash: auditChain.hash })
+    .from(auditChain)
+    .orderBy(desc(auditChain.position))
+    .limit(1);
+  return row ?? null;
 }

@@ -1,7 +1,8 @@
 import "server-only";
 import type { DossierData } from "@/lib/versions/dossier-workbook";
+import { sealAuditChain } from "../audit-chain";
 import type { Database } from "../client";
-import { recordAuditEvent, type Actor } from "./audit";
+import { readAuditChainHead, recordAuditEvent, type Actor } from "./audit";
 import { listExclusions } from "./exclusions";
 import { findIntervalVersion } from "./interval-versions";
 import { readStudyExport } from "./study-export";
@@ -9,14 +10,18 @@ import { versionAuditEvents } from "./version-record";
 
 /**
  * Everything a version's dossier holds, in one snapshot (repeatable read), audited as
- * `interval_version.dossier_exported`. Donor results and exclusions only when `donorLevel`.
+ * `interval_version.dossier_exported`. Donor results and exclusions only when `donorLevel`. The
+ * audit events committed so far are sealed into the hash chain first, and the chain's head in the
+ * snapshot goes into the dossier.
  */
 export async function versionDossierData(
   database: Database,
   { id, actor, donorLevel }: { id: string; actor: Actor; donorLevel: boolean },
 ): Promise<DossierData> {
+  await sealAuditChain(database.$client);
   return database.transaction(
     async (tx) => {
+      const auditChainHead = await readAuditChainHead(tx);
       const version = await findIntervalVersion(tx, { id });
       const { signatures } = version;
       const study = version.studyId ? await readStudyExport(tx, { studyId: version.studyId, donors: donorLevel }) : null;
@@ -28,7 +33,8 @@ export async function versionDossierData(
         entityType: "interval_version",
         entityId: id,
         summary: `Exported the dossier of version ${version.number} of ${version.analyte.code}${donorLevel ? " with donor-level data" : " without donor-level data"}`,
-        details: { donorLevel, donorResults: study?.donorResults.length ?? 0, signatures: signatures.length },
+        // The head handed out with the dossier, so the trail itself says which head each copy carries.
+        details: { donorLevel, donorResults: study?.donorResults.length ?? 0, signatures: signatures.length, auditChainHead },
       });
       return {
         version: {
@@ -44,6 +50,7 @@ export async function versionDossierData(
           .reverse()
           .map((x) => ({ ...x, createdBy: x.createdBy?.name ?? null })),
         auditEvents,
+        auditChainHead,
         exportedAt: new Date(),
         exportedBy: actor.label,
       };

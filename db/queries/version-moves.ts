@@ -2,16 +2,17 @@ import "server-only";
 import { and, asc, desc, eq, inArray, isNotNull, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import { verifyPassword } from "@/lib/auth/password";
-import { canonicalContentOf, type CanonicalVersion } from "@/lib/versions/canonical-content";
+import { canonicalContentOf } from "@/lib/versions/canonical-content";
 import { refusalOfMove, SIGNATURE_MEANING_LABELS, type SignatureMeaning, type VersionMove } from "@/lib/versions/state-machine";
 import type { Database, Executor } from "../client";
 import { uniqueViolationOf } from "../errors";
-import { analytes, estimates, intervalPartitions, intervalVersions, signatures, signingFailures, users, type Analyte, type IntervalVersion } from "../schema";
+import { analytes, intervalPartitions, intervalVersions, signatures, signingFailures, users, type Analyte, type IntervalVersion } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { findIntervalVersion, type VersionOut } from "./interval-versions";
 import { inForceMessage, withdrawnMessage } from "@/lib/versions/lis-messages";
 import { activeAddressesOf, activeLisContactAddresses, queueMessage, queueMessageToEach } from "./outbox";
 import { normaliseEmail } from "./users";
+import { canonicalVersionOf } from "../version-content";
 
 /** Consecutive failed signings after which signing locks for the account until an admin unlocks it. */
 export const SIGNING_FAILURE_LIMIT = 5;
@@ -201,35 +202,6 @@ async function checkCredentials(
 }
 
 /** The content a signature covers, read in the signing transaction. */
-async function canonicalVersionOf(executor: Executor, { version, analyte }: { version: IntervalVersion; analyte: Analyte }): Promise<CanonicalVersion> {
-  const parts = await executor.select().from(intervalPartitions).where(eq(intervalPartitions.versionId, version.id)).orderBy(asc(intervalPartitions.position));
-  const estimateIds = parts.map((p) => p.estimateId).filter((x): x is string => x !== null);
-  const hashes = estimateIds.length
-    ? (await executor.select({ hashes: estimates.uploadHashes }).from(estimates).where(inArray(estimates.id, estimateIds))).flatMap((e) => e.hashes)
-    : [];
-  const pair = (a: number | null, b: number | null): [number, number] | null => (a === null || b === null ? null : [a, b]);
-  return {
-    analyte: { code: analyte.code, unit: version.unit },
-    number: version.number,
-    criticalLow: version.criticalLow,
-    criticalHigh: version.criticalHigh,
-    partitions: parts.map((p) => ({
-      position: p.position,
-      sex: p.sex as "F" | "M" | null,
-      ageFromDays: p.ageFromDays,
-      ageToDays: p.ageToDays,
-      low: p.low,
-      high: p.high,
-      lowCi: pair(p.lowCiLower, p.lowCiUpper),
-      highCi: pair(p.highCiLower, p.highCiUpper),
-      method: p.method,
-      n: p.n,
-      model: p.model,
-    })),
-    uploadSha256: hashes,
-  };
-}
-
 /** The canonical content of a version and its SHA-256, recomputed now (GET …/canonical-content). */
 export async function canonicalContentOfVersion(executor: Executor, { id }: { id: string }): Promise<{ canonicalContent: string; contentSha256: string }> {
   const found = await readVersion(executor, id);

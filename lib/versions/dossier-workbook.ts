@@ -12,6 +12,7 @@ import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWrit
 import { scopeLabel } from "./comparison";
 import { VERSION_STATE_LABELS } from "./state-machine";
 import type { VersionState } from "@/db/schema";
+import type { ChainHead } from "@/lib/audit/chain";
 
 export interface DossierPartition {
   position: number;
@@ -69,8 +70,23 @@ export interface DossierData {
     createdBy: string | null;
   }[];
   auditEvents: { at: Date; actorLabel: string; action: string; entityType: string; entityId: string | null; summary: string; details: Record<string, unknown> }[];
+  /** The audit chain's newest link when the dossier was made (null: an empty chain). */
+  auditChainHead: ChainHead | null;
   exportedAt: Date;
   exportedBy: string;
+}
+
+/**
+ * The audit chain's head at export: kept with the dossier, it lets anyone check later that the
+ * audit trail was not rewritten since (DEVELOPERS.md, "Audit hash chain").
+ */
+export function auditChainRows(head: ChainHead | null): [string, CellValue][] {
+  if (!head) return [["Audit chain head", "The audit chain was empty"]];
+  return [
+    ["Audit chain head", `Link ${head.position}, audit event ${head.eventId}`],
+    ["Audit chain head SHA-256", head.hash],
+    ["Check the audit trail against it", `npm run -s bellwether -- verify-audit --head ${head.position}:${head.hash}`],
+  ];
 }
 
 function summarySheet(workbook: WorkbookWriter, data: DossierData): void {
@@ -116,6 +132,7 @@ function summarySheet(workbook: WorkbookWriter, data: DossierData): void {
     ],
     ["Exported", data.exportedAt],
     ["Exported by", data.exportedBy],
+    ...auditChainRows(data.auditChainHead),
   ];
   for (const pair of pairs) addRow(sheet, pair);
   if (study) {

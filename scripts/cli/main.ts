@@ -10,7 +10,8 @@ export const USAGE = `usage:
   bellwether estimate FILE [--outliers none|dixon|tukey|horn] [--screening apply|propose] [--transform auto|none|ln|box-cox] [--seed N] [--debug]
   bellwether score --model MODEL.json VALUE... [--debug]
   bellwether lms FILE --at AGES [--seed N] [--debug]
-  bellwether indirect FILE [--seed N] [--debug]`;
+  bellwether indirect FILE [--seed N] [--debug]
+  bellwether verify-audit [--head POSITION:HASH] [--debug]`;
 
 export type Command = (args: string[]) => Promise<number>;
 
@@ -20,6 +21,7 @@ export const COMMANDS: Readonly<Record<string, () => Promise<Command>>> = {
   score: async () => (await import("./score")).run,
   lms: async () => (await import("./lms")).run,
   indirect: async () => (await import("./indirect")).run,
+  "verify-audit": async () => (await import("./verify-audit")).run,
 };
 
 export interface CliIo {

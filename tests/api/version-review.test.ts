@@ -203,7 +203,13 @@ describe("GET /api/v1/interval-versions/{id}/dossier", () => {
 
     expect(await counts()).toEqual({ ...before, audit_events: before.audit_events + 1 });
     const { rows } = await pool.query("SELECT actor_label, details FROM audit_events WHERE entity_id = $1 AND action = 'interval_version.dossier_exported'", [v1.id]);
-    expect(rows.at(-1)).toEqual({ actor_label: demoUser("director").email, details: { donorLevel: true, donorResults: 200, signatures: 1 } });
+    expect(rows.at(-1)).toEqual({ actor_label: demoUser("director").email, details: {
+        donorLevel: true,
+        donorResults: 200,
+        signatures: 1,
+        // The audit chain's head the dossier carries (tests/api/audit-chain-head.test.ts checks it against the chain).
+        auditChainHead: { position: expect.any(Number), eventId: expect.stringMatching(/^\d+$/), hash: expect.stringMatching(/^[0-9a-f]{64}$/) },
+      } });
   });
 
   it("gives an admin everything but donor-level data: no Exclusions or Donor results sheet, no donor code anywhere", async () => {

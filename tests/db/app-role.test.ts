@@ -62,11 +62,11 @@ describe("the app connects as a role with only the privileges it needs", () => {
 
   it("holds exactly: read and add on the audit trail; read, add, change, remove on the other tables", async () => {
     const privileges = await tablePrivileges(appUrl());
-    // The requirement written out: audit_events (and signatures, once it exists) SELECT and INSERT
-    // only; every other domain table SELECT, INSERT, UPDATE, DELETE; never TRUNCATE, REFERENCES, TRIGGER.
+    // The requirement written out: audit_events, the audit chain's links (audit_chain) and
+    // signatures SELECT and INSERT only; every other domain table SELECT, INSERT, UPDATE, DELETE; never TRUNCATE, REFERENCES, TRIGGER.
     expect(privileges.audit_events).toBe("SELECT, INSERT");
     for (const [table, granted] of Object.entries(privileges)) {
-      if (table === "audit_events" || table === "signatures") expect(granted, table).toBe("SELECT, INSERT");
+      if (table === "audit_events" || table === "audit_chain" || table === "signatures") expect(granted, table).toBe("SELECT, INSERT");
       else expect(granted, table).toBe("SELECT, INSERT, UPDATE, DELETE");
     }
     expect(Object.keys(privileges)).toEqual(expect.arrayContaining(["analytes", "audit_events", "laboratory", "sign_in_account_failures", "sign_in_address_failures", "users"]));
@@ -103,5 +103,6 @@ describe.skipIf(!SUPERUSER_URL)("db/grants.sql is applied after every migration 
     expect(privileges.later_domain_table).toBe("SELECT, INSERT, UPDATE, DELETE");
     expect(privileges.signatures).toBe("SELECT, INSERT");
     expect(privileges.audit_events).toBe("SELECT, INSERT");
+    expect(privileges.audit_chain).toBe("SELECT, INSERT");
   });
 });

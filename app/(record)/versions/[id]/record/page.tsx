@@ -8,6 +8,7 @@ import { PrintButton } from "@/components/versions/print-button";
 import { SignatureList } from "@/components/versions/signature-list";
 import { versionStateWords } from "@/components/versions/version-header";
 import { db } from "@/db/client";
+import { readAuditChainHead } from "@/db/queries/audit";
 import { getLaboratoryName } from "@/db/queries/laboratory";
 import { can } from "@/lib/auth/roles";
 import { requirePageCaller } from "@/lib/auth/session";
@@ -52,7 +53,7 @@ export default async function VersionRecordPage({ params }: { params: Promise<{ 
   const review = await loadVersionReview(id, { donorLevel: can(caller.role, "donors:read") });
   const { version: v, people, comparison, study, analyte } = review;
   const d = v.decimals;
-  const laboratory = await getLaboratoryName(db());
+  const [laboratory, chainHead] = await Promise.all([getLaboratoryName(db()), readAuditChainHead(db())]);
   const warnings = v.partitions.flatMap((p, i) => (review.estimates[i]?.document.warnings ?? []).map((w) => `${scopeLabel(p)}: ${w}`));
   return (
     <article className="space-y-5 text-ink-900" data-testid="record">
@@ -148,6 +149,28 @@ export default async function VersionRecordPage({ params }: { params: Promise<{ 
             and unit, version number, each partition&apos;s limits, CIs, method and scoring model, the critical limits and the
             study&apos;s upload hashes. Anyone can recompute it to check that the version is the one signed.
           </p>
+        </div>
+        <div className="break-inside-avoid space-y-2" data-testid="audit-chain-head">
+          <h3 className="text-sm font-semibold">Audit trail at printing</h3>
+          {chainHead ? (
+            <>
+              <Facts
+                rows={[
+                  ["Audit chain head", `link ${chainHead.position}, audit event ${chainHead.eventId}`],
+                  ["SHA-256", <span key="h" className="break-all font-mono text-xs">{chainHead.hash}</span>],
+                ]}
+              />
+              <p className="text-xs text-ink-600">
+                Every audit event carries the hash of the one before it. Kept with this record, the head above lets the
+                laboratory check later that the audit trail was not rewritten since:{" "}
+                <code className="break-all">
+                  npm run -s bellwether -- verify-audit --head {chainHead.position}:{chainHead.hash}
+                </code>
+              </p>
+            </>
+          ) : (
+            <p className="text-sm">The audit chain was empty.</p>
+          )}
         </div>
       </RecordSection>
     </article>
