@@ -58,6 +58,7 @@ async function ensureStudy(database: Database, spec: DemoStudy, actor: Actor): P
     input: {
       analyte: spec.analyte,
       title: spec.title,
+      kind: "direct",
       method: spec.method,
       criteria: spec.criteria,
       collectedFrom: spec.cohort.collected[0],
