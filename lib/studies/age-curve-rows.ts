@@ -10,7 +10,7 @@ import { MAX_LISTED_PROBLEMS, type UploadProblem, type ValidationReport } from "
 /** The whole-file refusal's message, when birth_date or collected_on is not mapped. */
 export function missingDateColumnsMessage(missing: readonly string[]): string {
   return (
-    `An age-curve study needs each donor's exact age: the file has no ${missing.join(" and no ")} column. ` +
+    `An age-curve study needs each donor's exact age: the file has no ${missing.map((c) => `${c} column`).join(" and no ")}. ` +
     "Map birth_date and collected_on (age in years alone is refused), or upload the results to a study of limits per partition."
   );
 }

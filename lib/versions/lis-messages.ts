@@ -29,12 +29,19 @@ export const intervalsPath = (code: string) => `/api/v1/analytes/${encodeURIComp
 
 function limitsLine(p: MessagePartition, v: MessageVersion): string {
   const fixed = (x: number) => x.toFixed(v.decimals);
+  // An LMS partition (age curves) has no fixed limits: they depend on the exact age.
   const limits =
-    p.low !== null && p.high !== null ? `${fixed(p.low)} to ${fixed(p.high)}` : p.low !== null ? `${fixed(p.low)} and above` : `up to ${fixed(p.high!)}`;
+    p.low === null && p.high === null
+      ? `limits by exact age from LMS age curves, ${v.unit} (fetch them at the ages you need with ?ages=)`
+      : p.low !== null && p.high !== null
+        ? `${fixed(p.low)} to ${fixed(p.high)} ${v.unit}`
+        : p.low !== null
+          ? `${fixed(p.low)} and above ${v.unit}`
+          : `up to ${fixed(p.high!)} ${v.unit}`;
   const everyone = p.sex === null && p.ageFromDays === null && p.ageToDays === null;
   const scope = everyone ? "All patients" : scopeLabel(p);
   const days = p.ageFromDays === null && p.ageToDays === null ? "" : ` (age in days ${p.ageFromDays ?? 0} to under ${p.ageToDays ?? "no upper bound"})`;
-  return `- ${scope}${days}: ${limits} ${v.unit}`;
+  return `- ${scope}${days}: ${limits}`;
 }
 
 function criticalLine(v: MessageVersion): string {
