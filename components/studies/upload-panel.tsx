@@ -309,11 +309,11 @@ export function UploadPanel({ studyId, analyte, onDecided }: { studyId: string; 
           <p className="font-medium text-ink-800">Blank template</p>
           <p>
             Columns <span className="font-mono text-xs">donor_code, sex, age_years, birth_date, collected_on, value, unit</span>:{" "}
-            <a href={templateHref("csv")} download>
+            <a href={templateHref("csv")} download className="underline">
               CSV
             </a>{" "}
             ·{" "}
-            <a href={templateHref("xlsx")} download>
+            <a href={templateHref("xlsx")} download className="underline">
               Excel (.xlsx)
             </a>
           </p>

@@ -80,7 +80,7 @@ export function AgeCurveDraftPanel({ study, analyte }: { study: SectionStudy; an
       {fits.length === 0 ? (
         <EmptyState title="Nothing to draft yet" testId="age-curve-draft-empty">
           <p>
-            Fit the curves under <a href="#age-curves">Age curves</a>; the draft takes its partitions from the fits.
+            Fit the curves under <a href="#age-curves" className="underline">Age curves</a>; the draft takes its partitions from the fits.
           </p>
         </EmptyState>
       ) : open ? (
@@ -113,7 +113,7 @@ export function AgeCurveDraftPanel({ study, analyte }: { study: SectionStudy; an
       {created ? (
         <DoneNotice>
           Drafted{" "}
-          <a href={`/versions/${created.id}`} data-testid={`open-version-${created.number}`}>
+          <a href={`/versions/${created.id}`} className="underline" data-testid={`open-version-${created.number}`}>
             version {created.number}
           </a>{" "}
           with {created.partitions.length} partition{created.partitions.length === 1 ? "" : "s"} of LMS curves (
@@ -124,7 +124,7 @@ export function AgeCurveDraftPanel({ study, analyte }: { study: SectionStudy; an
         <ul className="space-y-1 text-sm" data-testid="age-curve-drafts">
           {drafts.map((v) => (
             <li key={v.id}>
-              <a href={`/versions/${v.id}`}>Version {v.number}</a> · {v.partitions.map((p) => `${fitSexWords(p.sex)} (${p.method}, n = ${p.n})`).join("; ")}
+              <a href={`/versions/${v.id}`} className="underline">Version {v.number}</a> · {v.partitions.map((p) => `${fitSexWords(p.sex)} (${p.method}, n = ${p.n})`).join("; ")}
             </li>
           ))}
         </ul>

@@ -115,7 +115,7 @@ export function AgeCurvesPanel({ study, analyte }: { study: SectionStudy; analyt
             {donors < MIN_DONORS
               ? `The study holds ${donors} donor result${donors === 1 ? "" : "s"}; the fit needs at least ${MIN_DONORS}. Upload them under `
               : "Fit the curves above. The donors come from "}
-            <a href="#donor-results">Donor results</a>.
+            <a href="#donor-results" className="underline">Donor results</a>.
           </p>
         </EmptyState>
       ) : null}
