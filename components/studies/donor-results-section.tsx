@@ -117,7 +117,12 @@ export function DonorResultsSection({ study, analyte, uploads }: StudySectionPro
           : "Screen the results for outliers (step 2), or upload more results from another file.";
   return (
     <StudySection id="donor-results" step={1} title="Donor results" done={done} next={next}>
-      {open ? <UploadPanel studyId={study.id} analyte={analyte} onDecided={refresh} /> : null}
+      {open ? <UploadPanel
+          studyId={study.id}
+          analyte={analyte}
+          onDecided={refresh}
+          nextAfterCommit={study.kind === "age_curve" ? "Fit the age curves next." : undefined}
+        /> : null}
       <UploadsList studyId={study.id} uploads={uploads} open={open} onDecided={refresh} />
       <DonorResultsTable studyId={study.id} analyte={analyte} />
     </StudySection>

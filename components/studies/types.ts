@@ -42,6 +42,7 @@ export interface StudyRow {
   analyte: string;
   analyteName: string;
   title: string;
+  kind: "direct" | "age_curve";
   status: "open" | "closed";
   donorResults: number;
   uploads: number;
