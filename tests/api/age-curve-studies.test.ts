@@ -10,6 +10,7 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "@/db/schema";
+import type { LmsEstimateDocument } from "@/lib/studies/age-curves";
 import { ageCurveCsv, fixtureDonors } from "../support/age-curves";
 import { testDatabase } from "../support/database";
 import { demoUser } from "../support/demo-users";
@@ -117,7 +118,8 @@ describe("uploads to an age-curve study need exact ages", () => {
 });
 
 describe("the LMS fit", () => {
-  let estimate: Record<string, any>;
+  /** The answer of the fit, as the API gives it (lib/studies/age-curves.ts's document plus id and partition). */
+  let estimate: LmsEstimateDocument & { id: string; partition: unknown; [key: string]: unknown };
   beforeAll(async () => {
     await uploadAndCommit(cookies, studyId, ageCurveCsv(fixtureDonors()));
   });
@@ -148,8 +150,8 @@ describe("the LMS fit", () => {
     expect(row.exclusion_ids).toEqual([]);
     // The combined fit compares the sexes once age is taken out (Harris-Boyd on z): the fixture's
     // donors come from one set of curves with the sexes alternating, so they should not differ.
-    expect(estimate.sexComparison.harrisBoyd.verdict).toBe("combine");
-    expect(estimate.sexComparison.women.n + estimate.sexComparison.men.n).toBe(600);
+    expect(estimate.sexComparison!.harrisBoyd.verdict).toBe("combine");
+    expect(estimate.sexComparison!.women.n + estimate.sexComparison!.men.n).toBe(600);
     expect(estimate.advice[0]).toBe(
       "600 donors fitted: enough for LMS curves if the diagnostics show every age range covered.",
     );
@@ -177,8 +179,8 @@ describe("the LMS fit", () => {
       const j = (estimate.at as number[]).indexOf(age);
       if (j < 0) continue;
       const width = truth.upper[i] - truth.lower[i];
-      expect(Math.abs(estimate.lower[j] - truth.lower[i]) / width, `lower at ${age}`).toBeLessThan(0.2);
-      expect(Math.abs(estimate.upper[j] - truth.upper[i]) / width, `upper at ${age}`).toBeLessThan(0.2);
+      expect(Math.abs(estimate.lower[j]! - truth.lower[i]) / width, `lower at ${age}`).toBeLessThan(0.2);
+      expect(Math.abs(estimate.upper[j]! - truth.upper[i]) / width, `upper at ${age}`).toBeLessThan(0.2);
     }
   });
 
