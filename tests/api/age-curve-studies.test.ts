@@ -4,6 +4,7 @@
  * steps refused, and a version whose partition holds the curves (issue 11's partition contract).
  */
 import { execFile } from "node:child_process";
+import ExcelJS from "exceljs";
 import { mkdtempSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
@@ -189,6 +190,26 @@ describe("the LMS fit", () => {
     const body = await res.json();
     expect(res.status, JSON.stringify(body)).toBe(201);
     expect(body).toMatchObject({ sex: "F", seed: 7, n: 300, sexComparison: null, partition: { sex: "F", ageFrom: null, ageTo: null } });
+  });
+
+  it("exports the curves in the study workbook: one Estimates row per fit, the curves by age in Age curves", async () => {
+    const res = await send("GET", `/api/v1/studies/${studyId}/export`, "scientist");
+    expect(res.status).toBe(200);
+    const workbook = new ExcelJS.Workbook();
+    await workbook.xlsx.load(await res.arrayBuffer());
+    const cells = (name: string) => {
+      const rows: unknown[][] = [];
+      workbook.getWorksheet(name)!.eachRow((row) => rows.push((row.values as unknown[]).slice(1)));
+      return rows;
+    };
+    const methods = cells("Estimates").slice(1).filter((r) => r[0] === estimate.id).map((r) => r[10]);
+    expect(methods).toEqual(["lms"]);
+    const curves = cells("Age curves");
+    expect(curves[0].slice(0, 11)).toEqual(["Estimate", "Sex", "Seed", "n", "Age (years)", "L", "M", "S", "2.5th centile", "50th centile", "97.5th centile"]);
+    const mine = curves.slice(1).filter((r) => r[0] === estimate.id);
+    expect(mine.map((r) => Number(r[4]))).toEqual(estimate.at);
+    expect(mine.map((r) => Number(r[8]))).toEqual(estimate.lower);
+    expect(mine.map((r) => Number(r[10]))).toEqual(estimate.upper);
   });
 
   const invalid: [string, unknown, string][] = [
