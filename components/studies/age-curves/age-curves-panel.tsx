@@ -9,7 +9,7 @@ import { formatValue, formatZ } from "@/lib/format";
 import { fetchJson, sendJson, studyApi } from "../analysis/api";
 import { AnalysisSection, DoneNotice, EmptyState, ErrorNotice, inputClass, labelClass, Skeleton, tableClass, tdClass, thClass } from "../analysis/feedback";
 import type { SectionAnalyte, SectionStudy } from "../analysis/types";
-import { ageWords, fitSexWords, isLmsItem, type AgeCurveChart, type FitSex, type LmsEstimate, type LmsListItem } from "./types";
+import { ageWords, fitSexWords, isLmsItem, type AgeCurveChart, type AgeCurveDonor, type FitSex, type LmsEstimate, type LmsListItem } from "./types";
 
 /** Donors below which the section says a fit is refused (lib/stats/lms-fit.ts's LMS_MIN_DONORS). */
 const MIN_DONORS = 50;
@@ -265,20 +265,75 @@ function FitDetail({ studyId, estimateId, analyte }: { studyId: string; estimate
             <WormChart key={g.ageFrom} title={`${ageWords(g.ageFrom)} to ${ageWords(g.ageTo)} (n = ${g.n})`} points={g.qq} />
           ))}
         </div>
-        {c.far.length > 0 ? (
-          <div className="space-y-1" data-testid="lms-far-donors">
-            <h4 className="text-sm font-semibold text-ink-800">Donors more than 4 SD from the median curve</h4>
-            <ul className="list-disc pl-5 text-sm text-ink-800">
-              {c.far.map((d) => (
-                <li key={d.id}>
-                  {d.donorCode}: {fmt(d.value)} {c.unit} at {ageWords(d.age)}, z {formatZ(d.z)}
-                </li>
-              ))}
-            </ul>
-            <p className="text-xs text-ink-600">Check these results at the source; exclude a donor by hand (with the reason) through the exclusions API, then fit again.</p>
-          </div>
+        {c.far.length > 0 ? <FarDonors studyId={studyId} far={c.far} unit={c.unit} fmt={fmt} /> : null}
+      </div>
+    </div>
+  );
+}
+
+/**
+ * The donors more than 4 SD from the median curve, each with an exclusion by hand: the reason is
+ * required and kept with the exclusion; the curves leave the donor out from the next fit on.
+ */
+function FarDonors({ studyId, far, unit, fmt }: { studyId: string; far: AgeCurveDonor[]; unit: string; fmt: (v: number | null) => string }) {
+  const [reason, setReason] = useState("");
+  const [excluded, setExcluded] = useState<Set<number>>(new Set());
+  const [error, setError] = useState<unknown>(null);
+  const [pending, setPending] = useState<number | null>(null);
+  const [needReason, setNeedReason] = useState(false);
+  async function exclude(d: AgeCurveDonor) {
+    setError(null);
+    setNeedReason(!reason.trim());
+    if (!reason.trim()) return;
+    setPending(d.id);
+    try {
+      await sendJson("POST", `${studyApi(studyId)}/exclusions`, { donorResultIds: [d.id], reason: reason.trim() });
+      setExcluded(new Set([...excluded, d.id]));
+    } catch (err) {
+      setError(err);
+    } finally {
+      setPending(null);
+    }
+  }
+  return (
+    <div className="space-y-2" data-testid="lms-far-donors">
+      <h4 className="text-sm font-semibold text-ink-800">Donors more than 4 SD from the median curve</h4>
+      <div className="max-w-xl space-y-1">
+        <label htmlFor="far-reason" className={labelClass}>
+          Reason for an exclusion
+        </label>
+        <input
+          id="far-reason"
+          className={inputClass}
+          value={reason}
+          aria-invalid={needReason ? true : undefined}
+          onChange={(e) => setReason(e.target.value)}
+          placeholder="e.g. haemolysed on the sample log"
+        />
+        {needReason ? (
+          <p role="alert" className="text-xs text-signal-high">
+            Give a reason before you exclude a donor: it is kept with the exclusion.
+          </p>
         ) : null}
       </div>
+      <ul className="space-y-1 text-sm text-ink-800">
+        {far.map((d) => (
+          <li key={d.id} className="flex flex-wrap items-center gap-2">
+            <span>
+              {d.donorCode}: {fmt(d.value)} {unit} at {ageWords(d.age)}, z {formatZ(d.z)}
+            </span>
+            {excluded.has(d.id) ? (
+              <span className="text-ink-600">Excluded: fit again to leave it out of the curves.</span>
+            ) : (
+              <Button type="button" variant="secondary" disabled={pending !== null} onClick={() => exclude(d)}>
+                {pending === d.id ? "Excluding…" : `Exclude donor ${d.donorCode}`}
+              </Button>
+            )}
+          </li>
+        ))}
+      </ul>
+      <ErrorNotice error={error} action="Excluding the donor" />
+      <p className="text-xs text-ink-600">Check these results at the source first: a far value may be a healthy child&apos;s. An exclusion keeps its reason and who made it.</p>
     </div>
   );
 }
