@@ -178,4 +178,26 @@ export const DEMO_COHORTS = {
       { donors: adults, ages: [18.2, 75], women: 0.5, value: (_, d) => d.lognormal(72, 0.27) },
     ],
   }),
+  /**
+   * Children from birth to 18 years for an age-curve study, every value drawn from smooth LMS
+   * curves (Cole & Green's z → value, METHODS.md §9): the median high in infancy, falling to a
+   * childhood plateau, a pubertal rise near 12 years, then falling towards adult activity; the
+   * spread widening and the skewness power falling with age. Invented curves, like the donors.
+   */
+  alkalinePhosphatasePaediatric: (codePrefix: string, seed: number, donors: number): DemoCohort => ({
+    codePrefix, seed, decimals: 0, collected: ["2025-04-01", "2025-12-19"], birthDates: true,
+    // Infants recruited more densely than older children, as the curves change fastest there.
+    groups: [
+      { donors: Math.round(donors * 0.22), ages: [0.05, 2], women: 0.5, value: (p, d) => paediatricAlp(p.ageYears, d.normal()) },
+      { donors: donors - Math.round(donors * 0.22), ages: [2, 18], women: 0.5, value: (p, d) => paediatricAlp(p.ageYears, d.normal()) },
+    ],
+  }),
 } as const;
+
+/** The demo's paediatric alkaline phosphatase (U/L) at `age` years and normal deviate `z`, by the LMS formula. */
+export function paediatricAlp(age: number, z: number): number {
+  const L = 0.35 - 0.25 * (age / 18);
+  const M = 165 + 150 * Math.exp(-age / 1.3) + 95 * Math.exp(-(((age - 12) / 2.8) ** 2));
+  const S = 0.2 + 0.04 * (age / 18);
+  return M * (1 + L * S * z) ** (1 / L);
+}

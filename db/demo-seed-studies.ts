@@ -8,12 +8,14 @@ import { createHash } from "node:crypto";
 import { and, asc, count, eq, inArray } from "drizzle-orm";
 import { partitionsOfPlan } from "@/lib/studies/partitions";
 import { convertUnit } from "@/lib/units/ucum";
+import { ageCurveReport } from "@/lib/studies/age-curve-rows";
 import { checkUpload } from "@/lib/uploads";
 import type { Database } from "./client";
 import { cohortCsv } from "./demo-donors";
 import { DEMO_STAGES, DEMO_STUDIES, type DemoStage, type DemoStudy } from "./demo-studies";
 import { findAnalyteByCode } from "./queries/analytes";
 import type { Actor } from "./queries/audit";
+import { createLmsEstimate } from "./queries/age-curve-estimates";
 import { createEstimate } from "./queries/estimates";
 import { createExclusions } from "./queries/exclusions";
 import { DEMO_USERS } from "./demo-accounts";
@@ -58,6 +60,7 @@ async function ensureStudy(database: Database, spec: DemoStudy, actor: Actor): P
     input: {
       analyte: spec.analyte,
       title: spec.title,
+      kind: spec.kind ?? "direct",
       method: spec.method,
       criteria: spec.criteria,
       collectedFrom: spec.cohort.collected[0],
@@ -80,10 +83,12 @@ async function ensureDonorResults(database: Database, spec: DemoStudy, study: St
   if (committed) return false;
   const analyte = await findAnalyteByCode(database, { code: spec.analyte });
   if (!analyte) throw new Error(`The demo study "${spec.title}" needs the analyte ${spec.analyte}.`);
-  const report = await checkUpload(bytes, {
+  const checked = await checkUpload(bytes, {
     unit: analyte.unit,
     convertUnit: (value, from, to) => convertUnit({ value, from, to, molarMass: analyte.molarMass }),
   });
+  // As the upload route reads a file for an age-curve study: exact ages and measured values only.
+  const report = study.kind === "age_curve" ? ageCurveReport(checked) : checked;
   if (report.rows.invalid > 0) {
     throw new Error(`The demo file ${spec.fileName} has problems: ${JSON.stringify(report.problems.slice(0, 3))}`);
   }
@@ -154,10 +159,17 @@ async function ensurePartitioned(database: Database, spec: DemoStudy, study: Stu
   return added;
 }
 
-/** One estimate per partition of the plan (Horn's screen listed, auto scale, seed 1), unless the study has estimates. */
+/**
+ * One estimate per partition of the plan (Horn's screen listed, auto scale, seed 1), or for an
+ * age-curve study one LMS fit of both sexes (seed 1), unless the study has estimates.
+ */
 async function ensureEstimated(database: Database, spec: DemoStudy, study: Study, actor: Actor): Promise<{ ids: string[]; added: boolean }> {
   const existing = await database.select({ id: estimates.id }).from(estimates).where(eq(estimates.studyId, study.id)).orderBy(asc(estimates.createdAt), asc(estimates.id));
   if (existing.length > 0) return { ids: existing.map((e) => e.id), added: false };
+  if (spec.kind === "age_curve") {
+    const fit = await createLmsEstimate(database, { studyId: study.id, input: { method: "lms", sex: null, seed: 1 }, actor });
+    return { ids: [fit.id], added: true };
+  }
   const ids: string[] = [];
   for (const partition of partitionsOfPlan(spec.plan)) {
     const estimate = await createEstimate(database, { studyId: study.id, input: { partition, outliers: "horn", transform: "auto", seed: 1 }, actor });
@@ -229,8 +241,10 @@ export async function seedDemoStudies(database: Database, actors: DemoActors): P
     const { study, added: opened } = await ensureStudy(database, spec, actors.scientist);
     const uploaded = await ensureDonorResults(database, spec, study, actors.scientist);
     added ||= opened || uploaded;
-    if (reached(spec, "screened")) added = (await ensureScreened(database, spec, study, actors.scientist)) || added;
-    if (reached(spec, "partitioned")) added = (await ensurePartitioned(database, spec, study, actors.scientist)) || added;
+    // An age-curve study has no screen or partitions: its curves take age in themselves.
+    const direct = spec.kind !== "age_curve";
+    if (direct && reached(spec, "screened")) added = (await ensureScreened(database, spec, study, actors.scientist)) || added;
+    if (direct && reached(spec, "partitioned")) added = (await ensurePartitioned(database, spec, study, actors.scientist)) || added;
     if (!reached(spec, "estimated")) continue;
     const estimated = await ensureEstimated(database, spec, study, actors.scientist);
     added ||= estimated.added;

@@ -24,8 +24,10 @@ export interface DemoStudy {
   /** The partition tests the scientist ran, and the plan chosen from them (none: one partition of everyone). */
   assessment?: { by: "sex" } | { by: "age"; bands: [number, number][] };
   plan?: { sex: boolean; ageBands: [number, number][] | null };
-  /** The method chosen for each partition of the version. */
-  chosenMethod: "nonparametric" | "parametric" | "robust";
+  /** `age_curve`: LMS curves in exact age (fitted once, both sexes, seed 1); direct otherwise. */
+  kind?: "direct" | "age_curve";
+  /** The method chosen for each partition of the version ("lms" for an age-curve study's curves). */
+  chosenMethod: "nonparametric" | "parametric" | "robust" | "lms";
   /** A manual exclusion made while screening: the donors (running numbers) and why. */
   manualExclusion?: { donors: number[]; reason: string };
   /** Why the outliers the screen proposed were confirmed. */
@@ -104,6 +106,16 @@ export const DEMO_STUDIES: readonly DemoStudy[] = [
     cohort: DEMO_COHORTS.alkalinePhosphatase("HRW-ALP25", 2510, 160, 150), fileName: "alp-children-adults.csv",
     stage: "awaiting_signoff", assessment: { by: "age", bands: [[0, 18], [18, 120]] }, plan: { sex: false, ageBands: [[0, 18], [18, 120]] },
     chosenMethod: "nonparametric", note: "First paediatric interval for ALP: children and adults partitioned at 18 years.",
+  },
+  {
+    analyte: "ALPC", title: "Alkaline phosphatase: paediatric age curves 2025", kind: "age_curve", method: "IFCC (AMP buffer), Corvel AX-400",
+    criteria:
+      "Children from birth to 18 years seen at the Harrowmere children's unit for minor elective surgery or well-child checks (with " +
+      "parental consent); none with known bone, liver or kidney disease, a fracture in the past year, or medication affecting bone. " +
+      "Birth date and collection date recorded for each.",
+    cohort: DEMO_COHORTS.alkalinePhosphatasePaediatric("HRW-ALPC25", 2616, 1200), fileName: "alp-paediatric-2025.csv",
+    stage: "in_force", chosenMethod: "lms", effectiveFrom: "2026-02-02",
+    note: "Continuous LMS age curves from birth to 18 years: the limits follow the child's exact age, with no steps at birthdays.",
   },
   {
     analyte: "NA", title: "Sodium: verification after the AX-400 electrode change", method: "Indirect ISE, Corvel AX-400 (new electrode lot)",

@@ -42,6 +42,8 @@ export const DEMO_ANALYTES: Record<string, unknown>[] = [
   },
   { code: "ALT", name: "Alanine aminotransferase", unit: "U/L", decimals: 0, loinc: "1742-6", specimen: "serum" },
   { code: "ALP", name: "Alkaline phosphatase", unit: "U/L", decimals: 0, loinc: "6768-6", specimen: "serum" },
+  // Children's ALP, scored on continuous age curves (an age-curve study); no LOINC code of its own.
+  { code: "ALPC", name: "Alkaline phosphatase, children (age curves)", unit: "U/L", decimals: 0, specimen: "serum" },
   { code: "TSH", name: "Thyrotropin (TSH)", unit: "m[IU]/L", decimals: 2, loinc: "3016-3", specimen: "serum", reviewMonths: 36 },
   { code: "HGB", name: "Haemoglobin", unit: "g/L", decimals: 0, loinc: "718-7", specimen: "whole blood", criticalLow: 70, criticalHigh: 200 },
 ];

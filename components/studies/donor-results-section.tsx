@@ -108,12 +108,21 @@ export function DonorResultsSection({ study, analyte, uploads }: StudySectionPro
     ? "The study is closed: no more files can be uploaded."
     : study.counts.pendingUploads > 0
       ? "An upload awaits your decision: commit its valid rows or cancel it (in the list of uploads below)."
-      : n === 0
-        ? "Upload the healthy-donor results: a CSV or Excel file in the template's columns, or any columns you then map. Start with an example file if you are trying Bellwether out."
-        : "Screen the results for outliers (step 2), or upload more results from another file.";
+      : study.kind === "age_curve"
+        ? n === 0
+          ? "Upload the healthy-donor results with each donor's birth_date and collected_on: an age-curve study needs exact ages (age_years alone and censored values are refused)."
+          : "Fit the age curves (step 2), or upload more results from another file."
+        : n === 0
+          ? "Upload the healthy-donor results: a CSV or Excel file in the template's columns, or any columns you then map. Start with an example file if you are trying Bellwether out."
+          : "Screen the results for outliers (step 2), or upload more results from another file.";
   return (
     <StudySection id="donor-results" step={1} title="Donor results" done={done} next={next}>
-      {open ? <UploadPanel studyId={study.id} analyte={analyte} onDecided={refresh} /> : null}
+      {open ? <UploadPanel
+          studyId={study.id}
+          analyte={analyte}
+          onDecided={refresh}
+          nextAfterCommit={study.kind === "age_curve" ? "Fit the age curves next." : undefined}
+        /> : null}
       <UploadsList studyId={study.id} uploads={uploads} open={open} onDecided={refresh} />
       <DonorResultsTable studyId={study.id} analyte={analyte} />
     </StudySection>

@@ -102,7 +102,7 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
         header: "As uploaded",
         cell: (c) => {
           const r = c.row.original;
-          if (r.originalUnit === null || r.originalValue === null) return <span className="text-ink-400">same</span>;
+          if (r.originalUnit === null || r.originalValue === null) return <span className="text-ink-500">same</span>;
           return (
             <span className="whitespace-nowrap text-ink-600">
               {formatDonorValue({ ...r, value: r.originalValue }, null)} {r.originalUnit}
@@ -117,7 +117,7 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
           const r = c.row.original;
           if (r.exclusion) return <Badge tone="warn">Excluded: {r.exclusion.reason}</Badge>;
           if (r.excluded) return <Badge tone="warn">Excluded</Badge>;
-          return <span className="text-ink-400">—</span>;
+          return <span className="text-ink-500">—</span>;
         },
       }),
     ],

@@ -25,6 +25,23 @@ export function NewStudyForm({ action, analytes }: { action: FormServerAction; a
     <form onSubmit={onSubmit} className="space-y-3" aria-label="New study" noValidate>
       <SelectField label="Analyte" name="analyte" id="study-analyte" options={options} error={errors.analyte} required defaultValue="" />
       <TextField label="Title" name="title" id="study-title" error={errors.title} required autoComplete="off" hint="e.g. Fasting glucose, healthy adults 2026" />
+      <fieldset className="space-y-1">
+        <legend className="block text-xs font-medium uppercase tracking-wide text-ink-600">Kind of study</legend>
+        <label className="flex items-start gap-2 text-sm text-ink-800">
+          <input type="radio" name="kind" value="direct" defaultChecked className="mt-1" />
+          <span>
+            <span className="font-medium">Limits per partition</span>: one reference interval for everyone, or per sex or age band.
+          </span>
+        </label>
+        <label className="flex items-start gap-2 text-sm text-ink-800">
+          <input type="radio" name="kind" value="age_curve" className="mt-1" />
+          <span>
+            <span className="font-medium">Age curves (children)</span>: centile curves continuous in age (LMS); every donor needs a birth date and a
+            collection date.
+          </span>
+        </label>
+        {errors.kind ? <p className="text-xs text-signal-high">{errors.kind}</p> : null}
+      </fieldset>
       <TextField label="Method and instrument" name="method" id="study-method" error={errors.method} autoComplete="off" hint="e.g. Hexokinase on the chemistry analyser" />
       <TextField label="Specimen" name="specimen" id="study-specimen" error={errors.specimen} autoComplete="off" hint="Leave empty for the analyte's specimen." />
       <div className="space-y-1">

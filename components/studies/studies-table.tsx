@@ -4,7 +4,7 @@ import { createColumnHelper } from "@tanstack/react-table";
 import Link from "next/link";
 import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
-import { STUDY_STATUS_WORDS, type StudyRow } from "./types";
+import { STUDY_KIND_WORDS, STUDY_STATUS_WORDS, type StudyRow } from "./types";
 
 const column = createColumnHelper<StudyRow>();
 
@@ -25,6 +25,7 @@ const columns = [
       </Link>
     ),
   }),
+  column.accessor("kind", { header: "Kind", cell: (c) => <span className="whitespace-nowrap">{STUDY_KIND_WORDS[c.getValue()]}</span> }),
   column.accessor("status", {
     header: "Status",
     cell: (c) => (

@@ -1,5 +1,11 @@
 import { Badge } from "@/components/ui/badge";
-import { STUDY_STATUS_WORDS, type StudyAnalyte, type StudyView } from "./types";
+import { STUDY_KIND_WORDS, STUDY_STATUS_WORDS, type StudyAnalyte, type StudyView } from "./types";
+
+const AGE_CURVE_STEPS = [
+  { id: "donor-results", label: "Donor results" },
+  { id: "age-curves", label: "Age curves" },
+  { id: "draft", label: "Draft" },
+];
 
 const STEPS = [
   { id: "donor-results", label: "Donor results" },
@@ -34,7 +40,8 @@ export function StudyHeader({ study, analyte, actions }: { study: StudyView; ana
           </p>
           <h1 className="mt-0.5 break-words">{study.title}</h1>
           <p className="mt-1">
-            <Badge tone={study.status === "open" ? "ok" : "neutral"}>{STUDY_STATUS_WORDS[study.status]}</Badge>
+            <Badge tone={study.status === "open" ? "ok" : "neutral"}>{STUDY_STATUS_WORDS[study.status]}</Badge>{" "}
+            <span data-testid="study-kind"><Badge tone="brand">{STUDY_KIND_WORDS[study.kind]}</Badge></span>
             <span className="ml-2 text-sm text-ink-600">opened on {study.openedOn}</span>
           </p>
         </div>
@@ -65,7 +72,7 @@ export function StudyHeader({ study, analyte, actions }: { study: StudyView; ana
       </dl>
       <nav aria-label="Steps of the study" className="overflow-x-auto">
         <ol className="flex gap-1 text-sm">
-          {STEPS.map((s, i) => (
+          {(study.kind === "age_curve" ? AGE_CURVE_STEPS : STEPS).map((s, i) => (
             <li key={s.id}>
               <a href={`#${s.id}`} className="block whitespace-nowrap rounded-md border border-ink-200 bg-white px-3 py-1.5 text-ink-700 hover:border-tide-500 hover:text-tide-700">
                 {i + 1}. {s.label}

@@ -23,7 +23,7 @@ export function StudySection({
     <section id={id} aria-labelledby={`${id}-heading`} className="min-w-0 scroll-mt-4 rounded-lg border border-ink-200 bg-white">
       <header className="border-b border-ink-100 px-4 py-3">
         <h2 id={`${id}-heading`} className="flex items-baseline gap-2">
-          <span className="text-sm font-medium text-ink-400">{step}.</span>
+          <span className="text-sm font-medium text-ink-500">{step}.</span>
           {title}
         </h2>
         <dl className="mt-1.5 grid gap-x-4 gap-y-1 text-sm sm:grid-cols-[auto_1fr]">

@@ -15,6 +15,8 @@ export interface StudyView {
   id: string;
   title: string;
   status: "open" | "closed";
+  /** `direct`: limits per partition; `age_curve`: LMS centile curves in exact age. */
+  kind: "direct" | "age_curve";
   method: string | null;
   specimen: string | null;
   criteria: string | null;
@@ -40,11 +42,18 @@ export interface StudyRow {
   analyte: string;
   analyteName: string;
   title: string;
+  kind: "direct" | "age_curve";
   status: "open" | "closed";
   donorResults: number;
   uploads: number;
   openedOn: string;
 }
+
+/** A study's kind in words. */
+export const STUDY_KIND_WORDS: Record<StudyView["kind"], string> = {
+  direct: "Limits per partition",
+  age_curve: "Age curves (LMS)",
+};
 
 /** A study's status in words. */
 export const STUDY_STATUS_WORDS: Record<StudyView["status"], string> = {

@@ -40,7 +40,18 @@ function mappingOf(resolved: UploadPreviewAnswer["mapping"]): ColumnMapping {
  * rows → the validation report (counts, then the rows with problems) → commit or cancel. The
  * file chosen stays chosen through refusals, so the scientist can correct an option and retry.
  */
-export function UploadPanel({ studyId, analyte, onDecided }: { studyId: string; analyte: StudyAnalyte; onDecided: () => void }) {
+export function UploadPanel({
+  studyId,
+  analyte,
+  onDecided,
+  nextAfterCommit = "Screen them for outliers next.",
+}: {
+  studyId: string;
+  analyte: StudyAnalyte;
+  onDecided: () => void;
+  /** The sentence after "Stored N donor results from F.": what the study's next step is. */
+  nextAfterCommit?: string;
+}) {
   const [file, setFile] = useState<File | null>(null);
   const [decimalComma, setDecimalComma] = useState(false);
   const [sheet, setSheet] = useState("");
@@ -140,7 +151,7 @@ export function UploadPanel({ studyId, analyte, onDecided }: { studyId: string; 
       const body = await res.json();
       reset(
         decision === "commit"
-          ? `Stored ${body.stored.toLocaleString("en")} donor results from ${upload.fileName}. Screen them for outliers next.`
+          ? `Stored ${body.stored.toLocaleString("en")} donor results from ${upload.fileName}. ${nextAfterCommit}`
           : `Cancelled the upload of ${upload.fileName}; nothing was stored.`,
       );
       onDecided();
@@ -309,11 +320,11 @@ export function UploadPanel({ studyId, analyte, onDecided }: { studyId: string; 
           <p className="font-medium text-ink-800">Blank template</p>
           <p>
             Columns <span className="font-mono text-xs">donor_code, sex, age_years, birth_date, collected_on, value, unit</span>:{" "}
-            <a href={templateHref("csv")} download>
+            <a href={templateHref("csv")} download className="underline">
               CSV
             </a>{" "}
             ·{" "}
-            <a href={templateHref("xlsx")} download>
+            <a href={templateHref("xlsx")} download className="underline">
               Excel (.xlsx)
             </a>
           </p>

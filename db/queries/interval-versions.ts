@@ -9,6 +9,8 @@ import { partitionLabel, partitionOut, type PartitionOut } from "@/lib/studies/e
 import { ageYearsToDays } from "@/lib/versions/age-days";
 import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, VersionPartitionInput } from "@/lib/versions/input";
 import { firstOverlap } from "@/lib/versions/overlap";
+import { curveExtremes, lmsPartitionDays, type LmsEstimateDocument } from "@/lib/studies/age-curves";
+import { lmsModelSchema, type LmsModel } from "@/lib/stats/lms-model";
 import { adoptedScoringModel, publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
 import type { Database, Executor } from "../client";
 import { SIGNATURE_MEANING_LABELS, VERSION_STATE_LABELS } from "@/lib/versions/state-machine";
@@ -26,6 +28,7 @@ import {
 } from "../schema";
 import { acceptedAdoptionCheckForDraft } from "./adoption-checks";
 import { recordAuditEvent, type Actor } from "./audit";
+import { isLmsEstimate } from "./age-curve-estimates";
 import { valuesOfEstimate } from "./estimates";
 
 /** Attempts at numbering a new version when another took the same number at the same moment. */
@@ -59,9 +62,9 @@ interface ResolvedPartition {
   high: number | null;
   lowCi: [number, number] | null;
   highCi: [number, number] | null;
-  method: PartitionMethod | "adopted";
+  method: PartitionMethod | "adopted" | "lms";
   n: number;
-  model: ScoringModel;
+  model: ScoringModel | LmsModel;
   estimateId: string | null;
 }
 
@@ -89,6 +92,29 @@ function adoptedPartition(check: AdoptionCheck): ResolvedPartition {
 }
 
 /**
+ * A partition holding an age-curve study's LMS curves (the partition contract): the fitted model
+ * exactly, no fixed limits or CIs, the days whose age lies in [ageMin, ageMax], n the donors fitted.
+ */
+function lmsPartition(estimateId: string, sex: "F" | "M" | null, document: LmsEstimateDocument): ResolvedPartition {
+  const model = lmsModelSchema.parse(document.model);
+  const days = lmsPartitionDays(model);
+  return {
+    scope: { sex, ageFrom: model.ageMin, ageTo: model.ageMax },
+    sex,
+    ageFromDays: days.ageFromDays,
+    ageToDays: days.ageToDays,
+    low: null,
+    high: null,
+    lowCi: null,
+    highCi: null,
+    method: "lms",
+    n: document.n,
+    model,
+    estimateId,
+  };
+}
+
+/**
  * Each requested partition from its estimate (which must belong to the study) and method (which
  * must have limits there): the limits, their CIs, n and the scoring model, the age band in days.
  * Refuses partitions that overlap.
@@ -106,6 +132,17 @@ async function resolvePartitions(
       .where(and(eq(estimates.id, request.estimate), eq(estimates.studyId, studyId)))
       .limit(1);
     if (!estimate) throw invalid(`${path}.estimate`, `${path}.estimate: there is no estimate with the id ${request.estimate} in the study ${studyId}.`);
+    const lms = isLmsEstimate(estimate);
+    if (request.method === "lms" || lms) {
+      if (request.method !== "lms") {
+        throw invalid(`${path}.method`, `${path}.method: the estimate ${estimate.id} holds LMS age curves; its method is lms.`);
+      }
+      if (!lms) {
+        throw invalid(`${path}.method`, `${path}.method: the estimate ${estimate.id} holds limits, not age curves; choose nonparametric, parametric or robust.`);
+      }
+      resolved.push(lmsPartition(estimate.id, estimate.sex as "F" | "M" | null, estimate.document as unknown as LmsEstimateDocument));
+      continue;
+    }
     const document = estimate.document as unknown as ReferenceIntervalEstimate;
     const limits = document[request.method];
     if (limits.lower === null || limits.upper === null) {
@@ -123,7 +160,7 @@ async function resolvePartitions(
     }
     let model: ScoringModel;
     try {
-      model = scoringModelFor({ document, method: request.method, values });
+      model = scoringModelFor({ document, method: request.method as PartitionMethod, values });
     } catch (err) {
       if (err instanceof ScoringModelError) throw invalid(`${path}.method`, `${path}.method: ${err.message}.`);
       throw err;
@@ -167,6 +204,18 @@ function assertScorable(
     throw invalid("criticalLow", `criticalLow (${criticalLow}) must be below criticalHigh (${criticalHigh}).`);
   }
   for (const [i, p] of partitions.entries()) {
+    const lms = lmsModelSchema.safeParse(p.model);
+    if (lms.success) {
+      // The limits of curves move with age: the critical limits must lie outside them at every age.
+      const { lowest, highest } = curveExtremes(lms.data);
+      if (criticalLow !== null && lowest !== null && criticalLow > lowest) {
+        throw invalid("criticalLow", `criticalLow (${criticalLow}) must not exceed the lowest 2.5th centile of the curves of partitions.${i} (${lowest.toPrecision(4)}).`);
+      }
+      if (criticalHigh !== null && highest !== null && criticalHigh < highest) {
+        throw invalid("criticalHigh", `criticalHigh (${criticalHigh}) must not be below the highest 97.5th centile of the curves of partitions.${i} (${highest.toPrecision(4)}).`);
+      }
+      continue;
+    }
     const parsed = scoringPartitionSchema.safeParse({
       low: p.low,
       high: p.high,
@@ -446,12 +495,13 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
   const byVersion = new Map<string, VersionPartitionOut[]>();
   for (const { partition: p, ageFrom, ageTo } of parts) {
     const list = byVersion.get(p.versionId) ?? [];
+    const lms = p.method === "lms" ? lmsModelSchema.parse(p.model) : null;
     list.push({
       id: p.id,
       position: p.position,
       sex: p.sex as "F" | "M" | null,
-      ageFrom,
-      ageTo,
+      ageFrom: lms ? lms.ageMin : ageFrom,
+      ageTo: lms ? lms.ageMax : ageTo,
       ageFromDays: p.ageFromDays,
       ageToDays: p.ageToDays,
       low: p.low,
@@ -460,7 +510,8 @@ async function versionsWhere(executor: Executor, where: SQL | undefined): Promis
       highCi: pair(p.highCiLower, p.highCiUpper),
       method: p.method,
       n: p.n,
-      model: publicModel(scoringModelSchema.parse(p.model)),
+      // LMS curves are public as they are: they are the model, not donor values.
+      model: lms ?? publicModel(scoringModelSchema.parse(p.model)),
       estimateId: p.estimateId,
     });
     byVersion.set(p.versionId, list);

@@ -29,6 +29,7 @@ export async function createStudy(database: Database, { input, actor }: { input:
       .values({
         analyteId: analyte.id,
         title: input.title,
+        kind: input.kind,
         method: input.method ?? null,
         specimen: input.specimen ?? analyte.specimen,
         criteria: input.criteria ?? null,
@@ -42,8 +43,8 @@ export async function createStudy(database: Database, { input, actor }: { input:
       action: "study.created",
       entityType: "study",
       entityId: created.id,
-      summary: `Opened the study "${created.title}" for ${analyte.code}`,
-      details: { analyte: analyte.code, title: created.title, method: created.method, specimen: created.specimen },
+      summary: `Opened the ${created.kind === "age_curve" ? "age-curve " : ""}study "${created.title}" for ${analyte.code}`,
+      details: { analyte: analyte.code, title: created.title, kind: created.kind, method: created.method, specimen: created.specimen },
     });
     return created;
   });

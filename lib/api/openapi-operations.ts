@@ -24,7 +24,7 @@ import {
 import { analyteIntervalsSchema, intervalsParams, intervalsQuery, MAX_FHIR_BODY_BYTES, MAX_SCORE_BODY_BYTES, MAX_SCORE_ITEMS, scoreRequestSchema, scoreResponseSchema } from "@/lib/scores/schemas";
 import { lookupQuery, partitionQuery } from "@/lib/studies/chart-data";
 import { donorResultsQuery } from "@/lib/studies/donor-results-query";
-import { createEstimateBody, estimateIdParams } from "@/lib/studies/estimate-input";
+import { estimateIdParams, estimateRequestDocBody } from "@/lib/studies/estimate-input";
 import { createStudyBody, studyIdParams, uploadIdParams } from "@/lib/studies/input";
 import { partitionAssessmentBody, partitionPlanBody } from "@/lib/studies/partition-input";
 import { decisionIdParams, exclusionIdParams, exclusionsBody, listAllQuery, outlierDecisionBody, screenBody } from "@/lib/studies/screening-input";
@@ -489,11 +489,19 @@ const STUDIES: ApiOperation[] = [
     path: "/api/v1/studies/{id}/estimates",
     operationId: "createEstimate",
     tag: "Studies",
-    summary: "Estimate a partition's reference interval",
+    summary: "Estimate a partition's reference interval, or fit an age-curve study's LMS curves",
+    description:
+      'A direct study takes `{partition?, outliers?, transform?, seed?}`; an age-curve study takes `{method: "lms", sex?: "F"|"M"|null, seed?}` and fits the LMS centile curves to the donors of that sex (null: both). Each kind of study refuses the other\'s request with 409.',
     access: { permission: "studies:write" },
     params: studyIdParams,
-    body: createEstimateBody,
-    success: { status: 201, description: "The command line's estimate document plus id, studyId, partition and createdAt", schema: described("The estimate document"), headers: location },
+    body: estimateRequestDocBody,
+    success: {
+      status: 201,
+      description:
+        "The command line's estimate document plus id, studyId, partition and createdAt; for an LMS fit the `bellwether lms` document `{n, at, lower, median, upper, L, M, S, edf, warnings}` plus `{method, sex, seed, model, ageRange, criterion, logLik, converged, excluded, diagnostics, sexComparison, advice, provenance}`",
+      schema: described("The estimate document"),
+      headers: location,
+    },
     errors: studyWrite,
   },
   {
@@ -517,6 +525,22 @@ const STUDIES: ApiOperation[] = [
     params: estimateIdParams,
     success: { status: 200, description: "`{estimateId, partition, n, censored, scale, histogram, qq}`", schema: described("{estimateId, partition, n, censored, scale, histogram, qq}") },
     errors: studyNotFound,
+  },
+  {
+    method: "get",
+    path: "/api/v1/studies/{id}/estimates/{estimateId}/age-curves",
+    operationId: "getEstimateAgeCurves",
+    tag: "Studies",
+    summary: "The centile curves, donors and diagnostics of an LMS estimate",
+    access: { permission: "donors:read" },
+    params: estimateIdParams,
+    success: {
+      status: 200,
+      description:
+        "`{estimateId, sex, n, unit, ageRange: {min, max}, curves: [{age, lower, median, upper}], donors: {points: [{id, donorCode, sex, age, value, z}], thinned}, far: [donor], diagnostics: {groups, warnings, far}, warnings, advice}`",
+      schema: described("{estimateId, sex, n, unit, ageRange, curves, donors, far, diagnostics, warnings, advice}"),
+    },
+    errors: studyWrite,
   },
   {
     method: "get",

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { OUTLIER_OPTIONS, TRANSFORM_OPTIONS, type OutlierOption, type TransformOption } from "@/lib/stats/estimate";
+import { asksForLms, lmsEstimateBody, type LmsEstimateInput } from "./age-curves";
 import { studyIdParams } from "./input";
 import { partitionLabel as labelOf, partitionSchema, type Partition } from "./partitions";
 
@@ -48,5 +49,25 @@ export const createEstimateBody = z
   .strict();
 
 export type CreateEstimateInput = z.output<typeof createEstimateBody>;
+
+/**
+ * The body of POST /api/v1/studies/{id}/estimates as the route parses it: an LMS fit when it names
+ * `method: "lms"` (age-curve studies, lib/studies/age-curves.ts), otherwise a partition's
+ * estimate; each checked by its own strict schema, so the messages are that schema's.
+ */
+export const estimateRequestBody = z.unknown().transform((raw, ctx): EstimateRequest => {
+  const lms = asksForLms(raw);
+  const parsed = lms ? lmsEstimateBody.safeParse(raw) : createEstimateBody.safeParse(raw);
+  if (!parsed.success) {
+    for (const issue of parsed.error.issues) ctx.addIssue({ code: "custom", message: issue.message, path: issue.path, input: raw });
+    return z.NEVER;
+  }
+  return lms ? { kind: "lms", input: parsed.data as LmsEstimateInput } : { kind: "direct", input: parsed.data as CreateEstimateInput };
+});
+
+export type EstimateRequest = { kind: "lms"; input: LmsEstimateInput } | { kind: "direct"; input: CreateEstimateInput };
+
+/** What the API document shows for that body: one of the two. */
+export const estimateRequestDocBody = z.union([createEstimateBody, lmsEstimateBody]);
 
 export const estimateIdParams = studyIdParams.extend({ estimateId: z.uuid("The estimate id must be a UUID.") });

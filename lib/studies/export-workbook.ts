@@ -7,6 +7,7 @@
  * their exact characters.
  */
 import type { ReferenceIntervalEstimate } from "@/lib/stats/estimate";
+import type { LmsCurvesDocument } from "@/lib/stats/lms-curves";
 import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWriter } from "@/lib/xlsx/streamed-workbook";
 import { partitionLabel, partitionOut } from "./estimate-input";
 
@@ -171,6 +172,15 @@ export function estimatesSheet(workbook: WorkbookWriter, data: Pick<StudyExportD
   for (const e of data.estimates) {
     const doc = e.document as unknown as ReferenceIntervalEstimate;
     const engine = doc.provenance?.engine;
+    const engineText = engine ? `${engine.name} ${engine.version}${engine.commit ? ` ${engine.commit}` : ""}${engine.uncommittedChanges ? " (uncommitted changes)" : ""}` : null;
+    if (e.options.method === "lms") {
+      // LMS age curves have no fixed limits: one row here, the curves at their ages in "Age curves".
+      addRow(sheet, [
+        e.id, e.createdAt, partitionLabel(partitionOut(e)), e.sex, e.ageFrom, e.ageTo, null, null, e.seed, e.n, "lms", null,
+        null, null, null, null, null, null, null, null, e.exclusionIds.length, e.uploadHashes.join(" "), engineText, (doc.warnings ?? []).join(" "),
+      ]);
+      continue;
+    }
     for (const method of METHODS) {
       const m = doc[method];
       const parametricScale = method === "nonparametric" ? null : doc.parametric;
@@ -180,8 +190,29 @@ export function estimatesSheet(workbook: WorkbookWriter, data: Pick<StudyExportD
         num(m?.lower), num(m?.lowerCi?.[0]), num(m?.lowerCi?.[1]), num(m?.upper), num(m?.upperCi?.[0]), num(m?.upperCi?.[1]),
         parametricScale?.transform ?? null, num(parametricScale?.lambda),
         e.exclusionIds.length, e.uploadHashes.join(" "),
-        engine ? `${engine.name} ${engine.version}${engine.commit ? ` ${engine.commit}` : ""}${engine.uncommittedChanges ? " (uncommitted changes)" : ""}` : null,
+        engineText,
         (doc.warnings ?? []).join(" "),
+      ]);
+    }
+  }
+  sheet.commit();
+}
+
+/**
+ * The LMS estimates' curves at the ages of their documents: one row per estimate and age with L,
+ * M, S and the 2.5th, 50th and 97.5th centiles (lib/studies/age-curves.ts's document).
+ */
+export function ageCurvesSheet(workbook: WorkbookWriter, data: Pick<StudyExportData, "estimates">, name = "Age curves"): void {
+  const sheet = tableSheet(workbook, name, [
+    "Estimate", "Sex", "Seed", "n", "Age (years)", "L", "M", "S", "2.5th centile", "50th centile", "97.5th centile", "edf L", "edf M", "edf S",
+  ]);
+  for (const e of data.estimates) {
+    if (e.options.method !== "lms") continue;
+    const doc = e.document as unknown as LmsCurvesDocument;
+    for (const [i, age] of doc.at.entries()) {
+      addRow(sheet, [
+        e.id, e.sex, e.seed, e.n, age, num(doc.L[i]), num(doc.M[i]), num(doc.S[i]), num(doc.lower[i]), num(doc.median[i]), num(doc.upper[i]),
+        num(doc.edf.L), num(doc.edf.M), num(doc.edf.S),
       ]);
     }
   }
@@ -195,5 +226,6 @@ export async function studyWorkbook(data: StudyExportData): Promise<Buffer> {
     donorSheet(workbook, data);
     partitionsSheet(workbook, data);
     estimatesSheet(workbook, data);
+    if (data.estimates.some((e) => e.options.method === "lms")) ageCurvesSheet(workbook, data);
   });
 }

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { STUDY_KINDS } from "@/db/schema";
 
 const optionalText = (max: number) => z.string().trim().min(1).max(max).optional();
 
@@ -7,6 +8,8 @@ export const createStudyBody = z
   .object({
     analyte: z.string().trim().min(1, "Give the analyte's code.").max(16),
     title: z.string().trim().min(1, "Give the study a title.").max(200),
+    /** `direct` (limits per partition) unless `age_curve` (LMS centile curves in exact age). */
+    kind: z.enum(STUDY_KINDS, `kind is ${STUDY_KINDS.join(" or ")}.`).default("direct"),
     method: optionalText(200),
     specimen: optionalText(100),
     criteria: optionalText(10_000),

@@ -5,7 +5,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { migrateDatabase } from "@/db/migrate";
 import * as schema from "@/db/schema";
 import { seedDemo } from "@/db/seed";
+import { paediatricAlp } from "@/db/demo-donors";
 import { createScorer, scoringPartitionSchema } from "@/lib/scoring";
+import { lmsCentileAt, type LmsModel } from "@/lib/stats/lms-model";
 import { createScratchDatabase, SUPERUSER_URL, type ScratchDatabase } from "../support/scratch-database";
 
 /** Every table the seed may write, to show that a second run adds nothing. */
@@ -26,6 +28,7 @@ const DONORS_PER_STUDY: Record<string, number> = {
   "Creatinine: Harrowmere reference interval study 2024": 300,
   "Haemoglobin: Harrowmere reference interval study 2024": 300,
   "Alkaline phosphatase: children and adults 2025-26": 310,
+  "Alkaline phosphatase: paediatric age curves 2025": 1200,
   "Sodium: verification after the AX-400 electrode change": 200,
   "ALT: 2026 re-establishment with pyridoxal phosphate": 240,
   "Haemoglobin: Hemavue 7 introduction": 300,
@@ -58,11 +61,11 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     await db?.drop();
   });
 
-  it("seeds the accounts, the ten analytes and fifteen studies, each study's file committed", async () => {
+  it("seeds the accounts, the eleven analytes and sixteen studies, each study's file committed", async () => {
     expect(firstRun).toBe(true);
     expect((await counts()).users).toBe(4);
     expect((await rows<{ code: string }>("SELECT code FROM analytes ORDER BY code")).map((a) => a.code)).toEqual([
-      "ALP", "ALT", "CA", "CREA", "GLU", "HGB", "K", "NA", "TSH", "UREA",
+      "ALP", "ALPC", "ALT", "CA", "CREA", "GLU", "HGB", "K", "NA", "TSH", "UREA",
     ]);
     const studies = await rows<{ title: string; uploads: number; committed: number; stored: number; donors: number }>(`
       SELECT s.title,
@@ -77,7 +80,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     const [{ n }] = await rows<{ n: number }>(
       "SELECT count(*)::int AS n FROM audit_events WHERE action = 'upload.committed' AND actor_label = 'scientist@harrowmere.example'",
     );
-    expect(n).toBe(15);
+    expect(n).toBe(16);
     const [{ pending }] = await rows<{ pending: number }>("SELECT count(*)::int AS pending FROM uploads WHERE pending_rows IS NOT NULL");
     expect(pending).toBe(0);
   });
@@ -139,6 +142,8 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
       "Alkaline phosphatase: children and adults 2025-26": {
         screened: 1, assessments: 1, plan: { sex: false, ageBands: [[0, 18], [18, 120]] }, estimates: 2, version: "awaiting_signoff",
       },
+      // The age-curve study: no screen or partitions (the curves take age in themselves), one LMS fit.
+      "Alkaline phosphatase: paediatric age curves 2025": { screened: 0, assessments: 0, plan: null, estimates: 1, version: "in_force" },
       "Sodium: verification after the AX-400 electrode change": { screened: 1, assessments: 0, plan: null, estimates: 1, version: "draft" },
       "ALT: 2026 re-establishment with pyridoxal phosphate": { screened: 1, assessments: 0, plan: null, estimates: 1, version: null },
       "Haemoglobin: Hemavue 7 introduction": { screened: 1, assessments: 1, plan: bySex, estimates: 0, version: null },
@@ -179,6 +184,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
       FROM interval_versions v JOIN analytes a ON a.id = v.analyte_id ORDER BY a.code, v.number`);
     expect(versions).toEqual([
       { code: "ALP", number: 1, state: "awaiting_signoff", effective: null, partitions: 2 },
+      { code: "ALPC", number: 1, state: "in_force", effective: "2026-02-02", partitions: 1 },
       { code: "ALT", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
       { code: "CA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
       { code: "CREA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 2 },
@@ -200,7 +206,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
       SELECT a.code, v.unit, v.decimals, p.method, p.n, p.low, p.high, p.low_ci_lower, p.low_ci_upper, p.high_ci_lower, p.high_ci_upper,
         p.model, p.estimate_id
       FROM interval_partitions p JOIN interval_versions v ON v.id = p.version_id JOIN analytes a ON a.id = v.analyte_id
-      WHERE v.state = 'in_force'`);
+      WHERE v.state = 'in_force' AND p.method <> 'lms'`);
     expect(partitions).toHaveLength(11);
     for (const p of partitions) {
       const label = `${p.code} ${p.method}`;
@@ -248,7 +254,28 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     const submitters = await rows<{ email: string; n: number }>(`
       SELECT u.email, count(*)::int AS n FROM interval_versions v JOIN users u ON u.id = v.submitted_by
       WHERE v.state IN ('in_force', 'awaiting_signoff') GROUP BY u.email`);
-    expect(submitters).toEqual([{ email: "scientist@harrowmere.example", n: 10 }]);
+    expect(submitters).toEqual([{ email: "scientist@harrowmere.example", n: 11 }]);
+  });
+
+  it("puts the paediatric age curves in force by issue 11's partition contract, their limits at the 2.5th and 97.5th centiles", async () => {
+    const [p] = await rows<{ method: string; low: number | null; high: number | null; sex: string | null; age_from_days: number; age_to_days: number; n: number; model: LmsModel; document: { model: LmsModel } }>(`
+      SELECT p.method, p.low, p.high, p.sex, p.age_from_days, p.age_to_days, p.n, p.model, e.document
+      FROM interval_partitions p JOIN interval_versions v ON v.id = p.version_id JOIN analytes a ON a.id = v.analyte_id
+      JOIN estimates e ON e.id = p.estimate_id WHERE a.code = 'ALPC' AND v.state = 'in_force'`);
+    expect(p).toMatchObject({ method: "lms", low: null, high: null, sex: null, n: 1200 });
+    expect(p.model).toEqual(p.document.model);
+    expect(p.age_from_days).toBe(Math.ceil(p.model.ageMin * 365.25));
+    expect(p.age_to_days).toBe(Math.floor(p.model.ageMax * 365.25) + 1);
+    // The donors were drawn from db/demo-donors.ts's paediatricAlp curves; at 5 and 12 years the
+    // fitted limits lie within 15% of the true 95% width of those curves' 2.5th and 97.5th centiles
+    // (z = ∓1.959964, @stdlib's Φ⁻¹(0.975)); 1,200 donors, as lib/stats' accuracy test measures.
+    for (const age of [5, 12]) {
+      const lower = paediatricAlp(age, -1.959964);
+      const upper = paediatricAlp(age, 1.959964);
+      const width = upper - lower;
+      expect(Math.abs(lmsCentileAt(p.model, age, 2.5)! - lower) / width, `lower at ${age}`).toBeLessThan(0.15);
+      expect(Math.abs(lmsCentileAt(p.model, age, 97.5)! - upper) / width, `upper at ${age}`).toBeLessThan(0.15);
+    }
   });
 
   it("changes nothing when it runs again", async () => {

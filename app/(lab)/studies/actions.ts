@@ -9,7 +9,7 @@ import { runAction, type ActionState } from "@/lib/auth/action";
 import { actorOf } from "@/lib/auth/session";
 import { createStudyBody } from "@/lib/studies/input";
 
-const FIELDS = ["analyte", "title", "method", "specimen", "criteria", "collectedFrom", "collectedTo"] as const;
+const FIELDS = ["analyte", "title", "kind", "method", "specimen", "criteria", "collectedFrom", "collectedTo"] as const;
 
 /** The form's text as the API's body: blank fields left out, so the one schema checks both. */
 const newStudyForm = z.preprocess(

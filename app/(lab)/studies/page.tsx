@@ -23,6 +23,7 @@ export default async function StudiesPage() {
     analyte: s.analyteCode,
     analyteName: names.get(s.analyteCode) ?? "",
     title: s.title,
+    kind: s.kind,
     status: s.status,
     donorResults: s.donorResultCount,
     uploads: s.committedUploadCount,

@@ -3,6 +3,7 @@ import { notFound } from "next/navigation";
 import { z } from "zod";
 import { CloseStudyButton } from "@/components/studies/close-study-button";
 import { DonorResultsSection } from "@/components/studies/donor-results-section";
+import { AgeCurveSections } from "@/components/studies/sections/age-curve-sections";
 import { DraftSection } from "@/components/studies/sections/draft-section";
 import { EstimatesSection } from "@/components/studies/sections/estimates-section";
 import { PartitionsSection } from "@/components/studies/sections/partitions-section";
@@ -29,7 +30,8 @@ async function loadStudy(id: string) {
 }
 
 /**
- * One study, in the order of the work: donor results, screening, partitions, estimates, draft.
+ * One study, in the order of the work: donor results, screening, partitions, estimates, draft;
+ * for an age-curve study donor results, the LMS curves and the draft.
  * Every section stays on the page (no tabs), each with its anchor.
  */
 export default async function StudyPage({ params }: { params: Promise<{ id: string }> }) {
@@ -48,6 +50,7 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
     id: detail.id,
     title: detail.title,
     status: detail.status,
+    kind: detail.kind,
     method: detail.method,
     specimen: detail.specimen,
     criteria: detail.criteria,
@@ -81,10 +84,16 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
       />
       <div className="space-y-5">
         <DonorResultsSection study={study} analyte={analyte} uploads={uploads} />
-        <ScreeningSection study={study} analyte={analyte} />
-        <PartitionsSection study={study} analyte={analyte} />
-        <EstimatesSection study={study} analyte={analyte} />
-        <DraftSection study={study} analyte={analyte} />
+        {study.kind === "age_curve" ? (
+          <AgeCurveSections study={study} analyte={analyte} />
+        ) : (
+          <>
+            <ScreeningSection study={study} analyte={analyte} />
+            <PartitionsSection study={study} analyte={analyte} />
+            <EstimatesSection study={study} analyte={analyte} />
+            <DraftSection study={study} analyte={analyte} />
+          </>
+        )}
       </div>
     </>
   );

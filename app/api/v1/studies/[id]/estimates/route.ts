@@ -1,10 +1,11 @@
 import { db } from "@/db/client";
+import { assertDirectStudy, createLmsEstimate } from "@/db/queries/age-curve-estimates";
 import { createEstimate, listEstimates } from "@/db/queries/estimates";
 import { findStudy } from "@/db/queries/studies";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
 import { actorOf } from "@/lib/auth/session";
-import { createEstimateBody } from "@/lib/studies/estimate-input";
+import { estimateRequestBody } from "@/lib/studies/estimate-input";
 import { studyIdParams } from "@/lib/studies/input";
 
 export const dynamic = "force-dynamic";
@@ -17,12 +18,23 @@ export const GET = apiRoute({ permission: "studies:write", params: studyIdParams
 
 /**
  * Estimates one partition over its donor results without an exclusion in effect: the command
- * line's document (screening "propose") plus id, studyId, partition and createdAt.
+ * line's document (screening "propose") plus id, studyId, partition and createdAt. For an
+ * age-curve study, `{method: "lms", sex?, seed?}` fits the LMS curves instead (the document of
+ * lib/studies/age-curves.ts); each kind of study refuses the other's request with 409.
  */
 export const POST = apiRoute(
-  { permission: "studies:write", params: studyIdParams, body: createEstimateBody },
+  { permission: "studies:write", params: studyIdParams, body: estimateRequestBody },
   async ({ caller, params: { id }, body }) => {
-    const estimate = await createEstimate(db(), { studyId: id, input: body, actor: actorOf(caller) });
+    const actor = actorOf(caller);
+    let estimate: { id: string };
+    if (body.kind === "lms") {
+      estimate = await createLmsEstimate(db(), { studyId: id, input: body.input, actor });
+    } else {
+      const study = await findStudy(db(), { id });
+      if (!study) throw new AppError("not_found", `There is no study with the id ${id}.`);
+      assertDirectStudy(study, "an estimate of limits per partition");
+      estimate = await createEstimate(db(), { studyId: id, input: body.input, actor });
+    }
     return Response.json(estimate, {
       status: 201,
       headers: { location: `/api/v1/studies/${id}/estimates/${estimate.id}`, "cache-control": "no-store" },

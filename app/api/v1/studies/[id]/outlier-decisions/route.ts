@@ -1,4 +1,5 @@
 import { db } from "@/db/client";
+import { requireDirectStudy } from "@/db/queries/age-curve-estimates";
 import { createOutlierDecision, listOutlierDecisions } from "@/db/queries/outlier-decisions";
 import { screenEvidenceOf } from "@/db/queries/screens";
 import { findStudy } from "@/db/queries/studies";
@@ -23,7 +24,7 @@ export const GET = apiRoute(
 export const POST = apiRoute(
   { permission: "studies:write", params: studyIdParams, body: outlierDecisionBody },
   async ({ caller, params: { id }, body }) => {
-    if (!(await findStudy(db(), { id }))) throw new AppError("not_found", `There is no study with the id ${id}.`);
+    await requireDirectStudy(db(), { id, what: "a decision on an outlier proposal" });
     const { rule, evidence } = await screenEvidenceOf(db(), { studyId: id, donorResultId: body.donorResultId, rule: body.rule, partition: body.partition });
     const decision = await createOutlierDecision(db(), {
       studyId: id,

@@ -1,4 +1,5 @@
 import { db } from "@/db/client";
+import { requireDirectStudy } from "@/db/queries/age-curve-estimates";
 import { createPartitionAssessment } from "@/db/queries/partition-assessments";
 import { apiRoute } from "@/lib/api/handler";
 import { actorOf } from "@/lib/auth/session";
@@ -11,6 +12,7 @@ export const dynamic = "force-dynamic";
 export const POST = apiRoute(
   { permission: "studies:write", params: studyIdParams, body: partitionAssessmentBody },
   async ({ caller, params: { id }, body }) => {
+    await requireDirectStudy(db(), { id, what: "a partition assessment by sex or age band" });
     const assessment = await createPartitionAssessment(db(), { studyId: id, input: body, actor: actorOf(caller) });
     return Response.json(assessment, { status: 201, headers: { "cache-control": "no-store" } });
   },

@@ -1,13 +1,14 @@
 import { createHash } from "node:crypto";
 import { db } from "@/db/client";
 import { findAnalyteById, type Analyte } from "@/db/queries/analytes";
-import { findStudy } from "@/db/queries/studies";
+import { findStudy, type Study } from "@/db/queries/studies";
 import { assertStudyTakesFile, createPendingUpload, recordRefusedUpload, type UploadedFile } from "@/db/queries/uploads";
 import type { Actor } from "@/db/queries/audit";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
 import { toProblem } from "@/lib/api/problem";
 import { actorOf } from "@/lib/auth/session";
+import { ageCurveReport, missingDateColumns, missingDateColumnsMessage } from "@/lib/studies/age-curve-rows";
 import { studyIdParams } from "@/lib/studies/input";
 import { readUploadForm, UPLOAD_REQUEST_MAX_BYTES, uploadRefusal, type UploadForm } from "@/lib/studies/upload-form";
 import { convertUnit } from "@/lib/units/ucum";
@@ -17,6 +18,7 @@ export const dynamic = "force-dynamic";
 
 interface CheckedFile {
   studyId: string;
+  kind: Study["kind"];
   analyte: Analyte;
   options: UploadForm;
   bytes: Uint8Array;
@@ -28,7 +30,7 @@ interface CheckedFile {
  * Checks the file against the study's analyte and keeps it pending; answers the upload as the
  * JSON body says. A file refused whole is on the audit trail and answered 413/415/422.
  */
-async function checkAndKeep({ studyId, analyte, options, bytes, info, actor }: CheckedFile, onProgress?: (p: UploadProgress) => void) {
+async function checkAndKeep({ studyId, kind, analyte, options, bytes, info, actor }: CheckedFile, onProgress?: (p: UploadProgress) => void) {
   let report;
   try {
     report = await checkUpload(bytes, {
@@ -43,6 +45,15 @@ async function checkAndKeep({ studyId, analyte, options, bytes, info, actor }: C
     if (!(err instanceof UploadError)) throw err;
     await recordRefusedUpload(db(), { studyId, file: info, reason: err.message, actor });
     throw uploadRefusal(err);
+  }
+  if (kind === "age_curve") {
+    const missing = missingDateColumns(report);
+    if (missing.length > 0) {
+      const reason = missingDateColumnsMessage(missing);
+      await recordRefusedUpload(db(), { studyId, file: info, reason, actor });
+      throw new AppError("invalid", reason, { uploadError: "exact_ages_required", missing });
+    }
+    report = ageCurveReport(report);
   }
   const upload = await createPendingUpload(db(), { studyId, file: info, report, actor });
   return {
@@ -107,7 +118,7 @@ export const POST = apiRoute(
     const bytes = new Uint8Array(await options.file.arrayBuffer());
     const info = { name: options.file.name || "upload", sha256: createHash("sha256").update(bytes).digest("hex"), sizeBytes: bytes.byteLength };
     await assertStudyTakesFile(db(), { study, file: info });
-    const file: CheckedFile = { studyId: id, analyte, options, bytes, info, actor: actorOf(caller) };
+    const file: CheckedFile = { studyId: id, kind: study.kind, analyte, options, bytes, info, actor: actorOf(caller) };
 
     if (wantsProgress(request)) return progressStream(file, new URL(request.url).pathname);
     const upload = await checkAndKeep(file);

@@ -1,4 +1,5 @@
 import { db } from "@/db/client";
+import { isLmsEstimate } from "@/db/queries/age-curve-estimates";
 import { findStudy } from "@/db/queries/studies";
 import { estimateValues } from "@/db/queries/study-charts";
 import { AppError } from "@/lib/api/errors";
@@ -16,6 +17,9 @@ export const dynamic = "force-dynamic";
 export const GET = apiRoute({ permission: "donors:read", params: estimateIdParams }, async ({ params: { id, estimateId } }) => {
   if (!(await findStudy(db(), { id }))) throw new AppError("not_found", `There is no study with the id ${id}.`);
   const { estimate, measured, censored } = await estimateValues(db(), { studyId: id, estimateId });
+  if (isLmsEstimate(estimate)) {
+    throw new AppError("conflict", `The estimate ${estimateId} holds LMS age curves, not limits: its chart and diagnostics are at …/estimates/${estimateId}/age-curves.`);
+  }
   const parametric = (estimate.document.parametric ?? {}) as { transform?: Scale["transform"]; lambda?: number | null };
   const scale: Scale = { transform: parametric.transform ?? "none", lambda: parametric.lambda ?? null };
   return { estimateId, partition: partitionOut(estimate), n: measured.length, censored, scale, ...estimateCharts(measured, scale) };
