@@ -92,6 +92,17 @@ export function covers(p: PartitionScope, sex: string, ageDays: number): boolean
   return true;
 }
 
+/**
+ * Whether a donor belongs to a partition. For LMS age curves the donor's exact age in years must
+ * lie within the curves' (as scoring decides); an upload's exact age counts birthdays passed, so
+ * it can sit a day away from days/365.25 at the curves' ends.
+ */
+function coversDonor(p: ComparedPartition, d: ComparedDonor): boolean {
+  const curves = lmsModelOf(p.model);
+  if (!curves || d.ageYears === undefined) return covers(p, d.sex, d.ageDays);
+  return (p.sex === null || p.sex === d.sex) && d.ageYears >= curves.ageMin && d.ageYears <= curves.ageMax;
+}
+
 /** L, N or H of a value against inclusive limits (no critical limits here). */
 export function simpleFlag(value: number, limits: LimitsPair): SimpleFlag {
   return flagValue(value, { low: limits.low, high: limits.high }) as SimpleFlag;
@@ -133,14 +144,14 @@ export function compareVersions({
   const tallies = next.map(() => ({ total: 0, changed: 0, transitions: new Map<string, FlagTransition>() }));
   let notCovered = 0;
   for (const d of donors) {
-    const i = next.findIndex((p) => covers(p, d.sex, d.ageDays));
+    const i = next.findIndex((p) => coversDonor(p, d));
     const newLimits = i < 0 ? null : limitsForDonor(next[i], d);
     if (newLimits === null) {
       notCovered++;
       continue;
     }
     const to = simpleFlag(d.value, newLimits);
-    const oldPartition = current ? old.find((o) => covers(o, d.sex, d.ageDays)) : undefined;
+    const oldPartition = current ? old.find((o) => coversDonor(o, d)) : undefined;
     const oldLimits = oldPartition ? limitsForDonor(oldPartition, d) : null;
     const from = oldLimits ? simpleFlag(d.value, oldLimits) : null;
     const tally = tallies[i];
