@@ -414,7 +414,16 @@ function checkAnswers(label: string, samples: readonly Sample[], allowed: readon
   check(hung === 0, `${label}: no request hung (none waited ${HANG_MS / 1000} s)`, `${label}: ${hung} requests had no answer after ${HANG_MS / 1000} s`);
   check(noAnswer === 0, `${label}: every request got an HTTP answer`, `${label}: ${noAnswer} requests got no HTTP answer (connection refused or reset)`);
   check(e500.length === 0, `${label}: no 500`, `${label}: ${e500.length} answers were 5xx other than 503, e.g. ${e500[0]?.status} ${e500[0]?.body?.slice(0, 200)}`);
-  check(unexpected.length === 0, `${label}: only ${allowed.join("/")} answers`, `${label}: ${unexpected.length} answers outside ${allowed.join("/")}, e.g. ${unexpected[0]?.status} ${unexpected[0]?.body?.slice(0, 200)}`);
+  check(unexpected.length === 0, `${label}: only ${allowed.join("/")} answers`, `${label}: ${unexpected.length} answers outside ${allowed.join("/")}, e.g. ${unexpected[0]?.status} ${unexpected[0]?.body?.slice(0, 300)}`);
+  if (unexpected.length) {
+    const t0 = Math.min(...samples.map((s) => s.sentAt));
+    for (const target of new Set(unexpected.map((s) => s.target))) {
+      const mine = unexpected.filter((s) => s.target === target);
+      figure(
+        `    on ${target}: ${mine.length} sent from ${fmt((mine[0].sentAt - t0) / 1000, 2)} s to ${fmt((mine[mine.length - 1].sentAt - t0) / 1000, 2)} s into the load; Retry-After ${[...new Set(mine.map((s) => s.retryAfter))].join(", ")}`,
+      );
+    }
+  }
   check(stacks.length === 0, `${label}: no error body carries a stack trace`, `${label}: ${stacks.length} error bodies carry a stack trace`);
   check(notProblem.length === 0, `${label}: every error is application/problem+json`, `${label}: ${notProblem.length} errors are not problem+json (e.g. ${notProblem[0]?.contentType})`);
   check(no503RetryAfter.length === 0, `${label}: every 503/429 says Retry-After`, `${label}: ${no503RetryAfter.length} 503/429 answers lack Retry-After`);
@@ -540,13 +549,17 @@ async function scenarioOutage(connectionId: string, cookies: Cookies): Promise<v
     const marks = `${stoppedAt + t * 1000 < startedAt && stoppedAt + (t + 1) * 1000 > stoppedAt ? " (database down)" : ""}`;
     figure(`  t ${t >= 0 ? "+" : ""}${t} s: ${fmt(bucket.length)} sent; p50 ${fmt(quantile(ms, 0.5))} ms, max ${fmt(Math.max(...ms))} ms; ${formatCounts(statusCounts(bucket))}${marks}`);
   }
-  const slowProbes = [...sessions, ...catalogue].filter((p) => p.ms > 1_000);
-  for (const p of slowProbes) figure(`  slow probe: sent at t ${fmt((p.at - stoppedAt) / 1000, 1)} s, ${p.status} after ${fmt(p.ms)} ms`);
+  figure("signed-in GET /api/v1/me around the outage (sent at t, answered after):");
+  const near = sessions.filter((p) => p.at > stoppedAt - 2_000 && p.at < startedAt + 3_000);
+  for (let i = 0; i < near.length; i += 6) {
+    figure(`    ${near.slice(i, i + 6).map((p) => `t ${fmt((p.at - stoppedAt) / 1000, 1)} s: ${p.status || "none"} in ${fmt(p.ms)} ms`).join("; ")}`);
+  }
   const during = run.samples.filter((s) => s.sentAt >= stoppedAt && s.sentAt < startedAt);
   figure(`scores sent while PostgreSQL was down: ${fmt(during.length)}; answers ${formatCounts(statusCounts(during))}`);
   checkAnswers("scores", run.samples, [200, 503]);
   const firstSessionOk = sessions.find((p) => p.at >= startedAt && p.status === 200);
-  const awaySessions = sessions.filter((p) => p.at >= stoppedAt + 200 && p.at < startedAt);
+  // Sent and answered while PostgreSQL was down (a request sent before it stopped may have had its data).
+  const awaySessions = sessions.filter((p) => p.at >= stoppedAt && p.at + p.ms < startedAt);
   figure(`signed-in GET /api/v1/me every 200 ms: ${formatCounts(new Map(Object.entries(countBy(sessions.map((p) => String(p.status))))))}; while down ${formatCounts(new Map(Object.entries(countBy(awaySessions.map((p) => String(p.status))))))}, slowest ${fmt(Math.max(0, ...awaySessions.map((p) => p.ms)))} ms`);
   figure(`LIS GET /api/v1/analytes every 200 ms: ${formatCounts(new Map(Object.entries(countBy(catalogue.map((p) => String(p.status))))))}`);
   for (const [label, probes] of [
