@@ -832,8 +832,13 @@ async function scenarioKill(cookies: Cookies): Promise<void> {
       `after the kill: ${which}; state ${o.newState}, signatures ${o.signatures}, audit ${o.signedEvents}/${o.supersededEvents}, messages ${o.messages}`,
     );
     const res = await fetch(`${urlA}/api/v1/analytes/${code}/intervals`, { headers: { authorization: `Bearer ${lisKey}` } });
-    const served = res.ok ? ((await res.json()) as { version?: { id?: string } }).version?.id : null;
-    check(served === o.inForce[0], "after the restart the app serves the version in force", `after the restart the app serves ${served} while ${o.inForce[0]} is in force`);
+    const body = await res.text();
+    const served = res.ok ? (JSON.parse(body) as { version?: { id?: string } }).version?.id : null;
+    check(
+      served === o.inForce[0],
+      "after the restart the app serves the version in force",
+      `after the restart GET /api/v1/analytes/${code}/intervals answered ${res.status}${res.ok ? ` with version ${served} while ${o.inForce[0]} is in force` : `: ${body.slice(0, 240)}`}`,
+    );
   }
   await checkNoDuplicates();
 }
