@@ -111,6 +111,8 @@ function figure(line: string): void {
 
 /** A stack trace or a source location in an answer: what an error body must never carry. */
 const STACK = /\n\s+at |\bat [^\s]+ \(|\.(?:js|ts|tsx):\d+:\d+/;
+/** The same in an HTML page, whose text may say "at 09:30 (UTC)": only a stack frame's shape. */
+const PAGE_STACK = /\n\s+at \S+ \(|\.(?:js|ts|tsx):\d+:\d+\)/;
 
 // ---------------------------------------------------------------------------------------------
 // The app processes and their logs
@@ -492,6 +494,7 @@ async function scenarioOutage(connectionId: string, cookies: Cookies): Promise<v
   const probesStop = new AbortController();
   const sessionProbe = probeLoop(probesStop.signal, () => fetch(`${urlA}/api/v1/me`, { headers: { cookie: cookies.director }, signal: AbortSignal.timeout(HANG_MS) }), 200);
   const catalogueProbe = probeLoop(probesStop.signal, () => fetch(`${urlA}/api/v1/analytes`, { headers: { authorization: `Bearer ${lisKey}` }, signal: AbortSignal.timeout(HANG_MS) }), 200);
+  const pageProbe = probeLoop(probesStop.signal, () => fetch(`${urlA}/`, { headers: { cookie: cookies.director }, redirect: "manual", signal: AbortSignal.timeout(HANG_MS) }), 500);
 
   let stoppedAt = 0;
   let startedAt = 0;
@@ -538,6 +541,7 @@ async function scenarioOutage(connectionId: string, cookies: Cookies): Promise<v
   probesStop.abort();
   const sessions = await sessionProbe;
   const catalogue = await catalogueProbe;
+  const pages = await pageProbe;
 
   loadFigures("scores", run);
   if (!stoppedAt) {
@@ -565,6 +569,11 @@ async function scenarioOutage(connectionId: string, cookies: Cookies): Promise<v
   const awaySessions = sessions.filter((p) => p.at >= stoppedAt && p.at + p.ms < startedAt);
   figure(`signed-in GET /api/v1/me every 200 ms: ${formatCounts(new Map(Object.entries(countBy(sessions.map((p) => String(p.status))))))}; while down ${formatCounts(new Map(Object.entries(countBy(awaySessions.map((p) => String(p.status))))))}, slowest ${fmt(Math.max(0, ...awaySessions.map((p) => p.ms)))} ms`);
   figure(`LIS GET /api/v1/analytes every 200 ms: ${formatCounts(new Map(Object.entries(countBy(catalogue.map((p) => String(p.status))))))}`);
+  const awayPages = pages.filter((p) => p.at >= stoppedAt && p.at + p.ms < startedAt);
+  figure(
+    `the director's overview page (GET /) every 500 ms: ${formatCounts(new Map(Object.entries(countBy(pages.map((p) => String(p.status))))))}; while down ${formatCounts(new Map(Object.entries(countBy(awayPages.map((p) => String(p.status))))))}`,
+  );
+  check(pages.every((p) => p.status !== 0 && !PAGE_STACK.test(p.body)), "the overview page always answered, without a stack trace", "the overview page hung or showed a stack trace");
   for (const [label, probes] of [
     ["signed-in GET /api/v1/me", sessions],
     ["LIS GET /api/v1/analytes", catalogue],
