@@ -23,7 +23,9 @@
  * (`npm run bench:resilience` found this after a restart). For an instance without a heartbeat
  * only its admitted count is taken. A refusal says to retry at the window's end only when what
  * was truly admitted fills the limit; when claims fill it, at the next sync, where the others
- * give back what they do not use.
+ * give back what they do not use. And while admissions leave room, every instance may admit at
+ * least the small part above per sync even when claims fill the limit (see `floorOf`): claims
+ * held by an instance that wrongly thinks it is alone then refuse nobody.
  */
 
 export const WINDOW_MS = 60_000;
@@ -120,11 +122,11 @@ export class RateLimiter {
     this.rollTo(windowOf(now));
     this.limits.set(connectionId, limit);
     const local = this.local.get(connectionId) ?? 0;
-    const claimed = local + (this.others.get(connectionId) ?? 0);
-    if (claimed >= limit) return this.refusal(connectionId, limit, local, now);
+    const admittedElsewhere = this.othersAdmitted.get(connectionId) ?? 0;
+    if (local + admittedElsewhere >= limit) return this.refusal(connectionId, limit, local, now);
     let budget = this.budgets.get(connectionId);
     if (!budget) {
-      budget = { left: this.shareOf(limit, claimed) };
+      budget = { left: this.floorOf(limit, this.liveInstances, local, admittedElsewhere) };
       this.budgets.set(connectionId, budget);
     }
     if (budget.left <= 0) return this.refusal(connectionId, limit, local, now);
@@ -146,14 +148,16 @@ export class RateLimiter {
   }
 
   /**
-   * The budget of a connection this instance has not planned for at a sync in this window (its
-   * first request here, or the window just turned): nobody else knows of it until the next sync,
-   * so it is kept to a small part of the limit (`lazyFraction` ÷ live instances, at least one
-   * request), which bounds what instances together can overshoot by.
+   * What an instance may always admit until its next sync while what was truly admitted leaves
+   * room: a small part of the limit (`lazyFraction` ÷ live instances, at least one request), even
+   * when the others' claims fill it. It is the whole budget of a connection not yet planned at a
+   * sync in this window (its first request here, or the window just turned), and the least of a
+   * planned one: so a claim that holds unused budget (an instance that thinks it is alone because
+   * the other's heartbeat came late, as on a starved machine; one just started) delays nobody,
+   * at the cost of an overshoot bounded by that fraction of the limit.
    */
-  private shareOf(limit: number, used: number): number {
-    const share = Math.floor(Math.max(0, limit - used) / this.liveInstances);
-    return Math.min(share, Math.max(1, Math.floor((limit * this.lazyFraction) / this.liveInstances)));
+  private floorOf(limit: number, liveInstances: number, local: number, admittedElsewhere: number): number {
+    return Math.min(Math.max(1, Math.floor((limit * this.lazyFraction) / liveInstances)), Math.max(0, limit - local - admittedElsewhere));
   }
 
   private rollTo(windowStart: number): void {
@@ -189,7 +193,10 @@ export class RateLimiter {
     for (const [connectionId, limit] of this.limits) {
       const local = this.local.get(connectionId) ?? 0;
       const unclaimed = limit - local - (view.others.get(connectionId) ?? 0);
-      const budget = Math.floor(Math.max(0, unclaimed) / liveInstances);
+      const budget = Math.max(
+        Math.floor(Math.max(0, unclaimed) / liveInstances),
+        this.floorOf(limit, liveInstances, local, view.othersAdmitted.get(connectionId) ?? 0),
+      );
       planned.set(connectionId, { budget, localAtPlan: local });
       claims.push({ connectionId, count: local + budget, admitted: local });
     }
