@@ -8,12 +8,19 @@ export type Database = NodePgDatabase<typeof schema> & { $client: Pool };
 /** A database handle or an open transaction: queries accept either. */
 export type Executor = NodePgDatabase<typeof schema> | Parameters<Parameters<Database["transaction"]>[0]>[0];
 
+/** Longest wait for a connection of the pool (a new one, or a free one when all are in use). */
+export const CONNECT_TIMEOUT_MS = 10_000;
+
 // One pool per process, kept across hot reloads in development.
 const globalForDb = globalThis as unknown as { bellwetherPool?: Pool; bellwetherDb?: Database };
 
 export function db(): Database {
   if (!globalForDb.bellwetherDb) {
-    const pool = new Pool({ connectionString: env().DATABASE_URL, max: 10 });
+    // A request must never wait without end: a database that does not answer a connection (a
+    // network that drops packets rather than refusing) or a pool whose connections are all held
+    // ends the wait after CONNECT_TIMEOUT_MS with an error answered 503 with Retry-After
+    // (lib/api/unavailable.ts). TCP keep-alive finds a connection whose peer vanished silently.
+    const pool = new Pool({ connectionString: env().DATABASE_URL, max: 10, connectionTimeoutMillis: CONNECT_TIMEOUT_MS, keepAlive: true });
     // An idle connection that the database drops (a restart, an outage) is an 'error' event on the
     // pool; unhandled it would end the process, which must instead go on answering what it can
     // from memory (scores from cached models) and 503 for the rest. The pool discards the client.

@@ -64,7 +64,8 @@ function scheduleReconnect(s: ListenerState): void {
 function connect(s: ListenerState): Promise<void> {
   if (s.connecting || s.connected || s.stopped) return s.connecting ?? Promise.resolve();
   s.connecting = (async () => {
-    const client = new Client({ connectionString: env().DATABASE_URL, keepAlive: true });
+    // Bounded: a connect that never answers would otherwise hold `connecting`, and every reload, for good.
+    const client = new Client({ connectionString: env().DATABASE_URL, keepAlive: true, connectionTimeoutMillis: 10_000 });
     const lost = () => {
       if (s.client !== client) return;
       s.client = null;

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { sql } from "drizzle-orm";
 import type { Database } from "../client";
 import { analytes, intervalPartitions, intervalVersions } from "../schema";
 
@@ -52,64 +52,43 @@ export interface InForceSnapshot {
 /**
  * What scoring needs of the catalogue, read in one snapshot: every analyte (or the one named by
  * `analyteId`), its version in force if any, and that version's partitions with their stored
- * scoring models. Read-only and repeatable-read, so an analyte and its version are seen as one
- * committed state. The model cache (lib/scores/model-cache.ts) calls it on first use, on every
- * (re)connection of the listener and for an analyte whose change was notified.
+ * scoring models. One statement (its three parts as JSON), so an analyte and its version are seen
+ * as one committed state in a single round trip: under load, when every round trip waits for a
+ * turn of a busy event loop, the five of a read-only transaction (BEGIN, three queries, COMMIT)
+ * made a notified change reach scoring seconds late (`npm run bench:resilience`, two instances).
+ * The model cache (lib/scores/model-cache.ts) calls it on first use, on every (re)connection of
+ * the listener and for an analyte whose change was notified.
  */
 export async function loadInForceSnapshot(database: Database, { analyteId }: { analyteId?: string } = {}): Promise<InForceSnapshot> {
-  return database.transaction(
-    async (tx) => {
-      const analyteRows = await tx
-        .select({
-          id: analytes.id,
-          code: analytes.code,
-          name: analytes.name,
-          loinc: analytes.loinc,
-          unit: analytes.unit,
-          decimals: analytes.decimals,
-          molarMass: analytes.molarMass,
-        })
-        .from(analytes)
-        .where(analyteId ? eq(analytes.id, analyteId) : undefined);
-      if (analyteRows.length === 0) return { analytes: [], versions: [], partitions: [] };
-      const versionRows = await tx
-        .select({
-          id: intervalVersions.id,
-          analyteId: intervalVersions.analyteId,
-          number: intervalVersions.number,
-          unit: intervalVersions.unit,
-          decimals: intervalVersions.decimals,
-          criticalLow: intervalVersions.criticalLow,
-          criticalHigh: intervalVersions.criticalHigh,
-          effectiveFrom: intervalVersions.effectiveFrom,
-          reviewBy: intervalVersions.reviewBy,
-        })
-        .from(intervalVersions)
-        .where(and(eq(intervalVersions.state, "in_force"), analyteId ? eq(intervalVersions.analyteId, analyteId) : undefined));
-      if (versionRows.length === 0) return { analytes: analyteRows, versions: [], partitions: [] };
-      const partitionRows = await tx
-        .select({
-          id: intervalPartitions.id,
-          versionId: intervalPartitions.versionId,
-          position: intervalPartitions.position,
-          sex: intervalPartitions.sex,
-          ageFromDays: intervalPartitions.ageFromDays,
-          ageToDays: intervalPartitions.ageToDays,
-          low: intervalPartitions.low,
-          high: intervalPartitions.high,
-          lowCiLower: intervalPartitions.lowCiLower,
-          lowCiUpper: intervalPartitions.lowCiUpper,
-          highCiLower: intervalPartitions.highCiLower,
-          highCiUpper: intervalPartitions.highCiUpper,
-          method: intervalPartitions.method,
-          n: intervalPartitions.n,
-          model: intervalPartitions.model,
-        })
-        .from(intervalPartitions)
-        .where(inArray(intervalPartitions.versionId, versionRows.map((v) => v.id)))
-        .orderBy(asc(intervalPartitions.versionId), asc(intervalPartitions.position));
-      return { analytes: analyteRows, versions: versionRows, partitions: partitionRows };
-    },
-    { isolationLevel: "repeatable read", accessMode: "read only" },
-  );
+  const onlyAnalyte = analyteId ? sql`AND a.id = ${analyteId}` : sql``;
+  const result = await database.execute<{ analytes: RawAnalyte[]; versions: RawVersion[]; partitions: RawPartition[] }>(sql`
+    WITH a AS (
+      SELECT a.id, a.code, a.name, a.loinc, a.unit, a.decimals, a.molar_mass FROM ${analytes} a WHERE true ${onlyAnalyte}
+    ), v AS (
+      SELECT v.id, v.analyte_id, v.number, v.unit, v.decimals, v.critical_low, v.critical_high, v.effective_from, v.review_by
+        FROM ${intervalVersions} v JOIN a ON a.id = v.analyte_id WHERE v.state = 'in_force'
+    )
+    SELECT
+      (SELECT coalesce(json_agg(json_build_object('id', a.id, 'code', a.code, 'name', a.name, 'loinc', a.loinc, 'unit', a.unit,
+              'decimals', a.decimals, 'molarMass', a.molar_mass)), '[]') FROM a) AS analytes,
+      (SELECT coalesce(json_agg(json_build_object('id', v.id, 'analyteId', v.analyte_id, 'number', v.number, 'unit', v.unit,
+              'decimals', v.decimals, 'criticalLow', v.critical_low, 'criticalHigh', v.critical_high,
+              'effectiveFrom', v.effective_from, 'reviewBy', v.review_by)), '[]') FROM v) AS versions,
+      (SELECT coalesce(json_agg(json_build_object('id', p.id, 'versionId', p.version_id, 'position', p.position, 'sex', p.sex,
+              'ageFromDays', p.age_from_days, 'ageToDays', p.age_to_days, 'low', p.low, 'high', p.high,
+              'lowCiLower', p.low_ci_lower, 'lowCiUpper', p.low_ci_upper, 'highCiLower', p.high_ci_lower,
+              'highCiUpper', p.high_ci_upper, 'method', p.method, 'n', p.n, 'model', p.model) ORDER BY p.version_id, p.position), '[]')
+         FROM ${intervalPartitions} p JOIN v ON v.id = p.version_id) AS partitions`);
+  const row = result.rows[0];
+  const date = (value: string | null) => (value === null ? null : new Date(value));
+  return {
+    analytes: row.analytes,
+    versions: row.versions.map((v) => ({ ...v, effectiveFrom: date(v.effectiveFrom), reviewBy: date(v.reviewBy) })),
+    partitions: row.partitions,
+  };
 }
+
+type RawAnalyte = InForceAnalyteRow;
+/** A version as JSON gives it: times as ISO strings. */
+type RawVersion = Omit<InForceVersionRow, "effectiveFrom" | "reviewBy"> & { effectiveFrom: string | null; reviewBy: string | null };
+type RawPartition = InForcePartitionRow;

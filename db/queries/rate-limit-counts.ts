@@ -9,9 +9,18 @@ import { rateLimitCounts } from "../schema";
  */
 export const HEARTBEAT_CONNECTION_ID = "00000000-0000-0000-0000-000000000000";
 
+/**
+ * What an instance has truly admitted of a connection is kept in a row of its own beside the
+ * claim, under its instance id with this suffix (the table has one count per row).
+ */
+export const ADMITTED_SUFFIX = "#admitted";
+
 export interface InstanceCount {
   connectionId: string;
+  /** The claim: admitted so far plus what may be admitted before the next sync. */
   count: number;
+  /** Admitted so far. */
+  admitted: number;
 }
 
 /**
@@ -24,12 +33,13 @@ export async function recordRateLimitCounts(
   executor: Executor,
   { instanceId, windowStart, counts }: { instanceId: string; windowStart: Date; counts: readonly InstanceCount[] },
 ): Promise<void> {
-  const rows = [{ connectionId: HEARTBEAT_CONNECTION_ID, count: 0 }, ...counts].map((c) => ({
-    connectionId: c.connectionId,
-    windowStart,
-    instanceId,
-    count: c.count,
-  }));
+  const rows = [
+    { connectionId: HEARTBEAT_CONNECTION_ID, windowStart, instanceId, count: 0 },
+    ...counts.flatMap((c) => [
+      { connectionId: c.connectionId, windowStart, instanceId, count: c.count },
+      { connectionId: c.connectionId, windowStart, instanceId: `${instanceId}${ADMITTED_SUFFIX}`, count: c.admitted },
+    ]),
+  ];
   await executor
     .insert(rateLimitCounts)
     .values(rows)
@@ -40,30 +50,48 @@ export async function recordRateLimitCounts(
 }
 
 /**
- * What the other instances claimed in a window, summed per connection, and how many instances
- * (this one included) wrote a row within the last `liveSeconds` by the database's clock.
+ * What the other instances hold in a window, per connection: `others` sums the claims of those
+ * alive (a heartbeat within the last `liveSeconds` by the database's clock) and what the stopped
+ * ones had admitted, `othersAdmitted` what all of them had admitted; and how many instances, this
+ * one included, are alive. A stopped instance plans no more, so its claim's unused part would
+ * otherwise hold the limit back until the window ends.
  */
 export async function readRateLimitWindow(
   executor: Executor,
   { instanceId, windowStart, liveSeconds }: { instanceId: string; windowStart: Date; liveSeconds: number },
-): Promise<{ others: Map<string, number>; liveInstances: number }> {
-  const result = await executor.execute<{ connection_id: string | null; total: number }>(sql`
-    SELECT connection_id::text AS connection_id, sum(count)::int AS total
-      FROM ${rateLimitCounts}
-     WHERE window_start = ${windowStart} AND instance_id <> ${instanceId}
-       AND connection_id <> ${HEARTBEAT_CONNECTION_ID}
-     GROUP BY connection_id
+): Promise<{ others: Map<string, number>; othersAdmitted: Map<string, number>; liveInstances: number }> {
+  const admittedId = `${instanceId}${ADMITTED_SUFFIX}`;
+  const suffixPattern = `%${ADMITTED_SUFFIX}`;
+  const result = await executor.execute<{ connection_id: string | null; claimed: number; admitted: number | null }>(sql`
+    WITH live AS (
+      SELECT DISTINCT instance_id FROM ${rateLimitCounts}
+       WHERE connection_id = ${HEARTBEAT_CONNECTION_ID} AND updated_at >= now() - make_interval(secs => ${liveSeconds})
+         AND instance_id <> ${instanceId}
+    ), rows AS (
+      SELECT connection_id, count, instance_id LIKE ${suffixPattern} AS is_admitted,
+             CASE WHEN instance_id LIKE ${suffixPattern} THEN left(instance_id, ${sql.raw(String(-ADMITTED_SUFFIX.length))}) ELSE instance_id END AS instance
+        FROM ${rateLimitCounts}
+       WHERE window_start = ${windowStart} AND connection_id <> ${HEARTBEAT_CONNECTION_ID}
+         AND instance_id <> ${instanceId} AND instance_id <> ${admittedId}
+    )
+    SELECT connection_id::text AS connection_id,
+           (coalesce(sum(count) FILTER (WHERE NOT is_admitted AND instance IN (SELECT instance_id FROM live)), 0)
+            + coalesce(sum(count) FILTER (WHERE is_admitted AND instance NOT IN (SELECT instance_id FROM live)), 0))::int AS claimed,
+           coalesce(sum(count) FILTER (WHERE is_admitted), 0)::int AS admitted
+      FROM rows GROUP BY connection_id
     UNION ALL
-    SELECT NULL, count(DISTINCT instance_id)::int
-      FROM ${rateLimitCounts}
-     WHERE updated_at >= now() - make_interval(secs => ${liveSeconds}) AND instance_id <> ${instanceId}`);
+    SELECT NULL, (SELECT count(*) FROM live)::int, NULL`);
   const others = new Map<string, number>();
+  const othersAdmitted = new Map<string, number>();
   let liveOthers = 0;
   for (const row of result.rows) {
-    if (row.connection_id === null) liveOthers = Number(row.total);
-    else others.set(row.connection_id, Number(row.total));
+    if (row.connection_id === null) liveOthers = Number(row.claimed);
+    else {
+      others.set(row.connection_id, Number(row.claimed));
+      othersAdmitted.set(row.connection_id, Number(row.admitted));
+    }
   }
-  return { others, liveInstances: liveOthers + 1 };
+  return { others, othersAdmitted, liveInstances: liveOthers + 1 };
 }
 
 /** Removes the rows of windows that ended long ago. */

@@ -15,13 +15,29 @@
  * first seconds of a window) gets only a small budget (5% of the limit ÷ live instances, at least
  * one request), so all instances together overshoot by at most about 5% (for limits under about
  * 20 requests a minute per instance, the "at least one" may weigh more).
+ *
+ * Beside its claim each instance writes what it has truly admitted. A claim holds back for the
+ * others only while its instance is alive: an instance that stopped (killed, restarted, scaled
+ * down) no longer plans, so its claim would hold its unused budget, up to the whole limit, until
+ * the window ends, and every instance would refuse the connection for the rest of the minute
+ * (`npm run bench:resilience` found this after a restart). For an instance without a heartbeat
+ * only its admitted count is taken. A refusal says to retry at the window's end only when what
+ * was truly admitted fills the limit; when claims fill it, at the next sync, where the others
+ * give back what they do not use. And while admissions leave room, every instance may admit at
+ * least the small part above per sync even when claims fill the limit (see `floorOf`): claims
+ * held by an instance that wrongly thinks it is alone then refuse nobody.
  */
 
 export const WINDOW_MS = 60_000;
 
 export interface RateLimitView {
-  /** The other instances' claims in the window, summed per connection. */
+  /**
+   * The other instances' claims in the window, summed per connection: a live instance's claim, a
+   * stopped instance's admitted count.
+   */
   others: Map<string, number>;
+  /** What the other instances have truly admitted in the window (as of their last sync). */
+  othersAdmitted: Map<string, number>;
   /** Instances alive now, this one included. */
   liveInstances: number;
 }
@@ -29,8 +45,11 @@ export interface RateLimitView {
 export interface RateLimitStore {
   /** What the other instances claimed in the window, and how many instances are alive. */
   read(input: { instanceId: string; windowStart: Date }): Promise<RateLimitView>;
-  /** Writes this instance's claims in the window (absolute, not increments) and its heartbeat. */
-  write(input: { instanceId: string; windowStart: Date; claims: { connectionId: string; count: number }[] }): Promise<void>;
+  /**
+   * Writes this instance's claims in the window (absolute, not increments), what it has admitted
+   * of each, and its heartbeat.
+   */
+  write(input: { instanceId: string; windowStart: Date; claims: { connectionId: string; count: number; admitted: number }[] }): Promise<void>;
   /** Removes the rows of windows that started before `before`. */
   deleteBefore(before: Date): Promise<void>;
 }
@@ -78,6 +97,8 @@ export class RateLimiter {
   private local = new Map<string, number>();
   /** The other instances' claims at the last sync. */
   private others = new Map<string, number>();
+  /** What the other instances had admitted at the last sync. */
+  private othersAdmitted = new Map<string, number>();
   private limits = new Map<string, number>();
   private budgets = new Map<string, Budget>();
   private liveInstances = 1;
@@ -101,33 +122,42 @@ export class RateLimiter {
     this.rollTo(windowOf(now));
     this.limits.set(connectionId, limit);
     const local = this.local.get(connectionId) ?? 0;
-    const used = local + (this.others.get(connectionId) ?? 0);
-    if (used >= limit) return { admitted: false, limit, retryAfterSeconds: Math.max(1, Math.ceil((this.windowStart + WINDOW_MS - now) / 1000)) };
+    const admittedElsewhere = this.othersAdmitted.get(connectionId) ?? 0;
+    if (local + admittedElsewhere >= limit) return this.refusal(connectionId, limit, local, now);
     let budget = this.budgets.get(connectionId);
     if (!budget) {
-      budget = { left: this.shareOf(limit, used) };
+      budget = { left: this.floorOf(limit, this.liveInstances, local, admittedElsewhere) };
       this.budgets.set(connectionId, budget);
     }
-    if (budget.left <= 0) {
-      // This instance's share is spent; what others claimed but leave unused comes back at the next sync.
-      const untilSync = Math.ceil(this.syncIntervalMs / 1000);
-      const untilWindowEnd = Math.ceil((this.windowStart + WINDOW_MS - now) / 1000);
-      return { admitted: false, limit, retryAfterSeconds: Math.max(1, Math.min(untilSync, untilWindowEnd)) };
-    }
+    if (budget.left <= 0) return this.refusal(connectionId, limit, local, now);
     budget.left--;
     this.local.set(connectionId, local + 1);
     return { admitted: true };
   }
 
   /**
-   * The budget of a connection this instance has not planned for at a sync in this window (its
-   * first request here, or the window just turned): nobody else knows of it until the next sync,
-   * so it is kept to a small part of the limit (`lazyFraction` ÷ live instances, at least one
-   * request), which bounds what instances together can overshoot by.
+   * A refusal with its Retry-After: the window's end when what was truly admitted fills the limit;
+   * otherwise the next sync, where this instance's share is planned again from what the others
+   * claimed but leave unused.
    */
-  private shareOf(limit: number, used: number): number {
-    const share = Math.floor(Math.max(0, limit - used) / this.liveInstances);
-    return Math.min(share, Math.max(1, Math.floor((limit * this.lazyFraction) / this.liveInstances)));
+  private refusal(connectionId: string, limit: number, local: number, now: number): RateDecision {
+    const untilWindowEnd = Math.max(1, Math.ceil((this.windowStart + WINDOW_MS - now) / 1000));
+    if (local + (this.othersAdmitted.get(connectionId) ?? 0) >= limit) return { admitted: false, limit, retryAfterSeconds: untilWindowEnd };
+    const untilSync = Math.ceil(this.syncIntervalMs / 1000);
+    return { admitted: false, limit, retryAfterSeconds: Math.max(1, Math.min(untilSync, untilWindowEnd)) };
+  }
+
+  /**
+   * What an instance may always admit until its next sync while what was truly admitted leaves
+   * room: a small part of the limit (`lazyFraction` ÷ live instances, at least one request), even
+   * when the others' claims fill it. It is the whole budget of a connection not yet planned at a
+   * sync in this window (its first request here, or the window just turned), and the least of a
+   * planned one: so a claim that holds unused budget (an instance that thinks it is alone because
+   * the other's heartbeat came late, as on a starved machine; one just started) delays nobody,
+   * at the cost of an overshoot bounded by that fraction of the limit.
+   */
+  private floorOf(limit: number, liveInstances: number, local: number, admittedElsewhere: number): number {
+    return Math.min(Math.max(1, Math.floor((limit * this.lazyFraction) / liveInstances)), Math.max(0, limit - local - admittedElsewhere));
   }
 
   private rollTo(windowStart: number): void {
@@ -135,6 +165,7 @@ export class RateLimiter {
     this.windowStart = windowStart;
     this.local = new Map();
     this.others = new Map();
+    this.othersAdmitted = new Map();
     this.budgets = new Map();
   }
 
@@ -158,17 +189,21 @@ export class RateLimiter {
     if (this.windowStart !== windowStart) return;
     const liveInstances = Math.max(1, view.liveInstances);
     const planned = new Map<string, { budget: number; localAtPlan: number }>();
-    const claims: { connectionId: string; count: number }[] = [];
+    const claims: { connectionId: string; count: number; admitted: number }[] = [];
     for (const [connectionId, limit] of this.limits) {
       const local = this.local.get(connectionId) ?? 0;
       const unclaimed = limit - local - (view.others.get(connectionId) ?? 0);
-      const budget = Math.floor(Math.max(0, unclaimed) / liveInstances);
+      const budget = Math.max(
+        Math.floor(Math.max(0, unclaimed) / liveInstances),
+        this.floorOf(limit, liveInstances, local, view.othersAdmitted.get(connectionId) ?? 0),
+      );
       planned.set(connectionId, { budget, localAtPlan: local });
-      claims.push({ connectionId, count: local + budget });
+      claims.push({ connectionId, count: local + budget, admitted: local });
     }
     await this.store.write({ instanceId: this.instanceId, windowStart: new Date(windowStart), claims });
     if (this.windowStart !== windowStart) return;
     this.others = view.others;
+    this.othersAdmitted = view.othersAdmitted;
     this.liveInstances = liveInstances;
     this.budgets = new Map();
     for (const [connectionId, { budget, localAtPlan }] of planned) {

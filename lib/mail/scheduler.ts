@@ -3,6 +3,7 @@ import type { Database } from "@/db/client";
 import { deliverDueMessages, type Clock } from "./delivery";
 import { queueReviewDueMessages } from "./review-due";
 import type { MailSender } from "./sender";
+import { isDatabaseUnreachable } from "@/lib/api/unavailable";
 
 export interface MailJobs {
   /** One pass: delivery, and the review-due job when the day changed since its last run. */
@@ -36,6 +37,7 @@ export function startMailJobs({
   const stopping = new AbortController();
   let lastReviewDay: string | null = null;
   let running: Promise<void> | null = null;
+  let databaseAway = false;
 
   const pass = async () => {
     const today = clock().toISOString().slice(0, 10);
@@ -51,8 +53,13 @@ export function startMailJobs({
     if (sender && !stopping.signal.aborted) {
       try {
         await deliverDueMessages({ database, sender, from, clock, signal: stopping.signal });
+        if (databaseAway) log("bellwether: the database is back; mail delivery goes on");
+        databaseAway = false;
       } catch (err) {
-        log(`bellwether: mail delivery failed (tried again on the next pass): ${err instanceof Error ? err.message : String(err)}`);
+        // An outage fails every pass: said once, not once a pass (BELLWETHER_MAIL_INTERVAL_SECONDS).
+        if (!isDatabaseUnreachable(err)) log(`bellwether: mail delivery failed (tried again on the next pass): ${err instanceof Error ? err.message : String(err)}`);
+        else if (!databaseAway) log(`bellwether: the database cannot be reached; mail stays queued until it returns (${err instanceof Error ? err.message : String(err)})`);
+        databaseAway = databaseAway || isDatabaseUnreachable(err);
       }
     }
   };

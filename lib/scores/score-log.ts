@@ -149,14 +149,20 @@ function sliceColumns(c: Columns, from: number): Columns {
   };
 }
 
-/** Puts entries that could not be written back before the newer ones, within the bound. */
+/**
+ * Puts entries that could not be written back before the newer ones, within the bound. A loop, not
+ * `push(...newer)`: entries made during a slow failing write can number hundreds of thousands,
+ * beyond what a spread call's arguments may hold (a RangeError that would lose both sets).
+ */
 function putBack(s: LogState, rest: Columns): void {
   const newer = s.buf;
   const room = SCORE_LOG_MAX_BUFFERED - rest.at.length;
   const keep = Math.max(0, Math.min(newer.at.length, room));
   s.dropped += newer.at.length - keep;
   for (const k of Object.keys(rest) as (keyof Columns)[]) {
-    (rest[k] as unknown[]).push(...(newer[k] as unknown[]).slice(0, keep));
+    const to = rest[k] as unknown[];
+    const from = newer[k] as unknown[];
+    for (let i = 0; i < keep; i++) to.push(from[i]);
   }
   s.buf = rest;
 }

@@ -52,8 +52,11 @@ describe("the rate limit shared through rate_limit_counts", () => {
       connectionId,
       new Date(windowStart),
     ]);
-    expect(rows.map((r) => r.instance_id).sort()).toEqual([a.instanceId, b.instanceId].sort());
-    const claimed = rows.reduce((sum, r) => sum + r.count, 0);
+    // Each instance's claim, and beside it (suffix "#admitted") what it truly admitted.
+    expect(rows.map((r) => r.instance_id).sort()).toEqual([a.instanceId, `${a.instanceId}#admitted`, b.instanceId, `${b.instanceId}#admitted`].sort());
+    const countOf = (id: string) => rows.find((r) => r.instance_id === id)!.count;
+    expect(countOf(`${a.instanceId}#admitted`) + countOf(`${b.instanceId}#admitted`)).toBe(admitted);
+    const claimed = countOf(a.instanceId) + countOf(b.instanceId);
     expect(claimed).toBeGreaterThanOrEqual(admitted);
     expect(claimed).toBeLessThanOrEqual(limit * 1.1);
     await pool.query("DELETE FROM rate_limit_counts WHERE connection_id = $1", [connectionId]);

@@ -5,11 +5,12 @@ import { afterAll, describe, expect, it, vi } from "vitest";
  * refuses as an unreachable PostgreSQL does (ECONNREFUSED) or takes the lines, so that the
  * keep-while-away, the bound and the order of what is written can be checked exactly.
  */
-const copy = vi.hoisted(() => ({ down: false, lines: [] as string[] }));
+const copy = vi.hoisted(() => ({ down: false, lines: [] as string[], gate: null as Promise<void> | null }));
 
 vi.mock("@/db/client", () => ({ db: () => ({}) }));
 vi.mock("@/db/queries/score-log", () => ({
   copyScoreLogLines: async (_db: unknown, { chunks }: { chunks: Iterable<string> }) => {
+    if (copy.gate) await copy.gate;
     if (copy.down) throw Object.assign(new Error("connect ECONNREFUSED 127.0.0.1:5432"), { code: "ECONNREFUSED" });
     let n = 0;
     for (const chunk of chunks) {
@@ -68,5 +69,30 @@ describe("the score log buffer", () => {
     // The oldest first, and the newest that the bound turned away are the ones missing.
     expect(copy.lines[0].split("\t")[4]).toBe("0");
     expect(copy.lines[SCORE_LOG_MAX_BUFFERED - 1].split("\t")[4]).toBe(String(SCORE_LOG_MAX_BUFFERED - 1));
+  });
+
+  it("keeps every entry made while a write that fails is in flight, however many (no spread-argument overflow)", async () => {
+    copy.lines = [];
+    copy.down = true;
+    const warn = vi.spyOn(console, "error").mockImplementation(() => undefined);
+    const log = scoreLogWriter({ principal, channel: "api", scoredAt: new Date("2026-03-02T08:15:00Z") });
+    for (let i = 0; i < 1_000; i++) log(KEY, i, null, "N", 0, 50);
+    let open!: () => void;
+    copy.gate = new Promise((resolve) => (open = resolve));
+    const flushing = flushScoreLog({ all: true });
+    // 300,000 scores while the COPY waits on a database that then refuses: far more than a
+    // function call's arguments may number, well within SCORE_LOG_MAX_BUFFERED.
+    for (let i = 1_000; i < 301_000; i++) log(KEY, i, null, "N", 0, 50);
+    open();
+    copy.gate = null;
+    await expect(flushing).resolves.toBeUndefined();
+    expect(scoreLogStatus().buffered).toBe(301_000);
+    copy.down = false;
+    await flushScoreLog({ all: true });
+    warn.mockRestore();
+    expect(scoreLogStatus().buffered).toBe(0);
+    expect(copy.lines).toHaveLength(301_000);
+    expect(copy.lines[0].split("\t")[4]).toBe("0");
+    expect(copy.lines[300_999].split("\t")[4]).toBe("300999");
   });
 });
