@@ -916,17 +916,17 @@ describe("a director never signs off, returns, reviews or withdraws a version th
     const v = await draftAs(director.cookie);
     await asJson(await move(people.scientist.cookie, v.id, "submit"), 200);
     const before = await allCounts();
-    await refused(await signAs(director, v.id), `You drafted version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
-    await refused(await move(director.cookie, v.id, "return", { comment: "x" }), `You drafted version ${v.number} of ${CODE}: another director must return it ${RULE}.`, before);
+    await refused(await signAs(director, v.id), `You drafted and last revised version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
+    await refused(await move(director.cookie, v.id, "return", { comment: "x" }), `You drafted and last revised version ${v.number} of ${CODE}: another director must return it ${RULE}.`, before);
     expect((await asJson(await signAs(people.signer, v.id), 200)).state).toBe("in_force");
     await refused(
       await move(director.cookie, v.id, "withdraw", { password: PASSWORD, email: director.email, reason: "x" }),
-      `You drafted version ${v.number} of ${CODE}: another director must withdraw it ${RULE}.`,
+      `You drafted and last revised version ${v.number} of ${CODE}: another director must withdraw it ${RULE}.`,
       await allCounts(),
     );
     await refused(
       await move(director.cookie, v.id, "review", { password: PASSWORD, email: director.email, comment: "x" }),
-      `You drafted version ${v.number} of ${CODE}: another director must review it ${RULE}.`,
+      `You drafted and last revised version ${v.number} of ${CODE}: another director must review it ${RULE}.`,
       await allCounts(),
     );
   });
