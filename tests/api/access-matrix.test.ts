@@ -11,12 +11,13 @@
  * score log is flushed once a second) cannot land inside a refusal's before/after window.
  */
 import { randomBytes } from "node:crypto";
+import ExcelJS from "exceljs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { SYSTEM_ACTOR } from "@/db/queries/audit";
 import { createUser, setUserActive } from "@/db/queries/users";
 import type { Role } from "@/db/schema";
 import { testDatabase } from "../support/database";
-import { builtServerActions, routeHandlerKeys, serverActionKeys } from "../support/entry-points";
+import { builtServerActions, pagePaths, routeHandlerKeys, serverActionKeys } from "../support/entry-points";
 import { BASE_URL, signInOverHttp } from "../support/http-session";
 import { createLisConnectionOverHttp } from "../support/lis";
 import { callServerAction, type ActionAnswer } from "../support/server-actions";
@@ -178,6 +179,12 @@ function audienceOf(principal: Principal): Audience | null {
 // ---------------------------------------------------------------------------------------------
 // Row counts of every table (listed from information_schema, so a new table is counted too)
 // ---------------------------------------------------------------------------------------------
+/**
+ * Written by a background job whatever the requests: the rate limiter's sync writes a heartbeat
+ * row per app instance and one-minute window every few hundred milliseconds (lib/lis/rate-limit.ts).
+ * A refused request never reaches the limiter (resolvePrincipal refuses first).
+ */
+const BACKGROUND_TABLES = new Set(["public.rate_limit_counts"]);
 let countQuery = "";
 async function allCounts(): Promise<Record<string, number>> {
   if (!countQuery) {
@@ -195,7 +202,7 @@ async function allCounts(): Promise<Record<string, number>> {
       .join(" UNION ALL ");
   }
   const rows = (await pool.query(countQuery)).rows as { t: string; n: number }[];
-  return Object.fromEntries(rows.map((r) => [r.t, r.n]));
+  return Object.fromEntries(rows.filter((r) => !BACKGROUND_TABLES.has(r.t)).map((r) => [r.t, r.n]));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -645,10 +652,76 @@ const ACTIONS: Record<string, ActionRow> = {
   },
 };
 
+
+// ---------------------------------------------------------------------------------------------
+// The pages' rows (they are read through the same checks: requirePageCaller on the server)
+// ---------------------------------------------------------------------------------------------
+interface PageRow {
+  allowed: readonly Audience[] | "sign-in" | "change-password";
+  path: () => string;
+}
+
+const PAGES: Record<string, PageRow> = {
+  "/": { allowed: PEOPLE, path: () => "/" },
+  "/account": { allowed: PEOPLE, path: () => "/account" },
+  "/api-docs": { allowed: PEOPLE, path: () => "/api-docs" },
+  "/score": { allowed: PEOPLE, path: () => "/score" },
+  "/analytes": { allowed: PEOPLE, path: () => "/analytes" },
+  "/intervals": { allowed: PEOPLE, path: () => "/intervals" },
+  "/intervals/[code]": { allowed: PEOPLE, path: () => `/intervals/${CODE}` },
+  "/studies": { allowed: WORK, path: () => "/studies" },
+  "/studies/[id]": { allowed: WORK, path: () => `/studies/${studyId}` },
+  "/adoption-checks": { allowed: WORK, path: () => "/adoption-checks" },
+  "/adoption-checks/[id]": { allowed: WORK, path: () => `/adoption-checks/${baseCheckId}` },
+  "/versions/[id]": { allowed: WORK, path: () => `/versions/${baseVersionId}` },
+  "/versions/[id]/record": { allowed: DOSSIER, path: () => `/versions/${baseVersionId}/record` },
+  "/signoff": { allowed: SIGN, path: () => "/signoff" },
+  "/audit": { allowed: ["admin", "director"], path: () => "/audit" },
+  "/admin/users": { allowed: MANAGE, path: () => "/admin/users" },
+  "/admin/lis-connections": { allowed: MANAGE, path: () => "/admin/lis-connections" },
+  "/admin/outbox": { allowed: MANAGE, path: () => "/admin/outbox" },
+  "/sign-in": { allowed: "sign-in", path: () => "/sign-in" },
+  "/change-password": { allowed: "change-password", path: () => "/change-password" },
+};
+
+/** What a page answers a principal: its status and, for a redirect, where to (the path only). */
+function expectedPage(row: PageRow, principal: Principal): { status: number; to: string | null } {
+  const audience = audienceOf(principal);
+  const signedIn = cookieOf(principal) !== null;
+  const active = signedIn && principal !== "deactivated user" && principal !== "old session after password change";
+  if (row.allowed === "sign-in") return active ? { status: 307, to: "/" } : { status: 200, to: null };
+  if (!signedIn) return { status: 307, to: "/sign-in" };
+  if (!active) return { status: 307, to: "/sign-in" };
+  if (row.allowed === "change-password") return audience === "password pending" ? { status: 200, to: null } : { status: 307, to: "/account" };
+  if (audience === "password pending") return { status: 307, to: "/change-password" };
+  return row.allowed.includes(audience!) ? { status: 200, to: null } : { status: 403, to: null };
+}
+
+async function visit(principal: Principal, pagePath: string): Promise<{ status: number; to: string | null; text: string }> {
+  const headers: Record<string, string> = {};
+  const cookie = cookieOf(principal);
+  if (cookie) headers.cookie = cookie;
+  const key = keyOf(principal);
+  if (key) headers.authorization = `Bearer ${key}`;
+  const res = await fetch(`${BASE_URL}${pagePath}`, { headers, redirect: "manual" });
+  const location = res.headers.get("location");
+  return { status: res.status, to: location === null ? null : new URL(location, BASE_URL).pathname, text: await res.text() };
+}
+
+/** A run of five consecutive reference values of an empirical model in force, as JSON writes them. */
+function referenceRuns(): string[] {
+  return referenceArrays.flatMap((values) => {
+    const runs: string[] = [];
+    for (let i = 0; i + 5 <= values.length; i += Math.max(1, Math.floor(values.length / 20))) runs.push(values.slice(i, i + 5).join(","));
+    return runs;
+  });
+}
+
 // ---------------------------------------------------------------------------------------------
 // Donor-level data in an answer
 // ---------------------------------------------------------------------------------------------
 let referenceValues = new Set<number>();
+let referenceArrays: number[][] = [];
 
 /** Reference values of every empirical scoring model in force: the donor values a model keeps on the server. */
 async function loadReferenceValues(): Promise<void> {
@@ -658,7 +731,8 @@ async function loadReferenceValues(): Promise<void> {
         WHERE v.state = 'in_force' AND p.model->>'kind' = 'empirical'`,
     )
   ).rows as { v: number[] | null }[];
-  referenceValues = new Set(rows.flatMap((r) => r.v ?? []));
+  referenceArrays = rows.map((r) => r.v ?? []);
+  referenceValues = new Set(referenceArrays.flat());
   expect(referenceValues.size).toBeGreaterThan(0);
 }
 
@@ -688,6 +762,22 @@ function donorLeaks(text: string): string[] {
   };
   walk(doc, "$");
   return leaks;
+}
+
+/** The sheets of a workbook, the audit trail's aside, with a cell naming a donor of the matrix study. */
+async function sheetsNamingDonors(bytes: Buffer): Promise<string[]> {
+  const workbook = new ExcelJS.Workbook();
+  await workbook.xlsx.load(bytes as unknown as ArrayBuffer);
+  const found: string[] = [];
+  workbook.eachSheet((sheet) => {
+    if (sheet.name === "Audit events") return;
+    sheet.eachRow((r) =>
+      r.eachCell((cell) => {
+        if (String(cell.text ?? "").includes(DONOR_PREFIX) && !found.includes(sheet.name)) found.push(sheet.name);
+      }),
+    );
+  });
+  return found;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -750,6 +840,10 @@ describe("every entry point has a row", () => {
 
   it("lists every exported function of every \"use server\" file in the matrix, and nothing else", () => {
     expect(Object.keys(ACTIONS).sort()).toEqual(serverActionKeys());
+  });
+
+  it("lists every page of app/**/page.tsx in the matrix, and nothing else", () => {
+    expect(Object.keys(PAGES).sort()).toEqual(pagePaths());
   });
 
   it("lists every server action of the production build (inline ones included) in the matrix", () => {
@@ -850,6 +944,21 @@ describe("server actions: every refused cell is refused exactly, and changes not
   }
 });
 
+describe("pages: every refused visit is sent away or refused, and changes nothing", () => {
+  for (const [key, row] of Object.entries(PAGES)) {
+    it(key, async () => {
+      for (const principal of PRINCIPALS) {
+        const expected = expectedPage(row, principal);
+        if (expected.status === 200) continue;
+        const before = await allCounts();
+        const { status, to } = await visit(principal, row.path());
+        expect({ principal, status, to }).toEqual({ principal, ...expected });
+        expect({ principal, counts: await allCounts() }).toEqual({ principal, counts: before });
+      }
+    });
+  }
+});
+
 describe("route handlers: every allowed cell succeeds with the handler's own status", () => {
   for (const [key, row] of Object.entries(ROUTES)) {
     it(key, async () => {
@@ -857,11 +966,17 @@ describe("route handlers: every allowed cell succeeds with the handler's own sta
         if (row.allowed !== "public" && !allowedFor(row, principal)) continue;
         const req = await row.build(audienceOf(principal));
         const res = await send(principal, req);
-        const text = await res.text();
+        const bytes = Buffer.from(await res.arrayBuffer());
+        const text = bytes.toString("utf8");
         expect({ principal, status: res.status }, text.slice(0, 300)).toEqual({ principal, status: row.ok });
         // The public rows carry no data (the OpenAPI document names donor fields, describing routes).
         if (row.allowed !== "public" && (principal === "clinician" || principal === "valid LIS key")) {
           expect({ principal, leaks: donorLeaks(text) }).toEqual({ principal, leaks: [] });
+        }
+        // The admin may read a version's dossier but not donor-level data: no sheet but the
+        // audit trail (which the admin reads by DESIGN.md's table) names a donor.
+        if (principal === "admin" && res.headers.get("content-type")?.includes("spreadsheetml")) {
+          expect({ principal, sheetsNamingDonors: await sheetsNamingDonors(bytes) }).toEqual({ principal, sheetsNamingDonors: [] });
         }
       }
     });
@@ -881,6 +996,22 @@ describe("server actions: every allowed cell succeeds", () => {
           expect({ principal, answer }).toMatchObject({ principal, answer: { kind: "state", state: { status: "ok" } } });
         }
         if (principal === "clinician" && answer.kind === "state") expect(donorLeaks(JSON.stringify(answer.state))).toEqual([]);
+      }
+    });
+  }
+});
+
+describe("pages: every allowed visit is served, and a clinician's pages carry no donor-level data", () => {
+  for (const [key, row] of Object.entries(PAGES)) {
+    it(key, async () => {
+      for (const principal of PRINCIPALS) {
+        if (expectedPage(row, principal).status !== 200) continue;
+        const { status, text } = await visit(principal, row.path());
+        expect({ principal, status }).toEqual({ principal, status: 200 });
+        if (principal === "clinician" || (principal === "admin" && key === "/versions/[id]/record")) {
+          expect({ principal, namesDonor: text.includes(DONOR_PREFIX) }).toEqual({ principal, namesDonor: false });
+          expect(referenceRuns().filter((run) => text.includes(run))).toEqual([]);
+        }
       }
     });
   }
@@ -907,34 +1038,42 @@ describe("a director never signs off, returns, reviews or withdraws a version th
   const move = (cookie: string, id: string, what: string, json?: unknown) => as(cookie, "POST", `/api/v1/interval-versions/${id}/${what}`, json);
   const signAs = (person: Person, id: string) => move(person.cookie, id, "sign", { password: PASSWORD, email: person.email, meaning: "approved_for_clinical_use" });
 
+  // What a move may write (these run after the matrix's successes, whose deferred score-log
+  // writes may still land, so the count is of the sign-off's own tables).
+  const MOVE_TABLES = ["interval_versions", "interval_partitions", "signatures", "audit_events", "outbox", "signing_failures"];
+  const moveCounts = async () =>
+    Object.fromEntries(
+      await Promise.all(MOVE_TABLES.map(async (t) => [t, (await pool.query(`SELECT count(*)::int AS n FROM ${t}`)).rows[0].n as number] as const)),
+    );
+
   async function refused(res: Response, detail: string, before: Record<string, number>) {
     expect(await answerOf(res, false)).toEqual({ status: 403, detail });
-    expect(await allCounts()).toEqual(before);
+    expect(await moveCounts()).toEqual(before);
   }
 
   it("refuses the director who drafted it, and lets another director sign", async () => {
     const v = await draftAs(director.cookie);
     await asJson(await move(people.scientist.cookie, v.id, "submit"), 200);
-    const before = await allCounts();
+    const before = await moveCounts();
     await refused(await signAs(director, v.id), `You drafted and last revised version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
     await refused(await move(director.cookie, v.id, "return", { comment: "x" }), `You drafted and last revised version ${v.number} of ${CODE}: another director must return it ${RULE}.`, before);
     expect((await asJson(await signAs(people.signer, v.id), 200)).state).toBe("in_force");
     await refused(
       await move(director.cookie, v.id, "withdraw", { password: PASSWORD, email: director.email, reason: "x" }),
       `You drafted and last revised version ${v.number} of ${CODE}: another director must withdraw it ${RULE}.`,
-      await allCounts(),
+      await moveCounts(),
     );
     await refused(
       await move(director.cookie, v.id, "review", { password: PASSWORD, email: director.email, comment: "x" }),
       `You drafted and last revised version ${v.number} of ${CODE}: another director must review it ${RULE}.`,
-      await allCounts(),
+      await moveCounts(),
     );
   });
 
   it("refuses the director who submitted it", async () => {
     const v = await draftAs(people.scientist.cookie);
     await asJson(await move(director.cookie, v.id, "submit"), 200);
-    const before = await allCounts();
+    const before = await moveCounts();
     await refused(await signAs(director, v.id), `You submitted version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
   });
 
@@ -943,7 +1082,7 @@ describe("a director never signs off, returns, reviews or withdraws a version th
     await asJson(await move(director.cookie, v.id, "submit"), 200);
     await asJson(await move(people.signer.cookie, v.id, "return", { comment: "Matrix: add the method's lot." }), 200);
     await asJson(await move(people.scientist.cookie, v.id, "submit"), 200);
-    const before = await allCounts();
+    const before = await moveCounts();
     await refused(await signAs(director, v.id), `You submitted version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
   });
 
@@ -952,7 +1091,7 @@ describe("a director never signs off, returns, reviews or withdraws a version th
     await asJson(await as(director.cookie, "PATCH", `/api/v1/interval-versions/${v.id}`, { note: "Matrix: the director's revision." }), 200);
     await asJson(await as(people.scientist.cookie, "PATCH", `/api/v1/interval-versions/${v.id}`, { note: "Matrix: the scientist's revision." }), 200);
     await asJson(await move(people.scientist.cookie, v.id, "submit"), 200);
-    const before = await allCounts();
+    const before = await moveCounts();
     await refused(await signAs(director, v.id), `You revised version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
     expect((await asJson(await signAs(people.signer, v.id), 200)).state).toBe("in_force");
   });

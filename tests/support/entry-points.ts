@@ -46,6 +46,20 @@ export function routeHandlerKeys(): string[] {
     .sort();
 }
 
+/** The URL path of every page (`app/**\/page.tsx`), route groups left out, dynamic segments as written. */
+export function pagePaths(): string[] {
+  const files = walk(path.join(ROOT, "app"), (f) => /^page\.(tsx|ts|jsx|js)$/.test(path.basename(f)));
+  return files
+    .map((file) => {
+      const segments = path
+        .relative(path.join(ROOT, "app"), path.dirname(file))
+        .split(path.sep)
+        .filter((s) => s !== "" && !(s.startsWith("(") && s.endsWith(")")));
+      return `/${segments.join("/")}`;
+    })
+    .sort();
+}
+
 /** Whether a module's first statement is the "use server" directive (comments before it allowed). */
 function isServerActionFile(source: string): boolean {
   const withoutComments = source.replace(/^\s*(?:\/\/[^\n]*\n|\/\*[\s\S]*?\*\/)*/g, "").trimStart();
