@@ -120,6 +120,16 @@ async function authorshipOf(executor: Executor, version: IntervalVersion, userId
   return words;
 }
 
+/**
+ * What a person did to a version as its author ("drafted", "last revised" or "revised",
+ * "submitted"): the words the duty rule refuses with, for pages that offer only the moves the
+ * server will allow. Empty for an unknown version or a person who never authored it.
+ */
+export async function versionAuthorship(executor: Executor, { versionId, userId }: { versionId: string; userId: string }): Promise<string[]> {
+  const [version] = await executor.select().from(intervalVersions).where(eq(intervalVersions.id, versionId));
+  return version ? authorshipOf(executor, version, userId) : [];
+}
+
 /** Segregation of duties: a director never acts on a version they drafted, revised or submitted (ever, not only last). */
 async function assertDuties(executor: Executor, move: VersionMove, version: IntervalVersion, analyte: Analyte, userId: string): Promise<void> {
   const roles = await authorshipOf(executor, version, userId);
