@@ -1046,6 +1046,15 @@ describe("a director never signs off, returns, reviews or withdraws a version th
       await Promise.all(MOVE_TABLES.map(async (t) => [t, (await pool.query(`SELECT count(*)::int AS n FROM ${t}`)).rows[0].n as number] as const)),
     );
 
+  /** What the version page shows the person: the duty rule's note, and whether the signature panel is there. */
+  async function versionPage(person: Person, id: string): Promise<{ duty: string | null; signPanel: boolean }> {
+    const res = await fetch(`${BASE_URL}/versions/${id}`, { headers: { cookie: person.cookie } });
+    expect(res.status).toBe(200);
+    const html = await res.text();
+    const duty = /data-testid="duty-rule"[^>]*>([^<]*)</.exec(html)?.[1] ?? null;
+    return { duty, signPanel: html.includes('data-testid="signature-panel"') };
+  }
+
   async function refused(res: Response, detail: string, before: Record<string, number>) {
     expect(await answerOf(res, false)).toEqual({ status: 403, detail });
     expect(await moveCounts()).toEqual(before);
@@ -1084,6 +1093,8 @@ describe("a director never signs off, returns, reviews or withdraws a version th
     await asJson(await move(people.scientist.cookie, v.id, "submit"), 200);
     const before = await moveCounts();
     await refused(await signAs(director, v.id), `You submitted version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
+    // The version page says so, and offers no signature.
+    expect(await versionPage(director, v.id)).toEqual({ duty: "You submitted this version: another director must sign it off or return it.", signPanel: false });
   });
 
   it("still refuses the director who revised it after someone else revised it last", async () => {
@@ -1093,6 +1104,8 @@ describe("a director never signs off, returns, reviews or withdraws a version th
     await asJson(await move(people.scientist.cookie, v.id, "submit"), 200);
     const before = await moveCounts();
     await refused(await signAs(director, v.id), `You revised version ${v.number} of ${CODE}: another director must sign it off ${RULE}.`, before);
+    expect(await versionPage(director, v.id)).toEqual({ duty: "You revised this version: another director must sign it off or return it.", signPanel: false });
+    expect(await versionPage(people.signer, v.id)).toEqual({ duty: null, signPanel: true });
     expect((await asJson(await signAs(people.signer, v.id), 200)).state).toBe("in_force");
   });
 });
