@@ -1,76 +1,106 @@
 /**
- * Calls a server action over HTTP as the browser does after hydration: a POST to a page that
- * serves it, with the `Next-Action` header naming the action's id from the production build and
- * the arguments `(previousState, formData)` encoded as React's reply format (the FormData's
- * entries under the prefix "_1_", and field "0" holding the argument list with "$K1" standing for
- * the form). The answer is read from the RSC stream: the action's return value, or the redirect
- * it threw.
+ * Calls a server action of the served build over HTTP as the browser's form would: the action's
+ * id from the build's server-reference manifest, the arguments `(previousState, formData)`
+ * encoded by React's own `encodeReply`, posted to a page that uses the action with `Next-Action`.
  */
-import { BASE_URL } from "./http-session";
+import fs from "node:fs";
+import { createRequire } from "node:module";
+import path from "node:path";
 import { builtServerActions, type BuiltAction } from "./entry-points";
+import { BASE_URL } from "./http-session";
+
+const ROOT = path.resolve(__dirname, "..", "..");
+const requireHere = createRequire(path.join(ROOT, "package.json"));
+const { encodeReply } = requireHere("next/dist/compiled/react-server-dom-webpack/client.edge") as {
+  encodeReply: (value: unknown) => Promise<string | FormData>;
+};
+
+interface ManifestEntry {
+  filename: string;
+  exportedName: string;
+  workers: Record<string, unknown>;
+}
+
+/** The id of `exportedName` of `file` (e.g. "app/(lab)/analytes/actions.ts") in the current build. */
+export function serverActionId(file: string, exportedName: string): string {
+  const manifest = JSON.parse(fs.readFileSync(path.join(ROOT, ".next", "server", "server-reference-manifest.json"), "utf8")) as {
+    node: Record<string, ManifestEntry>;
+  };
+  const found = Object.entries(manifest.node).find(([, e]) => e.filename === file && e.exportedName === exportedName);
+  if (!found) throw new Error(`the build has no server action ${exportedName} in ${file}`);
+  return found[0];
+}
+
+export interface ActionCall {
+  file: string;
+  name: string;
+  /** The page the form is on, e.g. "/analytes". */
+  page: string;
+  fields: Record<string, string>;
+  cookie?: string;
+  headers?: Record<string, string>;
+}
+
+/** Posts the action call; the caller decides which Origin and Sec-Fetch-Site headers go with it. */
+export async function postServerAction(call: ActionCall, send: typeof fetch = fetch): Promise<Response> {
+  const form = new FormData();
+  for (const [key, value] of Object.entries(call.fields)) form.set(key, value);
+  const body = await encodeReply([{ status: "idle" }, form]);
+  const headers: Record<string, string> = { "next-action": serverActionId(call.file, call.name), accept: "text/x-component", ...call.headers };
+  if (call.cookie) headers.cookie = call.cookie;
+  if (typeof body === "string") headers["content-type"] = "text/plain;charset=UTF-8";
+  return send(`${BASE_URL}${call.page}`, { method: "POST", headers, body });
+}
+
+/** The action's returned state, read from the RSC answer (a line `N:{…"status":…}`), or null. */
+export function actionStateOf(text: string): { status: string; message?: string; [k: string]: unknown } | null {
+  for (const line of text.split("\n")) {
+    const match = /^[0-9a-f]+:(\{.*\})$/.exec(line);
+    if (!match) continue;
+    try {
+      const value = JSON.parse(match[1]) as Record<string, unknown>;
+      if (typeof value.status === "string") return value as { status: string; message?: string };
+      if (value.a && typeof (value.a as Record<string, unknown>).status === "string") return value.a as { status: string; message?: string };
+    } catch {
+      // another chunk of the answer
+    }
+  }
+  return null;
+}
 
 export type ActionAnswer =
   | { kind: "state"; status: number; state: { status: string; message?: string; fieldErrors?: Record<string, string>; sessionTicket?: string } }
   | { kind: "redirect"; status: number; location: string }
   | { kind: "other"; status: number; location: string | null; text: string };
 
-let cache: Map<string, BuiltAction> | null = null;
+let built: Map<string, BuiltAction> | null = null;
 
-/** The built action for "file#export" (e.g. "app/(lab)/studies/actions.ts#createStudyAction"). */
+/** The built action for "file#export" (e.g. "app/(lab)/studies/actions.ts#createStudyAction"), with a page that serves it. */
 export function builtAction(key: string): BuiltAction {
-  cache ??= new Map(builtServerActions().map((a) => [a.key, a]));
-  const found = cache.get(key);
+  built ??= new Map(builtServerActions().map((a) => [a.key, a]));
+  const found = built.get(key);
   if (!found) throw new Error(`the production build has no server action ${key}`);
   return found;
 }
 
-/** The rows of an RSC payload: "id:json" lines (ids in hexadecimal). */
-function rowsOf(text: string): Map<string, unknown> {
-  const rows = new Map<string, unknown>();
-  for (const line of text.split("\n")) {
-    const m = /^([0-9a-f]+):(.*)$/.exec(line);
-    if (!m) continue;
-    try {
-      rows.set(m[1], JSON.parse(m[2]));
-    } catch {
-      // Rows that are not JSON (module references, text chunks) carry no action result.
-    }
-  }
-  return rows;
-}
-
+/**
+ * Calls the action "file#export" from its own page, as the app's form does (the app's Origin,
+ * redirects not followed), and reads the answer: the returned state, the redirect the action
+ * threw (`x-action-redirect`), or anything else (e.g. the proxy sending a request without a
+ * session to sign-in before any action runs).
+ */
 export async function callServerAction(
   key: string,
-  fields: Record<string, string | Blob>,
+  fields: Record<string, string>,
   { cookie, headers = {} }: { cookie?: string; headers?: Record<string, string> } = {},
 ): Promise<ActionAnswer> {
-  const action = builtAction(key);
-  const body = new FormData();
-  for (const [name, value] of Object.entries(fields)) body.append(`_1_${name}`, value);
-  body.set("0", JSON.stringify([{ status: "idle" }, "$K1"]));
-  const res = await fetch(`${BASE_URL}${action.pagePath}`, {
-    method: "POST",
-    redirect: "manual",
-    headers: {
-      accept: "text/x-component",
-      "next-action": action.id,
-      origin: BASE_URL,
-      ...(cookie ? { cookie } : {}),
-      ...headers,
-    },
-    body,
-  });
+  const [file, name] = key.split("#");
+  const noRedirects = ((input: string | URL | Request, init?: RequestInit) => fetch(input, { ...init, redirect: "manual" })) as typeof fetch;
+  const res = await postServerAction({ file, name, page: builtAction(key).pagePath, fields, cookie, headers: { origin: new URL(BASE_URL).origin, ...headers } }, noRedirects);
   const actionRedirect = res.headers.get("x-action-redirect");
   const text = await res.text();
   if (actionRedirect) return { kind: "redirect", status: res.status, location: actionRedirect.split(";")[0] };
-  if ((res.headers.get("content-type") ?? "").startsWith("text/x-component")) {
-    const rows = rowsOf(text);
-    const root = rows.get("0") as { a?: unknown } | undefined;
-    let result = root?.a;
-    if (typeof result === "string" && result.startsWith("$@")) result = rows.get(result.slice(2));
-    if (result && typeof result === "object" && "status" in result) {
-      return { kind: "state", status: res.status, state: result as Extract<ActionAnswer, { kind: "state" }>["state"] };
-    }
-  }
+  const state = (res.headers.get("content-type") ?? "").startsWith("text/x-component") ? actionStateOf(text) : null;
+  if (state) return { kind: "state", status: res.status, state };
   return { kind: "other", status: res.status, location: res.headers.get("location"), text: text.slice(0, 500) };
 }
