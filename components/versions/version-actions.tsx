@@ -12,11 +12,11 @@ export interface VersionActionsProps {
   state: "draft" | "awaiting_signoff" | "in_force" | "superseded" | "withdrawn";
   /** A lab user on a draft. */
   canSubmit: boolean;
-  /** A director who neither drafted nor submitted the version, on one awaiting sign-off. */
+  /** A director who never drafted, revised or submitted the version, on one awaiting sign-off. */
   canDecide: boolean;
   /** Why a director may not sign or return this version (segregation of duties), or null. */
   dutyRule: string | null;
-  /** A director, on a version in force. */
+  /** A director who never drafted, revised or submitted the version, on one in force. */
   canKeepOrWithdraw: boolean;
   /** The first signing of this session asks for the e-mail too. */
   emailNeeded: boolean;

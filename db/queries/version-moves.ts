@@ -6,7 +6,7 @@ import { canonicalContentOf } from "@/lib/versions/canonical-content";
 import { refusalOfMove, SIGNATURE_MEANING_LABELS, type SignatureMeaning, type VersionMove } from "@/lib/versions/state-machine";
 import type { Database, Executor } from "../client";
 import { uniqueViolationOf } from "../errors";
-import { analytes, intervalPartitions, intervalVersions, signatures, signingFailures, users, type Analyte, type IntervalVersion } from "../schema";
+import { analytes, auditEvents, intervalPartitions, intervalVersions, signatures, signingFailures, users, type Analyte, type IntervalVersion } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { findIntervalVersion, type VersionOut } from "./interval-versions";
 import { inForceMessage, withdrawnMessage } from "@/lib/versions/lis-messages";
@@ -92,15 +92,48 @@ async function directorNow(executor: Executor, userId: string, { lock }: { lock:
   return user;
 }
 
-const DUTY_WORDS: [keyof IntervalVersion, string][] = [
-  ["createdBy", "drafted"],
-  ["updatedBy", "last revised"],
-  ["submittedBy", "submitted"],
-];
+/** The audit actions that make a person a version's author: drafting, revising, submitting it. */
+const AUTHORING_ACTIONS = ["interval_version.created", "interval_version.updated", "interval_version.submitted"] as const;
 
-/** Segregation of duties: a director never acts on a version they drafted, last revised or submitted. */
-function assertDuties(move: VersionMove, version: IntervalVersion, analyte: Analyte, userId: string): void {
-  const roles = DUTY_WORDS.filter(([column]) => version[column] === userId).map(([, word]) => word);
+/**
+ * What the person did to the version, from its columns and its whole audit history: a return
+ * clears `submitted_by` and a later revision replaces `updated_by`, but whoever submitted or
+ * revised it once stays its author.
+ */
+async function authorshipOf(executor: Executor, version: IntervalVersion, userId: string): Promise<string[]> {
+  const rows = await executor
+    .selectDistinct({ action: auditEvents.action })
+    .from(auditEvents)
+    .where(
+      and(
+        eq(auditEvents.entityType, "interval_version"),
+        eq(auditEvents.entityId, version.id),
+        eq(auditEvents.actorId, userId),
+        inArray(auditEvents.action, [...AUTHORING_ACTIONS]),
+      ),
+    );
+  const did = new Set(rows.map((r) => r.action));
+  const words: string[] = [];
+  if (version.createdBy === userId || did.has("interval_version.created")) words.push("drafted");
+  if (version.updatedBy === userId) words.push("last revised");
+  else if (did.has("interval_version.updated")) words.push("revised");
+  if (version.submittedBy === userId || did.has("interval_version.submitted")) words.push("submitted");
+  return words;
+}
+
+/**
+ * What a person did to a version as its author ("drafted", "last revised" or "revised",
+ * "submitted"): the words the duty rule refuses with, for pages that offer only the moves the
+ * server will allow. Empty for an unknown version or a person who never authored it.
+ */
+export async function versionAuthorship(executor: Executor, { versionId, userId }: { versionId: string; userId: string }): Promise<string[]> {
+  const [version] = await executor.select().from(intervalVersions).where(eq(intervalVersions.id, versionId));
+  return version ? authorshipOf(executor, version, userId) : [];
+}
+
+/** Segregation of duties: a director never acts on a version they drafted, revised or submitted (ever, not only last). */
+async function assertDuties(executor: Executor, move: VersionMove, version: IntervalVersion, analyte: Analyte, userId: string): Promise<void> {
+  const roles = await authorshipOf(executor, version, userId);
   if (roles.length === 0) return;
   const what = { return: "return it", sign: "sign it off", review: "review it", withdraw: "withdraw it", reinstate: "reinstate it", submit: "submit it" }[move];
   throw new AppError(
@@ -249,7 +282,7 @@ async function signingChecks(
   const lock = await lockStateOf(tx, signer.id, { lock: true });
   if (lock?.lockedAt) throw new AppError("forbidden", SIGNING_LOCKED_MESSAGE);
   assertState(move, version, analyte);
-  assertDuties(move, version, analyte, signer.id);
+  await assertDuties(tx, move, version, analyte, signer.id);
   assertUnitMatches(version, analyte);
   return signer;
 }
@@ -277,7 +310,7 @@ async function precheck(database: Database, { move, id, caller }: { move: Versio
   const found = await readVersion(database, id);
   const user = await directorNow(database, caller.id, { lock: false });
   assertState(move, found.version, found.analyte);
-  assertDuties(move, found.version, found.analyte, user.id);
+  await assertDuties(database, move, found.version, found.analyte, user.id);
   return found;
 }
 
@@ -351,7 +384,7 @@ export async function returnIntervalVersion(
     const { version, analyte } = await lockVersion(tx, id);
     const director = await directorNow(tx, caller.id, { lock: true });
     assertState("return", version, analyte);
-    assertDuties("return", version, analyte, director.id);
+    await assertDuties(tx, "return", version, analyte, director.id);
     const recipients = await authorAddresses(tx, version);
     await tx
       .update(intervalVersions)
@@ -492,7 +525,7 @@ export async function withdrawIntervalVersion(
   if (reinstatePrevious) {
     const previous = await previousVersion(database, seen.analyteId);
     if (!previous) throw new AppError("conflict", `There is no superseded version of ${seenAnalyte.code} to reinstate.`);
-    assertDuties("reinstate", previous, seenAnalyte, caller.id);
+    await assertDuties(database, "reinstate", previous, seenAnalyte, caller.id);
   }
   await checkCredentials(database, { caller, credentials, versionId: id, at });
   try {
@@ -502,7 +535,7 @@ export async function withdrawIntervalVersion(
       const lock = await lockStateOf(tx, signer.id, { lock: true });
       if (lock?.lockedAt) throw new AppError("forbidden", SIGNING_LOCKED_MESSAGE);
       assertState("withdraw", version, analyte);
-      assertDuties("withdraw", version, analyte, signer.id);
+      await assertDuties(tx, "withdraw", version, analyte, signer.id);
       const signature = await insertSignature(tx, { version, analyte, signer, meaning: "withdrawn_from_use", comment: reason, sessionId: caller.sessionId, at });
       await tx
         .update(intervalVersions)
@@ -520,7 +553,7 @@ export async function withdrawIntervalVersion(
       if (reinstatePrevious) {
         const previous = await previousVersion(tx, analyte.id, { lock: true });
         if (!previous) throw new AppError("conflict", `There is no superseded version of ${analyte.code} to reinstate.`);
-        assertDuties("reinstate", previous, analyte, signer.id);
+        await assertDuties(tx, "reinstate", previous, analyte, signer.id);
         assertUnitMatches(previous, analyte);
         const again = await insertSignature(tx, { version: previous, analyte, signer, meaning: "approved_for_clinical_use", comment: `Reinstated on the withdrawal of version ${version.number}: ${reason}`, sessionId: caller.sessionId, at });
         const reviewBy = addMonths(at, analyte.reviewMonths);

@@ -6,6 +6,7 @@
 import fs from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
+import { builtServerActions, type BuiltAction } from "./entry-points";
 import { BASE_URL } from "./http-session";
 
 const ROOT = path.resolve(__dirname, "..", "..");
@@ -65,4 +66,41 @@ export function actionStateOf(text: string): { status: string; message?: string;
     }
   }
   return null;
+}
+
+export type ActionAnswer =
+  | { kind: "state"; status: number; state: { status: string; message?: string; fieldErrors?: Record<string, string>; sessionTicket?: string } }
+  | { kind: "redirect"; status: number; location: string }
+  | { kind: "other"; status: number; location: string | null; text: string };
+
+let built: Map<string, BuiltAction> | null = null;
+
+/** The built action for "file#export" (e.g. "app/(lab)/studies/actions.ts#createStudyAction"), with a page that serves it. */
+export function builtAction(key: string): BuiltAction {
+  built ??= new Map(builtServerActions().map((a) => [a.key, a]));
+  const found = built.get(key);
+  if (!found) throw new Error(`the production build has no server action ${key}`);
+  return found;
+}
+
+/**
+ * Calls the action "file#export" from its own page, as the app's form does (the app's Origin,
+ * redirects not followed), and reads the answer: the returned state, the redirect the action
+ * threw (`x-action-redirect`), or anything else (e.g. the proxy sending a request without a
+ * session to sign-in before any action runs).
+ */
+export async function callServerAction(
+  key: string,
+  fields: Record<string, string>,
+  { cookie, headers = {} }: { cookie?: string; headers?: Record<string, string> } = {},
+): Promise<ActionAnswer> {
+  const [file, name] = key.split("#");
+  const noRedirects = ((input: string | URL | Request, init?: RequestInit) => fetch(input, { ...init, redirect: "manual" })) as typeof fetch;
+  const res = await postServerAction({ file, name, page: builtAction(key).pagePath, fields, cookie, headers: { origin: new URL(BASE_URL).origin, ...headers } }, noRedirects);
+  const actionRedirect = res.headers.get("x-action-redirect");
+  const text = await res.text();
+  if (actionRedirect) return { kind: "redirect", status: res.status, location: actionRedirect.split(";")[0] };
+  const state = (res.headers.get("content-type") ?? "").startsWith("text/x-component") ? actionStateOf(text) : null;
+  if (state) return { kind: "state", status: res.status, state };
+  return { kind: "other", status: res.status, location: res.headers.get("location"), text: text.slice(0, 500) };
 }

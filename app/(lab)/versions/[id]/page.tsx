@@ -8,6 +8,7 @@ import { SignatureList } from "@/components/versions/signature-list";
 import { VersionActions } from "@/components/versions/version-actions";
 import { VersionHeader, VersionRecordLinks } from "@/components/versions/version-header";
 import { db } from "@/db/client";
+import { versionAuthorship } from "@/db/queries/version-moves";
 import { hasSignedInSession } from "@/db/queries/version-record";
 import { can } from "@/lib/auth/roles";
 import { currentSession, requirePageCaller } from "@/lib/auth/session";
@@ -24,15 +25,13 @@ export default async function VersionPage({ params }: { params: Promise<{ id: st
   const caller = await requirePageCaller("studies:write");
   const { id } = await params;
   const review = await loadVersionReview(id, { donorLevel: can(caller.role, "donors:read") });
-  const { version, people } = review;
+  const { version } = review;
   const label = `version ${version.number} of ${version.analyte.code}`;
   const director = can(caller.role, "versions:sign");
-  const drafted = version.createdBy?.id === caller.id;
-  const submitted = people.submittedBy?.id === caller.id;
-  const dutyRule =
-    director && (drafted || submitted)
-      ? `You ${drafted && submitted ? "drafted and submitted" : drafted ? "drafted" : "submitted"} this version: another director must sign it off or return it.`
-      : null;
+  // The server's own reading of the duty rule (columns and the version's history), so that the
+  // page offers no move the server would refuse.
+  const authored = director ? await versionAuthorship(db(), { versionId: version.id, userId: caller.id }) : [];
+  const dutyRule = authored.length > 0 ? `You ${authored.join(" and ")} this version: another director must sign it off or return it.` : null;
   const session = await currentSession();
   const emailNeeded = director && session ? !(await hasSignedInSession(db(), { signerId: caller.id, sessionId: session.sessionId })) : true;
   return (
@@ -58,9 +57,9 @@ export default async function VersionPage({ params }: { params: Promise<{ id: st
           label={label}
           state={version.state}
           canSubmit={can(caller.role, "studies:write")}
-          canDecide={director && !drafted && !submitted}
+          canDecide={director && authored.length === 0}
           dutyRule={dutyRule}
-          canKeepOrWithdraw={director}
+          canKeepOrWithdraw={director && authored.length === 0}
           emailNeeded={emailNeeded}
         />
       </div>
