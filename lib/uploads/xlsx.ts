@@ -14,6 +14,7 @@ import { Readable } from "node:stream";
 import ExcelJS from "exceljs";
 import type { Cell } from "./columns";
 import { UploadError } from "./errors";
+import { quoted } from "./values";
 import { workbookInReadingOrder } from "./zip-order";
 
 const NOT_A_WORKBOOK = "the file is a ZIP archive but not a readable Excel workbook (.xlsx)";
@@ -75,7 +76,7 @@ export async function readXlsxRows(file: Uint8Array, sheet: string | undefined, 
       if (sheets.length === 0) continue;
       const wanted = sheet ?? sheets[0];
       if (!sheets.includes(wanted)) {
-        throw new UploadError("unknown_sheet", `the workbook has no sheet "${wanted}"; its sheets are ${sheets.map((s) => `"${s}"`).join(", ")}`, {
+        throw new UploadError("unknown_sheet", `the workbook has no sheet ${quoted(wanted)}; its sheets are ${sheets.map(quoted).join(", ")}`, {
           sheets,
         });
       }
