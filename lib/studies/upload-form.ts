@@ -1,9 +1,15 @@
 import { z } from "zod";
 import { AppError, type ErrorCode } from "@/lib/api/errors";
-import { TEMPLATE_COLUMNS, type ColumnMapping, type UploadError } from "@/lib/uploads";
+import { TEMPLATE_COLUMNS, UPLOAD_TOO_LARGE_MESSAGE, type ColumnMapping, type UploadError } from "@/lib/uploads";
 
 /** The multipart request's size limit: the 20 MB file plus room for the other fields and the boundaries. */
 export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
+
+/**
+ * `apiRoute`'s multipart option for the upload routes: a request too large to hold a 20 MB file
+ * is refused in the words lib/uploads uses for a file over 20 MB.
+ */
+export const UPLOAD_MULTIPART = { maxBytes: UPLOAD_REQUEST_MAX_BYTES, tooLarge: UPLOAD_TOO_LARGE_MESSAGE };
 
 const mappingSchema = z.partialRecord(z.enum(TEMPLATE_COLUMNS), z.string().trim().min(1).max(200));
 

@@ -126,7 +126,7 @@ export function sniffFile(bytes: Uint8Array): SniffedFile {
   if (first) {
     let count = 1;
     while (count <= MAX_STRAY_CONTROLS && control.exec(text)) count++;
-    if (count > MAX_STRAY_CONTROLS || count * 100 > text.length) throw new UploadError("unreadable", NOT_CSV_OR_XLSX);
+    if (count > MAX_STRAY_CONTROLS) throw new UploadError("unreadable", NOT_CSV_OR_XLSX);
     const code = first[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, "0");
     throw new UploadError(
       "malformed",

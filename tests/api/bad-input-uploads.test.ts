@@ -159,7 +159,7 @@ const refused: Record<string, Refused> = {
     name: "donors.xlsx",
     status: 422,
     detail:
-      'no column of the file is mapped to donor_code, sex, value; name the file\'s header for each in the mapping (its headers: "Collected at the invented Harrowmere clinic") (read from the sheet "Notes"; the workbook\'s sheets are "Notes", "Donors", "Empty": name the sheet to read in the sheet field)',
+      'no column of the file is mapped to donor_code, sex, value; name the file\'s header for each in the mapping (its headers: "Collected at the invented Harrowmere cli…" (43 characters)) (read from the sheet "Notes"; the workbook\'s sheets are "Notes", "Donors", "Empty": name the sheet to read in the sheet field)',
     uploadError: "mapping",
     audited: true,
   },
@@ -425,7 +425,7 @@ const accepted: Record<string, Accepted> = {
     format: "csv",
     rows: { total: 3, valid: 0, invalid: 3 },
     problems: [
-      "1/donor_code: donor_code is 5001 characters long; at most 100 are allowed",
+      "1/donor_code: donor_code is 5000 characters long; at most 100 are allowed",
       `2/sex: sex "${"F".repeat(40)}…" (3000 characters) is not F, M, female or male`,
       `3/value: value "${"9".repeat(40)}…" (400 characters) is too large to be a number`,
     ],

@@ -94,6 +94,20 @@ export async function scoreLogReaches(owner: Pool, n: number): Promise<void> {
   throw new Error(`the score log did not reach ${n} rows`);
 }
 
+/**
+ * Waits until the score log's count holds still across two of the app's flushes (one a second),
+ * so that scores of earlier test files do not land in the middle of a comparison.
+ */
+export async function scoreLogSettled(owner: Pool): Promise<void> {
+  let last = -1;
+  for (let i = 0; i < 20; i++) {
+    const [{ count }] = (await owner.query("SELECT count(*)::int AS count FROM score_log")).rows;
+    if (count === last) return;
+    last = count;
+    await new Promise((r) => setTimeout(r, 1500));
+  }
+}
+
 export interface Sent {
   status: number;
   contentType: string | null;
