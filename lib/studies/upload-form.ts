@@ -21,6 +21,9 @@ export const templateQuery = z
   })
   .strict();
 
+/** The longest file name kept with an upload (most file systems allow 255). */
+const MAX_FILE_NAME_LENGTH = 255;
+
 function invalid(path: string, message: string): AppError {
   return new AppError("invalid", `${path}: ${message}`, { errors: [{ path, message }] });
 }
@@ -50,6 +53,9 @@ export interface UploadForm {
 export function readUploadForm(form: FormData): UploadForm {
   const file = form.get("file");
   if (!(file instanceof File)) throw invalid("file", "Attach the file (CSV or XLSX) in the field named file.");
+  if (file.name.length > MAX_FILE_NAME_LENGTH) {
+    throw invalid("file", `The file name is ${file.name.length} characters long; rename the file to at most ${MAX_FILE_NAME_LENGTH} characters.`);
+  }
 
   let mapping: ColumnMapping | undefined;
   const mappingText = form.get("mapping");

@@ -17,8 +17,12 @@ export interface ResolvedColumns {
   index: Record<TemplateColumn, number>;
 }
 
+/** Headers listed in a message; a file with more is summarised ("… and 480 more"). */
+const LISTED_HEADERS = 20;
+
 function list(items: readonly string[]): string {
-  return items.map(quoted).join(", ");
+  const shown = items.slice(0, LISTED_HEADERS).map(quoted).join(", ");
+  return items.length > LISTED_HEADERS ? `${shown} and ${items.length - LISTED_HEADERS} more` : shown;
 }
 
 /**

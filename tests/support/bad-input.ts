@@ -26,6 +26,12 @@ export function manyRowsCsv(rows: number): Buffer {
   return Buffer.from(parts.join(""));
 }
 
+/** A header row of `columns` columns (the template's four, then c5, c6 …) and one data row. */
+export function wideCsv(columns: number): Buffer {
+  const extra = Array.from({ length: columns - 4 }, (_, i) => `c${i + 5}`);
+  return Buffer.from(`donor_code,sex,age_years,value,${extra.join(",")}\nD1,F,30,5.1${",".repeat(columns - 4)}\n`);
+}
+
 /** A valid CSV padded with a long criteria-like column to `bytes` bytes (25 MB: over the 20 MB limit). */
 export function largeCsv(bytes: number): Buffer {
   const header = "donor_code,sex,age_years,value,note\n";
