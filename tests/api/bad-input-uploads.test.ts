@@ -244,6 +244,14 @@ const refused: Record<string, Refused> = {
     detail: "file: the file name: the text holds the character U+0000 (NUL), which cannot be stored; remove it.",
     audited: false,
   },
+  "a ZIP bomb: a workbook of 257 KB that unpacks to 257 MB": {
+    file: "zip-bomb.xlsx",
+    name: "donors.xlsx",
+    status: 413,
+    detail: "the workbook unpacks to more than 256 MB; save the donor results alone in a new workbook or as CSV",
+    uploadError: "too_large",
+    audited: true,
+  },
   "200,001 data rows": {
     file: () => manyRowsCsv(200_001),
     name: "donors.csv",
