@@ -17,6 +17,14 @@ const nextConfig = {
   // The app build checks the app's own code; scripts and tests are checked by `npm run typecheck`.
   typescript: { tsconfigPath: "tsconfig.build.json" },
   serverExternalPackages: ["pg", "bcryptjs", "exceljs", "@lhncbc/ucum-lhc"],
+  // The content security policy has no 'unsafe-eval': nothing in the browser bundle may probe for
+  // eval (a refused probe is still reported as a violation). @stdlib's continued fractions ask at
+  // load whether generators parse, through eval; in the browser the answer is always yes.
+  turbopack: {
+    resolveAlias: {
+      "@stdlib/assert-has-generator-support": { browser: "./lib/browser/has-generator-support.cjs" },
+    },
+  },
   async headers() {
     return [
       { source: "/:path*", headers: common },

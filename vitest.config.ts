@@ -29,6 +29,8 @@ export default defineConfig({
         test: {
           name: "integration",
           include: ["tests/db/**/*.test.ts", "tests/api/**/*.test.ts"],
+          // Requests to the app carry its Origin, as a browser's would (lib/api/origin.ts).
+          setupFiles: ["tests/support/same-origin-fetch.ts"],
           environment: "node",
           fileParallelism: false,
           testTimeout: 30_000,
@@ -40,6 +42,7 @@ export default defineConfig({
         test: {
           name: "e2e",
           include: ["tests/e2e/**/*.test.ts"],
+          setupFiles: ["tests/support/same-origin-fetch.ts"],
           environment: "node",
           fileParallelism: false,
           testTimeout: 60_000,

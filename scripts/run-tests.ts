@@ -172,7 +172,9 @@ async function main(): Promise<number> {
         ...demoLisEnv,
       };
       delete appEnv.BELLWETHER_MIGRATION_URL;
-      app = await serveApp({ port: appPort, env: appEnv, quiet: true });
+      // What the app writes goes to a file that tests read (no secret may appear in it).
+      const appLog = path.join(dataRoot, "app.log");
+      app = await serveApp({ port: appPort, env: appEnv, quiet: true, logFile: appLog });
       step();
       const testEnv: NodeJS.ProcessEnv = {
         ...baseEnv,
@@ -183,6 +185,7 @@ async function main(): Promise<number> {
         CHROMIUM_PATH: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
         BELLWETHER_SCREENSHOT_DIR: path.join(dataRoot, "screenshots"),
         BELLWETHER_TEST_DATA_DIR: dataRoot,
+        BELLWETHER_TEST_APP_LOG: appLog,
         // For the tests that run the start command itself, beside the app under test.
         BELLWETHER_TEST_SPARE_PORT: String(appPort + 10),
         BELLWETHER_TEST_SPARE_PG_PORT: String(pgPort + 10),

@@ -3,8 +3,11 @@ import type { z } from "zod";
 import type { Caller } from "@/lib/auth/authorize";
 import type { Principal } from "@/lib/auth/principal";
 import type { Permission } from "@/lib/auth/roles";
+import { env } from "@/lib/env";
+import { bearerTokenOf } from "@/lib/lis/keys";
 import { readBoundedBody, parseJsonBody, unstorableText, unstorableTextError } from "./body";
 import { AppError } from "./errors";
+import { crossSiteRefusal, originOf, STATE_CHANGING_METHODS } from "./origin";
 import { resolvePrincipal } from "./principal";
 import { problemResponse, toProblem, type Problem } from "./problem";
 
@@ -102,10 +105,23 @@ function queryOf(url: URL): Record<string, string> {
 }
 
 /**
- * The one wrapper for every route handler: resolves the caller (session, or an LIS key where
- * `lisKey` allows it, within its rate limit), checks the permission, parses
- * params, query and body with zod, runs the handler, and answers every error as
- * application/problem+json. A handler returns a Response or a value to be sent as JSON.
+ * Refuses (403) a state-changing request that the session cookie would authenticate when it comes
+ * from another site (lib/api/origin.ts). A request with `Authorization: Bearer …` is decided by
+ * its key alone (the cookie is ignored), so it is not checked.
+ */
+function refuseCrossSiteChange(request: Request): void {
+  if (!STATE_CHANGING_METHODS.has(request.method)) return;
+  if (bearerTokenOf(request.headers.get("authorization")) !== null) return;
+  const refusal = crossSiteRefusal(request.headers, originOf(env().NEXTAUTH_URL));
+  if (refusal !== null) throw new AppError("forbidden", refusal);
+}
+
+/**
+ * The one wrapper for every route handler: refuses cross-site changes made with the session
+ * cookie, resolves the caller (session, or an LIS key where `lisKey` allows it, within its rate
+ * limit), checks the permission, parses params, query and body with zod, runs the handler, and
+ * answers every error as application/problem+json. A handler returns a Response or a value to be
+ * sent as JSON.
  */
 export function apiRoute<
   P extends z.ZodType = z.ZodType<Record<string, never>>,
@@ -119,6 +135,7 @@ export function apiRoute<
   return async (request: Request, context: RouteContext): Promise<Response> => {
     const url = new URL(request.url);
     try {
+      refuseCrossSiteChange(request);
       const { principal, caller, sessionId } = await resolvePrincipal(request, { permission: config.permission, lisKey: config.lisKey });
       const params = config.params ? config.params.parse(await context.params) : {};
       const query = config.query ? config.query.parse(queryOf(url)) : {};

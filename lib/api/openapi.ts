@@ -195,7 +195,8 @@ export function buildOpenApiDocument(): oas31.OpenAPIObject {
           type: "apiKey",
           in: "cookie",
           name: "next-auth.session-token",
-          description: "The session of a person signed in to Bellwether in a browser (named __Secure-next-auth.session-token over HTTPS).",
+          description:
+            "The session of a person signed in to Bellwether in a browser (named __Secure-next-auth.session-token over HTTPS). A POST, PUT, PATCH or DELETE made with it must come from Bellwether's own origin: one whose Origin header names another site, or that has no Origin and is marked Sec-Fetch-Site: cross-site or same-site, is refused with 403.",
         },
         bearerAuth: {
           type: "http",

@@ -10,6 +10,7 @@ import { findUserByEmail, normaliseEmail, recordSignIn } from "@/db/queries/user
 import { clientAddressOf, throttleBucketOf } from "@/lib/api/client-address";
 import { env } from "@/lib/env";
 import { safeRedirectUrl } from "./callback-url";
+import { servedOverHttps, sessionCookies } from "./cookies";
 import { verifyAgainstDecoy, verifyPassword } from "./password";
 import { verifySessionTicket } from "./session-ticket";
 import { THROTTLE_MESSAGES, type ThrottlePolicy } from "./sign-in-throttle";
@@ -73,9 +74,12 @@ async function authorizeCredentials(raw: unknown, headers: Record<string, string
 }
 
 export function authOptions(): NextAuthOptions {
+  const secure = servedOverHttps(env().NEXTAUTH_URL);
   return {
     secret: env().NEXTAUTH_SECRET,
     session: { strategy: "jwt", maxAge: 12 * 60 * 60 },
+    useSecureCookies: secure,
+    cookies: sessionCookies(secure),
     pages: { signIn: "/sign-in" },
     providers: [
       CredentialsProvider({

@@ -157,8 +157,11 @@ export async function buildIfNeeded(signal?: AbortSignal): Promise<void> {
   fs.writeFileSync(stampFile, current);
 }
 
-/** Serves the built app on 127.0.0.1 and resolves once it answers its health check. */
-export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; quiet?: boolean }): Promise<ChildProcess> {
+/**
+ * Serves the built app on 127.0.0.1 and resolves once it answers its health check. With
+ * `logFile` (and `quiet`), everything the server writes to stdout and stderr is appended there too.
+ */
+export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; quiet?: boolean; logFile?: string }): Promise<ChildProcess> {
   // The server checks this too (instrumentation.ts); checking first gives the message at once.
   parseEnv(opts.env);
   // Bellwether's own server around Next (scripts/serve.ts): it resolves each client's address.
@@ -172,6 +175,12 @@ export async function serveApp(opts: { port: number; env: NodeJS.ProcessEnv; qui
   let log = "";
   child.stdout?.on("data", (d) => (log += d));
   child.stderr?.on("data", (d) => (log += d));
+  if (opts.logFile && opts.quiet) {
+    fs.mkdirSync(path.dirname(opts.logFile), { recursive: true });
+    const file = fs.createWriteStream(opts.logFile, { flags: "a" });
+    child.stdout?.pipe(file);
+    child.stderr?.pipe(file);
+  }
   const deadline = Date.now() + 60_000;
   while (Date.now() < deadline) {
     if (hasExited(child)) throw new Error(`the app exited during start-up:\n${log}`);
