@@ -93,6 +93,8 @@ export function nextStepFor(problem: ProblemAnswer): string {
     case "unreadable":
     case "encoding":
       return "Save the file as CSV (UTF-8) or as an Excel workbook (.xlsx) and choose it again; older .xls workbooks are not read.";
+    case "malformed":
+      return "Open the file, correct the line or column the message names, save it as CSV (UTF-8) or .xlsx and choose it again.";
     case "empty":
     case "no_data_rows":
       return "Choose the file that holds the donor results, or fill in the blank template below.";

@@ -5,7 +5,7 @@ import type { Principal } from "@/lib/auth/principal";
 import type { Permission } from "@/lib/auth/roles";
 import { env } from "@/lib/env";
 import { bearerTokenOf } from "@/lib/lis/keys";
-import { readBoundedBody, parseJsonBody } from "./body";
+import { readBoundedBody, parseJsonBody, unstorableText, unstorableTextError } from "./body";
 import { AppError } from "./errors";
 import { crossSiteRefusal, originOf, STATE_CHANGING_METHODS } from "./origin";
 import { resolvePrincipal } from "./principal";
@@ -30,7 +30,7 @@ interface RouteConfig<P extends z.ZodType, Q extends z.ZodType, B extends z.ZodT
    * Reads the body as multipart/form-data of at most this many bytes (the whole request, files
    * and fields) into `form`; another content type is answered 415, a larger body 413.
    */
-  multipart?: { maxBytes: number };
+  multipart?: { maxBytes: number; tooLarge?: string };
   /**
    * Answers an error in another shape than problem+json, from the same problem (status, detail,
    * headers): the FHIR routes answer every error, auth included, as an OperationOutcome.
@@ -53,26 +53,55 @@ interface RouteInput<P, Q, B, K extends boolean = false> {
   request: Request;
 }
 
+/** The media type of a Content-Type header, without parameters, in lower case (media types ignore case). */
+function mediaTypeOf(request: Request): string {
+  return (request.headers.get("content-type") ?? "").split(";")[0].trim().toLowerCase();
+}
+
 async function readJson(request: Request, maxBytes: number): Promise<unknown> {
-  const type = request.headers.get("content-type") ?? "";
-  if (!type.includes("application/json")) {
+  if (mediaTypeOf(request) !== "application/json") {
     throw new AppError("unsupported_media_type", "Send the request body as application/json.");
   }
   return parseJsonBody(await readBoundedBody(request, maxBytes));
 }
 
-/** Reads a multipart/form-data body, refusing another type (415) or more than `maxBytes` (413). */
-async function readMultipart(request: Request, maxBytes: number): Promise<FormData> {
+/**
+ * Reads a multipart/form-data body, refusing another type (415), more than `maxBytes` (413, with
+ * `tooLarge` as the message when given) and a field or file name that cannot be stored as text (422).
+ */
+async function readMultipart(request: Request, { maxBytes, tooLarge }: { maxBytes: number; tooLarge?: string }): Promise<FormData> {
   const type = request.headers.get("content-type") ?? "";
-  if (!type.toLowerCase().startsWith("multipart/form-data")) {
+  if (mediaTypeOf(request) !== "multipart/form-data") {
     throw new AppError("unsupported_media_type", "Send the request body as multipart/form-data.");
   }
-  const bytes = await readBoundedBody(request, maxBytes);
+  let bytes: Buffer<ArrayBuffer>;
   try {
-    return await new Response(bytes, { headers: { "content-type": type } }).formData();
+    bytes = await readBoundedBody(request, maxBytes);
+  } catch (err) {
+    if (tooLarge && err instanceof AppError && err.code === "payload_too_large") throw new AppError("payload_too_large", tooLarge);
+    throw err;
+  }
+  let form: FormData;
+  try {
+    form = await new Response(bytes, { headers: { "content-type": type } }).formData();
   } catch {
     throw new AppError("bad_request", "The request body is not valid multipart/form-data.");
   }
+  for (const [name, value] of form) {
+    const problem = typeof value === "string" ? unstorableText(value) : unstorableText(value.name);
+    if (problem) throw unstorableTextError(name, typeof value === "string" ? problem : `the file name: ${problem}`);
+  }
+  return form;
+}
+
+/** Query parameters as an object, refusing (422) a value that cannot be stored or compared as text. */
+function queryOf(url: URL): Record<string, string> {
+  const query = Object.fromEntries(url.searchParams);
+  for (const [name, value] of Object.entries(query)) {
+    const problem = unstorableText(value) ?? unstorableText(name);
+    if (problem) throw unstorableTextError(name, problem);
+  }
+  return query;
 }
 
 /**
@@ -109,9 +138,9 @@ export function apiRoute<
       refuseCrossSiteChange(request);
       const { principal, caller, sessionId } = await resolvePrincipal(request, { permission: config.permission, lisKey: config.lisKey });
       const params = config.params ? config.params.parse(await context.params) : {};
-      const query = config.query ? config.query.parse(Object.fromEntries(url.searchParams)) : {};
+      const query = config.query ? config.query.parse(queryOf(url)) : {};
       const body = config.body ? config.body.parse(await readJson(request, config.maxBodyBytes ?? 1 << 20)) : undefined;
-      const form = config.multipart ? await readMultipart(request, config.multipart.maxBytes) : null;
+      const form = config.multipart ? await readMultipart(request, config.multipart) : null;
       const result = await handler({ caller, principal, sessionId, params, query, body, form, request } as RouteInput<
         z.output<P>,
         z.output<Q>,

@@ -1,5 +1,6 @@
 import "server-only";
 import { z } from "zod";
+import { unstorableText } from "@/lib/api/body";
 import { AppError } from "@/lib/api/errors";
 import { zodIssues } from "@/lib/api/problem";
 import { StatsInputError } from "@/lib/stats/validate";
@@ -35,6 +36,11 @@ export async function runAction<S extends z.ZodType>(
   try {
     const session = await currentSession();
     const caller = authorize(session?.caller ?? null, permission ?? undefined, options);
+    // A NUL or an unpaired surrogate cannot be stored as text: said at the field, before any work.
+    for (const [name, value] of formData) {
+      const problem = typeof value === "string" ? unstorableText(value) : null;
+      if (problem) return { status: "error", message: "Please correct the marked fields.", fieldErrors: { [name]: problem } };
+    }
     const parsed = schema.safeParse(Object.fromEntries(formData));
     if (!parsed.success) {
       const issues = zodIssues(parsed.error);

@@ -1,9 +1,15 @@
 import { z } from "zod";
 import { AppError, type ErrorCode } from "@/lib/api/errors";
-import { TEMPLATE_COLUMNS, type ColumnMapping, type UploadError } from "@/lib/uploads";
+import { TEMPLATE_COLUMNS, UPLOAD_TOO_LARGE_MESSAGE, type ColumnMapping, type UploadError } from "@/lib/uploads";
 
 /** The multipart request's size limit: the 20 MB file plus room for the other fields and the boundaries. */
 export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
+
+/**
+ * `apiRoute`'s multipart option for the upload routes: a request too large to hold a 20 MB file
+ * is refused in the words lib/uploads uses for a file over 20 MB.
+ */
+export const UPLOAD_MULTIPART = { maxBytes: UPLOAD_REQUEST_MAX_BYTES, tooLarge: UPLOAD_TOO_LARGE_MESSAGE };
 
 const mappingSchema = z.partialRecord(z.enum(TEMPLATE_COLUMNS), z.string().trim().min(1).max(200));
 
@@ -14,6 +20,9 @@ export const templateQuery = z
     analyte: z.string().trim().min(1).max(16).optional(),
   })
   .strict();
+
+/** The longest file name kept with an upload (most file systems allow 255). */
+const MAX_FILE_NAME_LENGTH = 255;
 
 function invalid(path: string, message: string): AppError {
   return new AppError("invalid", `${path}: ${message}`, { errors: [{ path, message }] });
@@ -44,6 +53,9 @@ export interface UploadForm {
 export function readUploadForm(form: FormData): UploadForm {
   const file = form.get("file");
   if (!(file instanceof File)) throw invalid("file", "Attach the file (CSV or XLSX) in the field named file.");
+  if (file.name.length > MAX_FILE_NAME_LENGTH) {
+    throw invalid("file", `The file name is ${file.name.length} characters long; rename the file to at most ${MAX_FILE_NAME_LENGTH} characters.`);
+  }
 
   let mapping: ColumnMapping | undefined;
   const mappingText = form.get("mapping");

@@ -6,12 +6,14 @@ import { UploadError } from "./errors";
 import { collectBytes, sniffFile, type UploadInput } from "./input";
 import { resolveColumns, type ResolvedMapping } from "./mapping";
 import { readTable, type TableInfo } from "./table";
-import { cellText, exactAgeYears, readDateCell, readNumberText, readSexCell, readValueCell, type DayOut, type ValueOut } from "./values";
+import { cellText, exactAgeYears, quoted, readDateCell, readNumberText, readSexCell, readValueCell, type DayOut, type ValueOut } from "./values";
 
 /** More data rows than this and the file is refused whole. */
 export const MAX_DATA_ROWS = 200_000;
 /** The report lists at most this many problems; `problemsOmitted` counts the rest. */
 export const MAX_LISTED_PROBLEMS = 10_000;
+/** The longest donor code: codes are pseudonyms or sample numbers, never free text. */
+export const MAX_DONOR_CODE_LENGTH = 100;
 /** The oldest possible donor. */
 export const MAX_AGE_YEARS = 120;
 /** Days per year for an age given in years (the Julian year). */
@@ -105,6 +107,25 @@ function rowList(rows: readonly number[]): string {
 }
 
 /**
+ * A workbook read from its first sheet whose columns do not fit: the donors are often on another
+ * sheet, so the refusal names the sheet read and the others.
+ */
+function withSheetAdvice(error: unknown, table: TableInfo, sheetAsked: string | undefined): unknown {
+  if (!(error instanceof UploadError) || error.code !== "mapping") return error;
+  if (table.format !== "xlsx" || sheetAsked !== undefined || table.sheets.length < 2) return error;
+  return new UploadError(
+    "mapping",
+    `${error.message} (read from the sheet ${quoted(table.sheet ?? "")}; the workbook's sheets are ${table.sheets.map(quoted).join(", ")}: name the sheet to read in the sheet field)`,
+    { ...error.details, sheets: table.sheets },
+  );
+}
+
+/** Nothing but blank rows: in a workbook, the sheet read is what is empty. */
+export function emptyRefusal(format: "csv" | "xlsx", sheet: string | undefined): UploadError {
+  return new UploadError("empty", format === "xlsx" && sheet !== undefined ? `the sheet ${quoted(sheet)} is empty` : "the file is empty");
+}
+
+/**
  * Reads an upload and checks every data row. Never stores anything.
  * Throws UploadError for a file refused whole (see errors.ts for the codes).
  * Complexity O(rows × columns).
@@ -151,7 +172,11 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
   const found = await readTable(file, options.sheet, {
     onHeader: (table) => {
       info = table;
-      ({ index, mapping } = resolveColumns(table.headers, options.mapping));
+      try {
+        ({ index, mapping } = resolveColumns(table.headers, options.mapping));
+      } catch (error) {
+        throw withSheetAdvice(error, table, options.sheet);
+      }
     },
     onBytes: (n) => {
       bytesRead = n;
@@ -167,6 +192,9 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
 
       const donorCode = cellText(cell(cells, ix.donor_code));
       if (donorCode === "") fail("donor_code", "donor_code is missing");
+      else if (donorCode.length > MAX_DONOR_CODE_LENGTH) {
+        fail("donor_code", `donor_code is ${donorCode.length} characters long; at most ${MAX_DONOR_CODE_LENGTH} are allowed`);
+      }
       else if (donorCode.length === EXAMPLE_DONOR_CODE.length && donorCode.toUpperCase() === EXAMPLE_DONOR_CODE) {
         fail("donor_code", "this is the template's example row; delete it before uploading");
       } else {
@@ -234,7 +262,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
       const fileUnit = cellText(cell(cells, ix.unit));
       if (fileUnit !== "" && fileUnit !== analyteUnit) {
         if (convertUnit === undefined) {
-          fail("unit", `unit "${fileUnit}" is not the analyte's unit "${analyteUnit}", and no conversion is available`);
+          fail("unit", `unit ${quoted(fileUnit)} is not the analyte's unit "${analyteUnit}", and no conversion is available`);
         } else if (valueMessage === null) {
           let converted: number;
           try {
@@ -273,7 +301,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
       if ((rowsChecked & 2047) === 0) report();
     },
   });
-  if (!found || info === null) throw new UploadError("empty", "the file is empty");
+  if (!found || info === null) throw emptyRefusal(file.format, options.sheet);
   if (total === 0) throw new UploadError("no_data_rows", "the file has a header row but no data rows");
 
   // Duplicate donor codes: every row of the code is named, and none of them is valid.
@@ -281,7 +309,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
   for (const [code, rows] of rowsOfCode) {
     if (typeof rows === "number") continue;
     duplicates = true;
-    const message = `donor code "${code}" appears in ${rowList(rows)}`;
+    const message = `donor code ${quoted(code)} appears in ${rowList(rows)}`;
     for (const row of rows) problem(row, "donor_code", message);
   }
   if (duplicates) problems.sort((a, b) => a.row - b.row);

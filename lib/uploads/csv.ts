@@ -37,7 +37,7 @@ export function detectSeparator(text: string): "," | ";" {
  * it; `onRecord` returns false to stop early (a preview). The array is reused for the next
  * record: copy it to keep it. Blank lines are passed as `[""]`, so
  * the caller can number rows as the scientist sees them.
- * Throws UploadError "unreadable" for a quoted field that never closes.
+ * Throws UploadError "malformed" for a quoted field that never closes.
  * Complexity O(length of text).
  */
 export function readCsvRecords(
@@ -63,7 +63,7 @@ export function readCsvRecords(
           if (q === -1) {
             const line = records === 0 ? "the header" : `data row ${records}`;
             throw new UploadError(
-              "unreadable",
+              "malformed",
               `the file is not readable as CSV: a quoted field opened in ${line} is never closed`,
             );
           }

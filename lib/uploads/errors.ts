@@ -6,6 +6,7 @@
 export type UploadErrorCode =
   | "unreadable" // neither a CSV nor an XLSX workbook (binary, a ZIP that is no workbook, a legacy .xls)
   | "encoding" // text that is not UTF-8 (with or without BOM) nor UTF-16 with a BOM
+  | "malformed" // text that cannot be read as CSV: a quoted field never closed, a control character
   | "empty" // no bytes, or nothing but blank lines
   | "no_data_rows" // a header row and nothing under it
   | "too_large" // over MAX_UPLOAD_BYTES
@@ -17,6 +18,7 @@ export type UploadErrorCode =
 export const UPLOAD_ERROR_STATUS: Record<UploadErrorCode, 413 | 415 | 422> = {
   unreadable: 415,
   encoding: 415,
+  malformed: 422,
   empty: 422,
   no_data_rows: 422,
   too_large: 413,

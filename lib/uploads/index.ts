@@ -7,7 +7,7 @@
  */
 export { TEMPLATE_COLUMNS, EXAMPLE_DONOR_CODE, type TemplateColumn, type ColumnMapping } from "./columns";
 export { UploadError, UPLOAD_ERROR_STATUS, type UploadErrorCode, type UploadErrorDetails } from "./errors";
-export { MAX_UPLOAD_BYTES, type UploadInput } from "./input";
+export { MAX_UPLOAD_BYTES, TOO_LARGE as UPLOAD_TOO_LARGE_MESSAGE, type UploadInput } from "./input";
 export type { ResolvedMapping } from "./mapping";
 export {
   checkUpload,

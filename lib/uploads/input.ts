@@ -13,7 +13,8 @@ export const MAX_UPLOAD_BYTES = 20 * 1024 * 1024;
 
 export type SniffedFile = { format: "csv"; text: string; byteLength: number } | { format: "xlsx"; bytes: Uint8Array };
 
-const TOO_LARGE = `the file is larger than 20 MB; split it into several uploads`;
+/** The refusal of a file over MAX_UPLOAD_BYTES, also what the upload route answers for a request body too large to hold it. */
+export const TOO_LARGE = `the file is larger than 20 MB; split it into several uploads`;
 
 /** Collects the input, refusing as soon as it passes the size limit (a stream is not read further). */
 export async function collectBytes(input: UploadInput, onBytes?: (bytesRead: number) => void): Promise<Uint8Array> {
@@ -31,6 +32,36 @@ export async function collectBytes(input: UploadInput, onBytes?: (bytesRead: num
     onBytes?.(total);
   }
   return Buffer.concat(chunks, total);
+}
+
+/** More control characters than this in a text and it is taken for a binary file. */
+const MAX_STRAY_CONTROLS = 8;
+
+/** The line (from 1) of a character offset; a line ends at LF, CRLF or a lone CR. */
+function lineOf(text: string, offset: number): number {
+  let line = 1;
+  for (let i = 0; i < offset; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 10 || (c === 13 && text.charCodeAt(i + 1) !== 10)) line++;
+  }
+  return line;
+}
+
+/**
+ * UTF-16 without a byte-order mark: ASCII text in it has a NUL in every other byte, at even
+ * offsets (big-endian) or odd ones (little-endian). Looks at the first 1,024 bytes.
+ */
+function looksLikeUtf16(bytes: Uint8Array): boolean {
+  const n = Math.min(bytes.byteLength, 1024) & ~1;
+  if (n < 4) return false;
+  let evenNul = 0;
+  let oddNul = 0;
+  for (let i = 0; i < n; i += 2) {
+    if (bytes[i] === 0) evenNul++;
+    if (bytes[i + 1] === 0) oddNul++;
+  }
+  const pairs = n / 2;
+  return (oddNul >= 0.9 * pairs && evenNul === 0) || (evenNul >= 0.9 * pairs && oddNul === 0);
 }
 
 function startsWith(bytes: Uint8Array, prefix: readonly number[]): boolean {
@@ -67,7 +98,15 @@ export function sniffFile(bytes: Uint8Array): SniffedFile {
   if (startsWith(bytes, UTF8_BOM)) skip = 3;
   else if (startsWith(bytes, UTF16LE_BOM)) [encoding, skip] = ["utf-16le", 2];
   else if (startsWith(bytes, UTF16BE_BOM)) [encoding, skip] = ["utf-16be", 2];
-  else if (bytes.indexOf(0) !== -1) throw new UploadError("unreadable", NOT_CSV_OR_XLSX);
+  else if (bytes.indexOf(0) !== -1) {
+    if (looksLikeUtf16(bytes)) {
+      throw new UploadError(
+        "encoding",
+        'the file looks like UTF-16 text without a byte-order mark; save it as "CSV UTF-8" (or UTF-16 with a byte-order mark) and upload it again',
+      );
+    }
+    throw new UploadError("unreadable", NOT_CSV_OR_XLSX);
+  }
   let text: string;
   try {
     text = new TextDecoder(encoding, { fatal: true, ignoreBOM: true }).decode(bytes.subarray(skip));
@@ -80,8 +119,20 @@ export function sniffFile(bytes: Uint8Array): SniffedFile {
     );
   }
   // Control characters other than tab, line feed and carriage return do not occur in a CSV
-  // written by a spreadsheet or a script: the bytes are some binary file.
-  if (/[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/.test(text)) throw new UploadError("unreadable", NOT_CSV_OR_XLSX);
+  // written by a spreadsheet or a script. Many of them: the bytes are some binary file; a few in
+  // text: a stray character the scientist can find and remove, so say where.
+  const control = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/g;
+  const first = control.exec(text);
+  if (first) {
+    let count = 1;
+    while (count <= MAX_STRAY_CONTROLS && control.exec(text)) count++;
+    if (count > MAX_STRAY_CONTROLS) throw new UploadError("unreadable", NOT_CSV_OR_XLSX);
+    const code = first[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, "0");
+    throw new UploadError(
+      "malformed",
+      `line ${lineOf(text, first.index)} of the file holds the control character U+${code}, which CSV text does not contain; remove it and upload the file again`,
+    );
+  }
   if (text.trim() === "") throw new UploadError("empty", "the file is empty");
   return { format: "csv", text, byteLength: bytes.byteLength };
 }

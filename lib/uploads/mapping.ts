@@ -6,6 +6,7 @@
  */
 import { TEMPLATE_COLUMNS, type ColumnMapping, type TemplateColumn } from "./columns";
 import { UploadError } from "./errors";
+import { quoted } from "./values";
 
 /** For each template column, the file's header that holds it, or null. */
 export type ResolvedMapping = Record<TemplateColumn, string | null>;
@@ -16,8 +17,12 @@ export interface ResolvedColumns {
   index: Record<TemplateColumn, number>;
 }
 
+/** Headers listed in a message; a file with more is summarised ("… and 480 more"). */
+const LISTED_HEADERS = 20;
+
 function list(items: readonly string[]): string {
-  return items.map((h) => `"${h}"`).join(", ");
+  const shown = items.slice(0, LISTED_HEADERS).map(quoted).join(", ");
+  return items.length > LISTED_HEADERS ? `${shown} and ${items.length - LISTED_HEADERS} more` : shown;
 }
 
 /**
@@ -32,7 +37,7 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
     if (!known.has(key)) {
       throw new UploadError(
         "mapping",
-        `the mapping names "${key}", which is not a template column (${TEMPLATE_COLUMNS.join(", ")})`,
+        `the mapping names ${quoted(key)}, which is not a template column (${TEMPLATE_COLUMNS.join(", ")})`,
         details,
       );
     }
@@ -54,13 +59,13 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
       if (i === -1) {
         throw new UploadError(
           "mapping",
-          `the mapping gives the header "${wanted}" for ${column}, but the file has no such header (its headers: ${list(headers)})`,
+          `the mapping gives the header ${quoted(wanted)} for ${column}, but the file has no such header (its headers: ${list(headers)})`,
           details,
         );
       }
       const other = claimedBy.get(i);
       if (other !== undefined && mapping[other] !== undefined) {
-        throw new UploadError("mapping", `the mapping gives the header "${headers[i]}" to both ${other} and ${column}`, details);
+        throw new UploadError("mapping", `the mapping gives the header ${quoted(headers[i])} to both ${other} and ${column}`, details);
       }
     } else {
       i = find(column);
@@ -77,6 +82,21 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
     if (i !== -1 && claimedBy.get(i) !== column) {
       index[column] = -1;
       resolved[column] = null;
+    }
+  }
+  // A header read for a column must name one column of the file: with two "value" columns,
+  // reading the first would be a silent guess.
+  for (const column of TEMPLATE_COLUMNS) {
+    const i = index[column];
+    if (i === -1) continue;
+    const name = headers[i].trim().toLowerCase();
+    const same = headers.flatMap((h, k) => (h.trim().toLowerCase() === name ? [k + 1] : []));
+    if (same.length > 1) {
+      throw new UploadError(
+        "mapping",
+        `the header ${quoted(headers[i])} appears in columns ${same.slice(0, -1).join(", ")} and ${same[same.length - 1]}; rename one of them so that each column is read from one header`,
+        details,
+      );
     }
   }
   return { mapping: resolved, index };

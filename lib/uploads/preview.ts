@@ -9,6 +9,7 @@ import { suggestMapping } from "./suggest";
 import { readTable, type TableInfo } from "./table";
 import { cellText } from "./values";
 import { UploadError } from "./errors";
+import { emptyRefusal } from "./check";
 
 export interface PreviewOptions {
   mapping?: ColumnMapping;
@@ -74,7 +75,7 @@ export async function inspectUpload(input: UploadInput, options: InspectOptions 
       return rows.length < limit;
     },
   });
-  if (!found || info === null) throw new UploadError("empty", "the file is empty");
+  if (!found || info === null) throw emptyRefusal(file.format, options.sheet);
   if (rows.length === 0 && limit > 0) throw new UploadError("no_data_rows", "the file has a header row but no data rows");
   const table = info as TableInfo;
   const lower = new Set(table.headers.map((h) => h.toLowerCase()));

@@ -4,6 +4,7 @@
  */
 import type { Cell } from "./columns";
 import { detectSeparator, readCsvRecords } from "./csv";
+import { UploadError } from "./errors";
 import { cellText } from "./values";
 import type { SniffedFile } from "./input";
 import { readXlsxRows } from "./xlsx";
@@ -36,7 +37,19 @@ export function isBlankRow(cells: readonly Cell[]): boolean {
   return true;
 }
 
-/** Returns whether a header row was found (false: nothing but blank rows). */
+/** More columns than this in the header row and the file is refused: no donor file is that wide. */
+export const MAX_COLUMNS = 1000;
+
+function checkWidth(headers: readonly string[]): void {
+  if (headers.length > MAX_COLUMNS) {
+    throw new UploadError(
+      "malformed",
+      `the header row has ${headers.length.toLocaleString("en-US")} columns; a file of donor results has at most ${MAX_COLUMNS.toLocaleString("en-US")}`,
+    );
+  }
+}
+
+/** Returns whether a header row was found (false: nothing but blank rows). Throws UploadError for a header row wider than MAX_COLUMNS. */
 export async function readTable(file: SniffedFile, sheet: string | undefined, callbacks: TableCallbacks): Promise<boolean> {
   let headerRow = -1;
   if (file.format === "csv") {
@@ -48,6 +61,7 @@ export async function readTable(file: SniffedFile, sheet: string | undefined, ca
       if (headerRow === -1) {
         if (isBlankRow(fields)) return;
         headerRow = record;
+        checkWidth(fields);
         callbacks.onHeader({ format: "csv", separator, sheet: null, sheets: [], headers: fields.map((f) => f.trim()) });
         return;
       }
@@ -69,6 +83,7 @@ export async function readTable(file: SniffedFile, sheet: string | undefined, ca
         if (isBlankRow(cells)) return;
         headerRow = rowNumber;
         const headers = Array.from(cells, (c) => cellText(c));
+        checkWidth(headers);
         const { name, sheets } = chosen ?? { name: sheet ?? "", sheets: [] };
         callbacks.onHeader({ format: "xlsx", separator: null, sheet: name, sheets, headers });
         return;

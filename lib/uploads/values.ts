@@ -7,6 +7,17 @@ import type { Cell } from "./columns";
 const DOT_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 const COMMA_NUMBER = /^[+-]?(?:\d+,?\d*|,\d+)(?:[eE][+-]?\d+)?$/;
 
+/** A cell's text in a message: in quotes, cut after this many characters. */
+const SHOWN_CHARACTERS = 40;
+
+/**
+ * A cell's text as a message quotes it: `"text"`, or for a long one its start and its length
+ * (`"DDDD…" (5000 characters)`), so that one bad cell cannot fill the report with its text.
+ */
+export function quoted(text: string): string {
+  return text.length <= SHOWN_CHARACTERS ? `"${text}"` : `"${text.slice(0, SHOWN_CHARACTERS)}…" (${text.length} characters)`;
+}
+
 export interface NumberOut {
   value: number;
 }
@@ -29,19 +40,19 @@ export function readNumberText(text: string, decimalComma: boolean, label: strin
   if (decimalComma) {
     if (!COMMA_NUMBER.test(text)) {
       if (DOT_NUMBER.test(text) && text.includes(".")) {
-        return `${label} "${text}" has a decimal point, but the file was declared to use decimal commas`;
+        return `${label} ${quoted(text)} has a decimal point, but the file was declared to use decimal commas`;
       }
-      return `${label} "${text}" is not a number`;
+      return `${label} ${quoted(text)} is not a number`;
     }
     source = text.replace(",", ".");
   } else if (!DOT_NUMBER.test(text)) {
     if (COMMA_NUMBER.test(text)) {
-      return `${label} "${text}" has a decimal comma; if the file uses decimal commas, upload it with the decimal-comma option (decimalComma: true)`;
+      return `${label} ${quoted(text)} has a decimal comma; if the file uses decimal commas, upload it with the decimal-comma option (decimalComma: true)`;
     }
-    return `${label} "${text}" is not a number`;
+    return `${label} ${quoted(text)} is not a number`;
   }
   const v = Number(source);
-  if (!Number.isFinite(v)) return `${label} "${text}" is too large to be a number`;
+  if (!Number.isFinite(v)) return `${label} ${quoted(text)} is too large to be a number`;
   out.value = v + 0; // −0 + 0 is +0
   return null;
 }
@@ -63,14 +74,14 @@ export function readValueCell(cell: Cell, decimalComma: boolean, out: ValueOut):
   }
   const text = cellText(cell);
   if (text === "") return "value is missing";
-  if (typeof cell === "boolean" || cell instanceof Date) return `value "${text}" is not a number`;
+  if (typeof cell === "boolean" || cell instanceof Date) return `value ${quoted(text)} is not a number`;
   const c0 = text.charCodeAt(0);
   if (c0 === 60 || c0 === 62) {
     const inclusive = text.charCodeAt(1) === 61;
     const rest = text.slice(inclusive ? 2 : 1).trimStart();
-    if (rest === "") return `value "${text}" has a censoring sign but no limit`;
+    if (rest === "") return `value ${quoted(text)} has a censoring sign but no limit`;
     const message = readNumberText(rest, decimalComma, "value", out);
-    if (message !== null) return message.replace(`"${rest}"`, `"${text}"`);
+    if (message !== null) return message.replace(quoted(rest), quoted(text));
     out.censor = c0 === 60 ? (inclusive ? 2 : 1) : inclusive ? 4 : 3;
     return null;
   }
@@ -156,7 +167,7 @@ export function readDateCell(cell: Cell, column: string, out: DayOut): string | 
   if (typeof cell === "number") return `${column} ${text} is a number, not a date; write it as YYYY-MM-DD or format the cell as a date`;
   let valid = text.length === 10 && text.charCodeAt(4) === 45 && text.charCodeAt(7) === 45;
   for (let k = 0; valid && k < DATE_DIGITS.length; k++) if (digitAt(text, DATE_DIGITS[k]) === -1) valid = false;
-  if (!valid) return `${column} "${text}" is not an ISO 8601 date (YYYY-MM-DD)`;
+  if (!valid) return `${column} ${quoted(text)} is not an ISO 8601 date (YYYY-MM-DD)`;
   const y = digitAt(text, 0) * 1000 + digitAt(text, 1) * 100 + digitAt(text, 2) * 10 + digitAt(text, 3);
   const m = digitAt(text, 5) * 10 + digitAt(text, 6);
   const d = digitAt(text, 8) * 10 + digitAt(text, 9);
@@ -196,5 +207,5 @@ export function readSexCell(cell: Cell): "F" | "M" | string {
   const lower = text.toLowerCase();
   if (lower === "f" || lower === "female") return "F";
   if (lower === "m" || lower === "male") return "M";
-  return `sex "${text}" is not F, M, female or male`;
+  return `sex ${quoted(text)} is not F, M, female or male`;
 }

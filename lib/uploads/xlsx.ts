@@ -11,12 +11,58 @@
  * - Rich text reads as its plain text, a hyperlink as its text, an error cell (#N/A) as its code.
  */
 import { Readable } from "node:stream";
+import { createInflateRaw } from "node:zlib";
 import ExcelJS from "exceljs";
 import type { Cell } from "./columns";
 import { UploadError } from "./errors";
-import { workbookInReadingOrder } from "./zip-order";
+import { quoted } from "./values";
+import { workbookInReadingOrder, zipParts } from "./zip-order";
 
 const NOT_A_WORKBOOK = "the file is a ZIP archive but not a readable Excel workbook (.xlsx)";
+
+/**
+ * What a workbook may unpack to, all parts together. 200,000 donor rows of the template take
+ * about 60-70 MB of sheet XML; a "ZIP bomb" of a few hundred KB that unpacks to gigabytes is
+ * refused before the reader spends its time on it (exceljs takes about 20 s per 256 MB).
+ */
+export const MAX_UNPACKED_BYTES = 256 * 1024 * 1024;
+
+/**
+ * Unpacks every part once, counting the bytes and keeping none, and refuses the workbook as soon
+ * as the count passes MAX_UNPACKED_BYTES. Counting the actual output, not the sizes the archive
+ * declares, so that an archive lying about its sizes is caught too.
+ */
+async function assertUnpackedSize(file: Uint8Array): Promise<void> {
+  const parts = zipParts(file);
+  if (parts === null) return; // the reader decides about an archive whose directory cannot be read
+  let total = 0;
+  const over = () =>
+    new UploadError(
+      "too_large",
+      `the workbook unpacks to more than ${MAX_UNPACKED_BYTES / 1024 / 1024} MB; save the donor results alone in a new workbook or as CSV`,
+    );
+  for (const part of parts) {
+    if (part.method === 0) {
+      total += part.data.byteLength;
+      if (total > MAX_UNPACKED_BYTES) throw over();
+      continue;
+    }
+    if (part.method !== 8) continue;
+    await new Promise<void>((resolve, reject) => {
+      const inflate = createInflateRaw();
+      inflate.on("data", (chunk: Buffer) => {
+        total += chunk.byteLength;
+        if (total > MAX_UNPACKED_BYTES) {
+          inflate.destroy();
+          reject(over());
+        }
+      });
+      inflate.on("end", resolve);
+      inflate.on("error", () => resolve()); // a damaged part: the reader reports the workbook unreadable
+      inflate.end(part.data);
+    });
+  }
+}
 const CHUNK = 64 * 1024;
 
 /** exceljs's cell value shapes, as far as reading needs them. */
@@ -43,10 +89,11 @@ export interface XlsxReadCallbacks {
 
 /**
  * Reads the first sheet (tab order), or the sheet named `sheet`.
- * Throws UploadError "unknown_sheet" (listing the sheets) or "unreadable"; rethrows what the
- * callbacks throw.
+ * Throws UploadError "unknown_sheet" (listing the sheets), "too_large" (unpacking to more than
+ * MAX_UNPACKED_BYTES) or "unreadable"; rethrows what the callbacks throw.
  */
 export async function readXlsxRows(file: Uint8Array, sheet: string | undefined, callbacks: XlsxReadCallbacks): Promise<void> {
+  await assertUnpackedSize(file);
   const bytes = workbookInReadingOrder(file);
   let bytesRead = 0;
   const source = Readable.from(
@@ -75,7 +122,7 @@ export async function readXlsxRows(file: Uint8Array, sheet: string | undefined, 
       if (sheets.length === 0) continue;
       const wanted = sheet ?? sheets[0];
       if (!sheets.includes(wanted)) {
-        throw new UploadError("unknown_sheet", `the workbook has no sheet "${wanted}"; its sheets are ${sheets.map((s) => `"${s}"`).join(", ")}`, {
+        throw new UploadError("unknown_sheet", `the workbook has no sheet ${quoted(wanted)}; its sheets are ${sheets.map(quoted).join(", ")}`, {
           sheets,
         });
       }

@@ -137,3 +137,43 @@ export function workbookInReadingOrder(input: Uint8Array): Uint8Array {
   out.writeUInt32LE(locals, offset + 16);
   return out;
 }
+
+/** One part of a ZIP archive as stored: its name, compression method (0 stored, 8 deflated) and bytes. */
+export interface ZipPart {
+  name: string;
+  method: number;
+  data: Buffer;
+}
+
+/**
+ * The parts of a ZIP archive, from its central directory (sizes as the directory gives them);
+ * null when the directory cannot be read (ZIP64, a damaged file).
+ */
+export function zipParts(input: Uint8Array): ZipPart[] | null {
+  const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
+  let end = -1;
+  for (let i = bytes.length - 22; i >= Math.max(0, bytes.length - 22 - 0xffff); i--) {
+    if (bytes.readUInt32LE(i) === END) {
+      end = i;
+      break;
+    }
+  }
+  if (end === -1) return null;
+  const count = bytes.readUInt16LE(end + 10);
+  let at = bytes.readUInt32LE(end + 16);
+  if (count === 0xffff || at > end) return null;
+  const parts: ZipPart[] = [];
+  for (let k = 0; k < count; k++) {
+    if (at + 46 > end || bytes.readUInt32LE(at) !== CENTRAL) return null;
+    const method = bytes.readUInt16LE(at + 10);
+    const compressed = bytes.readUInt32LE(at + 20);
+    const nameLength = bytes.readUInt16LE(at + 28);
+    const offset = bytes.readUInt32LE(at + 42);
+    if (offset + 30 > bytes.length || bytes.readUInt32LE(offset) !== LOCAL) return null;
+    const start = offset + 30 + bytes.readUInt16LE(offset + 26) + bytes.readUInt16LE(offset + 28);
+    if (start + compressed > bytes.length) return null;
+    parts.push({ name: bytes.toString("utf8", at + 46, at + 46 + nameLength), method, data: bytes.subarray(start, start + compressed) });
+    at += 46 + nameLength + bytes.readUInt16LE(at + 30) + bytes.readUInt16LE(at + 32);
+  }
+  return parts;
+}

@@ -3,8 +3,11 @@
  * they are added, and text that is never a formula. Every string goes in as a string cell
  * (exceljs makes a formula only from a `{formula}` object, never from text) and carries the Text
  * number format "@", so that a value such as `=cmd|' /C calc'!A0`, `+1`, `-x` or `@SUM(…)` stays
- * text even when someone edits the cell in a spreadsheet program. Strings keep their exact
- * characters (a bare carriage return reads back as a line feed: XML's end-of-line rule).
+ * text even when someone edits the cell in a spreadsheet program. Strings are shared strings
+ * (cell type "s"): without them exceljs writes cell type "str", which SpreadsheetML defines as
+ * the text result of a formula (ECMA-376 Part 1, §18.18.11 ST_CellType), a door left ajar for
+ * a reader that takes it as one. Strings keep their exact characters (a bare carriage return
+ * reads back as a line feed: XML's end-of-line rule).
  */
 import { PassThrough } from "node:stream";
 import ExcelJS from "exceljs";
@@ -48,7 +51,7 @@ export async function streamedWorkbook(created: Date, build: (workbook: Workbook
     stream.on("end", resolve);
     stream.on("error", reject);
   });
-  const workbook = new ExcelJS.stream.xlsx.WorkbookWriter({ stream, useStyles: true, useSharedStrings: false });
+  const workbook = new ExcelJS.stream.xlsx.WorkbookWriter({ stream, useStyles: true, useSharedStrings: true });
   workbook.creator = "Bellwether";
   workbook.created = created;
   build(workbook);

@@ -256,7 +256,7 @@ describe("uploads: check, then commit or cancel", () => {
       422,
       "file: Attach the file (CSV or XLSX) in the field named file.",
     ],
-    ["a file over 20 MB", () => upload(studyId, "scientist", new Uint8Array(21 * 1024 * 1024).fill(65)), 413, `The request body is larger than ${20 * 1024 * 1024 + 256 * 1024} bytes.`],
+    ["a file over 20 MB", () => upload(studyId, "scientist", new Uint8Array(21 * 1024 * 1024).fill(65)), 413, "the file is larger than 20 MB; split it into several uploads"],
   ];
   for (const [what, request, status, message] of refused) {
     it(`refuses ${what} with ${status}, storing no donor result and no upload`, async () => {

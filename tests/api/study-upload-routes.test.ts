@@ -166,7 +166,7 @@ describe("POST /api/v1/studies/{id}/uploads/preview", () => {
       422,
       `the mapping gives the header "Result" for value, but the file has no such header (its headers: "Sample ID", "Gender", "Age", "Fasting glucose", "Units")`,
     ],
-    ["a file over 20 MB", () => preview("scientist", new Uint8Array(21 * 1024 * 1024).fill(65)), 413, `The request body is larger than ${20 * 1024 * 1024 + 256 * 1024} bytes.`],
+    ["a file over 20 MB", () => preview("scientist", new Uint8Array(21 * 1024 * 1024).fill(65)), 413, "the file is larger than 20 MB; split it into several uploads"],
   ];
   for (const [what, request, status, detail] of refused) {
     it(`answers ${status} for ${what}, storing nothing`, async () => {

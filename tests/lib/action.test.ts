@@ -72,3 +72,24 @@ describe("server actions whose work refuses named fields", () => {
     expect(state).toEqual({ status: "error", message, fieldErrors: { code: message } });
   });
 });
+
+describe("server actions given text that cannot be stored", () => {
+  beforeEach(() => {
+    session.current = { caller: { ...admin(false), role: "scientist" }, sessionId: "session-2" };
+  });
+
+  // (FormData holds USV strings: an unpaired surrogate is already U+FFFD there.)
+  it("refuse a NUL at the field, before parsing or any work", async () => {
+    const work = vi.fn(async () => "done");
+    const schema = z.object({ title: z.string() });
+    expect(await runAction(null, schema, form({ title: "Glu\u0000cose" }), work)).toEqual({
+      status: "error",
+      message: "Please correct the marked fields.",
+      fieldErrors: { title: "the text holds the character U+0000 (NUL), which cannot be stored; remove it." },
+    });
+    expect(work).not.toHaveBeenCalled();
+    // HTML, SQL and formula text are text: the work runs with them as given.
+    expect(await runAction(null, schema, form({ title: "<b>=1+1</b>'; --" }), work)).toEqual({ status: "ok", message: "done" });
+    expect(work).toHaveBeenCalledWith(expect.anything(), { title: "<b>=1+1</b>'; --" }, { sessionId: "session-2" });
+  });
+});

@@ -79,9 +79,10 @@ describe("files refused whole", () => {
   });
 
   it("refuses a quoted field that never closes", async () => {
+    // CSV text that is not readable as CSV: the file's content is at fault, not its type (422).
     expect(await refusal(Buffer.from(`${HEADER}D1,F,30,1\n"D2,F,30,1\n`))).toEqual({
-      code: "unreadable",
-      status: 415,
+      code: "malformed",
+      status: 422,
       message: "the file is not readable as CSV: a quoted field opened in data row 2 is never closed",
     });
   });

@@ -14,7 +14,14 @@ export const metadata: Metadata = { title: "Audit trail" };
 
 const PAGE_SIZE = 50;
 
-const text = z.string().trim().max(200).optional().catch(undefined);
+// A NUL cannot be in any stored text, and PostgreSQL refuses it in a pattern: such a filter is dropped like any malformed one.
+const text = z
+  .string()
+  .trim()
+  .max(200)
+  .refine((s) => !s.includes("\u0000"))
+  .optional()
+  .catch(undefined);
 // Days are read strictly by parseDayRange, which reports what is wrong with them.
 const day = z.string().trim().max(40).optional().catch(undefined);
 

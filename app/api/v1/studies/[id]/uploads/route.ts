@@ -10,7 +10,7 @@ import { toProblem } from "@/lib/api/problem";
 import { actorOf } from "@/lib/auth/session";
 import { ageCurveReport, missingDateColumns, missingDateColumnsMessage } from "@/lib/studies/age-curve-rows";
 import { studyIdParams } from "@/lib/studies/input";
-import { readUploadForm, UPLOAD_REQUEST_MAX_BYTES, uploadRefusal, type UploadForm } from "@/lib/studies/upload-form";
+import { readUploadForm, UPLOAD_MULTIPART, uploadRefusal, type UploadForm } from "@/lib/studies/upload-form";
 import { convertUnit } from "@/lib/units/ucum";
 import { checkUpload, UploadError, type UploadProgress } from "@/lib/uploads";
 
@@ -108,7 +108,7 @@ function progressStream(file: CheckedFile, instance: string): Response {
  * `Accept: application/x-ndjson` the checking's progress comes first (see progressStream).
  */
 export const POST = apiRoute(
-  { permission: "studies:write", params: studyIdParams, multipart: { maxBytes: UPLOAD_REQUEST_MAX_BYTES } },
+  { permission: "studies:write", params: studyIdParams, multipart: UPLOAD_MULTIPART },
   async ({ caller, params: { id }, form, request }) => {
     const study = await findStudy(db(), { id });
     if (!study) throw new AppError("not_found", `There is no study with the id ${id}.`);

@@ -5,7 +5,7 @@ import { assertStudyTakesFile } from "@/db/queries/uploads";
 import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
 import { studyIdParams } from "@/lib/studies/input";
-import { readUploadForm, UPLOAD_REQUEST_MAX_BYTES, uploadRefusal } from "@/lib/studies/upload-form";
+import { readUploadForm, UPLOAD_MULTIPART, uploadRefusal } from "@/lib/studies/upload-form";
 import { inspectUpload, UploadError } from "@/lib/uploads";
 
 export const dynamic = "force-dynamic";
@@ -19,7 +19,7 @@ const PREVIEW_ROWS = 10;
  * them and with the mapping applied. The same form fields as an upload; stores nothing.
  */
 export const POST = apiRoute(
-  { permission: "studies:write", params: studyIdParams, multipart: { maxBytes: UPLOAD_REQUEST_MAX_BYTES } },
+  { permission: "studies:write", params: studyIdParams, multipart: UPLOAD_MULTIPART },
   async ({ params: { id }, form }) => {
     const study = await findStudy(db(), { id });
     if (!study) throw new AppError("not_found", `There is no study with the id ${id}.`);
