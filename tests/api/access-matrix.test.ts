@@ -17,6 +17,7 @@ import { SYSTEM_ACTOR } from "@/db/queries/audit";
 import { createUser, setUserActive } from "@/db/queries/users";
 import type { Role } from "@/db/schema";
 import { testDatabase } from "../support/database";
+import { countEveryTable } from "../support/table-counts";
 import { builtServerActions, pagePaths, routeHandlerKeys, serverActionKeys } from "../support/entry-points";
 import { BASE_URL, signInOverHttp } from "../support/http-session";
 import { createLisConnectionOverHttp } from "../support/lis";
@@ -179,30 +180,9 @@ function audienceOf(principal: Principal): Audience | null {
 // ---------------------------------------------------------------------------------------------
 // Row counts of every table (listed from information_schema, so a new table is counted too)
 // ---------------------------------------------------------------------------------------------
-/**
- * Written by a background job whatever the requests: the rate limiter's sync writes a heartbeat
- * row per app instance and one-minute window every few hundred milliseconds (lib/lis/rate-limit.ts).
- * A refused request never reaches the limiter (resolvePrincipal refuses first).
- */
-const BACKGROUND_TABLES = new Set(["public.rate_limit_counts"]);
-let countQuery = "";
-async function allCounts(): Promise<Record<string, number>> {
-  if (!countQuery) {
-    const tables = (
-      await pool.query(
-        `SELECT table_schema, table_name FROM information_schema.tables
-          WHERE table_type = 'BASE TABLE' AND table_schema NOT IN ('pg_catalog', 'information_schema')
-            AND has_table_privilege(quote_ident(table_schema) || '.' || quote_ident(table_name), 'SELECT')
-          ORDER BY 1, 2`,
-      )
-    ).rows as { table_schema: string; table_name: string }[];
-    expect(tables.length).toBeGreaterThan(15);
-    countQuery = tables
-      .map((t) => `SELECT '${t.table_schema}.${t.table_name}' AS t, count(*)::int AS n FROM "${t.table_schema}"."${t.table_name}"`)
-      .join(" UNION ALL ");
-  }
-  const rows = (await pool.query(countQuery)).rows as { t: string; n: number }[];
-  return Object.fromEntries(rows.filter((r) => !BACKGROUND_TABLES.has(r.t)).map((r) => [r.t, r.n]));
+/** Row counts of every table but the background ones (tests/support/table-counts.ts). */
+function allCounts(): Promise<Record<string, number>> {
+  return countEveryTable(pool);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -389,6 +369,18 @@ const ROUTES: Record<string, RouteRow> = {
     allowed: DONORS,
     ok: 200,
     build: async () => ({ method: "GET", path: `/api/v1/studies/${studyId}/estimates/${estimateId}/chart-data` }),
+  },
+  "GET /api/v1/studies/[id]/estimates/[estimateId]/age-curves": {
+    allowed: DONORS,
+    ok: 200,
+    // Read-only, so the demo's paediatric age-curve study (db/seed-demo) serves.
+    build: async () => {
+      const { rows } = await pool.query<{ id: string; study_id: string }>(
+        "SELECT id, study_id FROM estimates WHERE options->>'method' = 'lms' ORDER BY created_at LIMIT 1",
+      );
+      expect(rows).toHaveLength(1);
+      return { method: "GET", path: `/api/v1/studies/${rows[0].study_id}/estimates/${rows[0].id}/age-curves` };
+    },
   },
   "GET /api/v1/studies/[id]/exclusions": { allowed: WORK, ok: 200, build: async () => ({ method: "GET", path: `/api/v1/studies/${studyId}/exclusions` }) },
   "POST /api/v1/studies/[id]/exclusions": {

@@ -1,6 +1,7 @@
 import fs from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { testDatabase } from "../support/database";
+import { countEveryTable } from "../support/table-counts";
 import { BASE_URL } from "../support/http-session";
 import { demoLisKey } from "../support/lis";
 import { rawFetch } from "../support/same-origin-fetch";
@@ -28,20 +29,10 @@ beforeAll(async () => {
 });
 afterAll(() => pool.end());
 
-/** Row counts of every table of the schema, listed from information_schema so that a new one counts too. */
-async function everyTableCount(): Promise<Record<string, number>> {
-  const { rows } = await pool.query<{ table_name: string }>(
-    "SELECT table_name FROM information_schema.tables WHERE table_schema = 'public' AND table_type = 'BASE TABLE' ORDER BY table_name",
-  );
-  const out: Record<string, number> = {};
-  for (const { table_name } of rows) out[table_name] = (await pool.query(`SELECT count(*)::int AS n FROM "${table_name}"`)).rows[0].n;
-  return out;
-}
-
-/** Tables that change without any request of the test: the score log flush, rate-limit heartbeats, sign-in bookkeeping. */
-const BACKGROUND = ["score_log", "rate_limit_counts"];
+/** Tables that change without any request of the test: the score log flush (the rate limiter's and the audit chain's are left out by countEveryTable). */
+const BACKGROUND = ["score_log"];
 async function domainCounts(): Promise<Record<string, number>> {
-  const all = await everyTableCount();
+  const all = await countEveryTable(pool);
   for (const t of BACKGROUND) delete all[t];
   return all;
 }

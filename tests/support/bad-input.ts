@@ -56,29 +56,7 @@ export function ownerPool(): Pool {
   return new Pool({ connectionString: url, max: 2 });
 }
 
-/**
- * Tables whose rows the served app changes by itself, on a clock, whatever a request does: the
- * rate limiter's heartbeat and claims (lib/lis/rate-limit.ts, every 300 ms). They are counted
- * in no comparison; every other table is.
- */
-export const BACKGROUND_TABLES = new Set(["rate_limit_counts"]);
-
-/** Every base table of the public schema, listed from information_schema, so that a new table is counted too. */
-export async function everyTable(owner: Pool): Promise<string[]> {
-  const { rows } = await owner.query<{ table_name: string }>(
-    `SELECT table_name FROM information_schema.tables
-      WHERE table_schema = 'public' AND table_type = 'BASE TABLE' ORDER BY table_name`,
-  );
-  return rows.map((r) => r.table_name);
-}
-
-/** The row count of every table but the background ones, in one snapshot. */
-export async function countEveryTable(owner: Pool): Promise<Record<string, number>> {
-  const tables = (await everyTable(owner)).filter((t) => !BACKGROUND_TABLES.has(t));
-  const select = tables.map((t, i) => `(SELECT count(*)::int FROM public."${t.replace(/"/g, '""')}") AS c${i}`).join(", ");
-  const [row] = (await owner.query(`SELECT ${select}`)).rows;
-  return Object.fromEntries(tables.map((t, i) => [t, row[`c${i}`] as number]));
-}
+export { BACKGROUND_TABLES, countEveryTable, everyTable } from "./table-counts";
 
 /** `before` with the given tables grown by the given numbers. */
 export function grown(before: Record<string, number>, changes: Record<string, number> = {}): Record<string, number> {
