@@ -46,8 +46,10 @@ describe("an administrator manages users", () => {
     await rowOf(page, email).waitFor();
 
     await rowOf(page, email).getByLabel(`Role for ${email}`).selectOption("scientist");
+    // Listening starts before the click: an answer that comes back quickly is not missed.
+    const saved = page.waitForResponse((r) => r.request().method() === "POST" && r.url().includes("/admin/users"));
     await rowOf(page, email).getByRole("button", { name: "Save" }).click();
-    await page.waitForResponse((r) => r.request().method() === "POST" && r.url().includes("/admin/users"));
+    await saved;
     await page.reload();
     expect(await rowOf(page, email).getByLabel(`Role for ${email}`).inputValue()).toBe("scientist");
     await screenshot(page, "admin-users");
