@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, eq, inArray, isNull, notExists, sql, type SQL } from "drizzle-orm";
+import { and, asc, eq, isNull, sql, type SQL } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import { engineIdentity } from "@/lib/engine";
 import { StatsInputError } from "@/lib/stats/validate";
@@ -18,6 +18,7 @@ import type { Database, Executor } from "../client";
 import { donorResults, estimates, exclusions, studies, uploads, type Estimate, type Study } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { listIncludedDonorValues } from "./donor-results";
+import { storedInputConditions } from "./estimates";
 
 /** Whether an estimate row holds LMS age curves (its options say so). */
 export function isLmsEstimate(row: Pick<Estimate, "options">): boolean {
@@ -160,25 +161,7 @@ export async function donorsOfLmsEstimate(executor: Executor, { estimate }: { es
   if (estimate.uploadHashes.length === 0) return [];
   const parts: SQL[] = [eq(donorResults.studyId, estimate.studyId), isNull(donorResults.censoringSide)];
   if (estimate.sex) parts.push(eq(donorResults.sex, estimate.sex));
-  parts.push(
-    inArray(
-      donorResults.uploadId,
-      executor
-        .select({ id: uploads.id })
-        .from(uploads)
-        .where(and(eq(uploads.studyId, estimate.studyId), eq(uploads.status, "committed"), inArray(uploads.sha256, estimate.uploadHashes))),
-    ),
-  );
-  if (estimate.exclusionIds.length > 0) {
-    parts.push(
-      notExists(
-        executor
-          .select({ one: sql`1` })
-          .from(exclusions)
-          .where(and(eq(exclusions.donorResultId, donorResults.id), inArray(exclusions.id, estimate.exclusionIds))),
-      ),
-    );
-  }
+  parts.push(...storedInputConditions(executor, { estimate }));
   return executor
     .select({ id: donorResults.id, donorCode: donorResults.donorCode, sex: donorResults.sex, age: donorResults.ageYears, value: donorResults.value })
     .from(donorResults)

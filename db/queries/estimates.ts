@@ -60,14 +60,12 @@ export async function estimationInput(
 }
 
 /**
- * The values an estimate was computed from, read again from what it stored: the partition's
- * donor results from the uploads it names, less those its exclusions set aside, in
- * donor_results.id order. Exclusions made or undone since do not change the answer.
+ * The conditions on donor_results that an estimate's stored provenance sets: the results come
+ * from the committed uploads it names (by SHA-256), less the exclusions it names. Exclusions made
+ * or undone since, and uploads committed since, do not change them.
  */
-export async function valuesOfEstimate(executor: Executor, { estimate }: { estimate: Estimate }): Promise<DonorValue[]> {
-  const parts: SQL[] = [eq(donorResults.studyId, estimate.studyId), ...partitionConditions(partitionOf(partitionOut(estimate)))];
-  if (estimate.uploadHashes.length === 0) return [];
-  parts.push(
+export function storedInputConditions(executor: Executor, { estimate }: { estimate: Estimate }): SQL[] {
+  const parts: SQL[] = [
     inArray(
       donorResults.uploadId,
       executor
@@ -75,7 +73,7 @@ export async function valuesOfEstimate(executor: Executor, { estimate }: { estim
         .from(uploads)
         .where(and(eq(uploads.studyId, estimate.studyId), eq(uploads.status, "committed"), inArray(uploads.sha256, estimate.uploadHashes))),
     ),
-  );
+  ];
   if (estimate.exclusionIds.length > 0) {
     parts.push(
       notExists(
@@ -86,6 +84,18 @@ export async function valuesOfEstimate(executor: Executor, { estimate }: { estim
       ),
     );
   }
+  return parts;
+}
+
+/**
+ * The values an estimate was computed from, read again from what it stored: the partition's
+ * donor results from the uploads it names, less those its exclusions set aside, in
+ * donor_results.id order. Exclusions made or undone since do not change the answer.
+ */
+export async function valuesOfEstimate(executor: Executor, { estimate }: { estimate: Estimate }): Promise<DonorValue[]> {
+  const parts: SQL[] = [eq(donorResults.studyId, estimate.studyId), ...partitionConditions(partitionOf(partitionOut(estimate)))];
+  if (estimate.uploadHashes.length === 0) return [];
+  parts.push(...storedInputConditions(executor, { estimate }));
   const rows = await executor
     .select({ value: donorResults.value, censoringSide: donorResults.censoringSide })
     .from(donorResults)
