@@ -3,6 +3,7 @@
  * (POST|GET /api/v1/studies/{id}/estimates… with `method: "lms"`, lib/studies/age-curves.ts) and
  * its chart (GET …/estimates/{estimateId}/age-curves). Plain data for the client components.
  */
+import type { LmsCurvesDocument } from "@/lib/stats/lms-curves";
 import type { LmsAgeGroup } from "@/lib/stats/lms-diagnostics";
 
 export type FitSex = "F" | "M" | null;
@@ -16,21 +17,12 @@ export interface LmsListItem {
   warnings: string[];
 }
 
-export interface LmsEstimate {
+/** An LMS fit as the estimates API answers it: the `bellwether lms` document and more. */
+export interface LmsEstimate extends LmsCurvesDocument {
   id: string;
   method: "lms";
   sex: FitSex;
   seed: number;
-  n: number;
-  at: number[];
-  lower: (number | null)[];
-  median: number[];
-  upper: (number | null)[];
-  L: number[];
-  M: number[];
-  S: number[];
-  edf: { L: number; M: number; S: number };
-  warnings: string[];
   ageRange: { min: number; max: number };
   excluded: number;
   advice: string[];
