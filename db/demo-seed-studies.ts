@@ -12,11 +12,13 @@ import { ageCurveReport } from "@/lib/studies/age-curve-rows";
 import { checkUpload } from "@/lib/uploads";
 import type { Database } from "./client";
 import { cohortCsv } from "./demo-donors";
+import { routineCsv } from "./demo-routine";
 import { DEMO_STAGES, DEMO_STUDIES, type DemoStage, type DemoStudy } from "./demo-studies";
 import { findAnalyteByCode } from "./queries/analytes";
 import type { Actor } from "./queries/audit";
 import { createLmsEstimate } from "./queries/age-curve-estimates";
 import { createEstimate } from "./queries/estimates";
+import { createIndirectEstimate } from "./queries/indirect-estimates";
 import { createExclusions } from "./queries/exclusions";
 import { DEMO_USERS } from "./demo-accounts";
 import { createIntervalVersion } from "./queries/interval-versions";
@@ -63,8 +65,8 @@ async function ensureStudy(database: Database, spec: DemoStudy, actor: Actor): P
       kind: spec.kind ?? "direct",
       method: spec.method,
       criteria: spec.criteria,
-      collectedFrom: spec.cohort.collected[0],
-      collectedTo: spec.cohort.collected[1],
+      collectedFrom: (spec.routine ?? spec.cohort!).collected[0],
+      collectedTo: (spec.routine ?? spec.cohort!).collected[1],
     },
     actor,
   });
@@ -73,7 +75,7 @@ async function ensureStudy(database: Database, spec: DemoStudy, actor: Actor): P
 
 /** Checks the cohort's file as the upload route does, keeps it pending and commits it, unless it is committed already. */
 async function ensureDonorResults(database: Database, spec: DemoStudy, study: Study, actor: Actor): Promise<boolean> {
-  const bytes = new TextEncoder().encode(cohortCsv(spec.cohort));
+  const bytes = new TextEncoder().encode(spec.routine ? routineCsv(spec.routine) : cohortCsv(spec.cohort!));
   const sha256 = createHash("sha256").update(bytes).digest("hex");
   const [committed] = await database
     .select({ id: uploads.id })
@@ -86,6 +88,7 @@ async function ensureDonorResults(database: Database, spec: DemoStudy, study: St
   const checked = await checkUpload(bytes, {
     unit: analyte.unit,
     convertUnit: (value, from, to) => convertUnit({ value, from, to, molarMass: analyte.molarMass }),
+    routine: study.kind === "indirect",
   });
   // As the upload route reads a file for an age-curve study: exact ages and measured values only.
   const report = study.kind === "age_curve" ? ageCurveReport(checked) : checked;
@@ -98,7 +101,7 @@ async function ensureDonorResults(database: Database, spec: DemoStudy, study: St
   return true;
 }
 
-const donorCode = (spec: DemoStudy, donor: number) => `${spec.cohort.codePrefix}-${String(donor).padStart(4, "0")}`;
+const donorCode = (spec: DemoStudy, donor: number) => `${spec.cohort!.codePrefix}-${String(donor).padStart(4, "0")}`;
 
 const KEEP_REASON = "Reviewed against the sample log: no pre-analytical error, within what healthy donors show. Kept.";
 
@@ -114,7 +117,7 @@ async function ensureScreened(database: Database, spec: DemoStudy, study: Study,
     .from(auditEvents)
     .where(and(eq(auditEvents.action, "study.screened"), eq(auditEvents.entityType, "study"), eq(auditEvents.entityId, study.id)));
   if (screened > 0) return false;
-  const gross = new Set((spec.cohort.grossErrors ?? []).map((g) => donorCode(spec, g.donor)));
+  const gross = new Set((spec.cohort!.grossErrors ?? []).map((g) => donorCode(spec, g.donor)));
   const screen = await screenStudy(database, { studyId: study.id, rule: "horn", actor });
   for (const proposal of screen.proposals) {
     const exclude = gross.has(proposal.donorCode);
@@ -169,6 +172,10 @@ async function ensureEstimated(database: Database, spec: DemoStudy, study: Study
   if (spec.kind === "age_curve") {
     const fit = await createLmsEstimate(database, { studyId: study.id, input: { method: "lms", sex: null, seed: 1 }, actor });
     return { ids: [fit.id], added: true };
+  }
+  if (spec.kind === "indirect") {
+    const estimate = await createIndirectEstimate(database, { studyId: study.id, input: spec.indirect!, actor });
+    return { ids: [estimate.id], added: true };
   }
   const ids: string[] = [];
   for (const partition of partitionsOfPlan(spec.plan)) {
@@ -241,8 +248,9 @@ export async function seedDemoStudies(database: Database, actors: DemoActors): P
     const { study, added: opened } = await ensureStudy(database, spec, actors.scientist);
     const uploaded = await ensureDonorResults(database, spec, study, actors.scientist);
     added ||= opened || uploaded;
-    // An age-curve study has no screen or partitions: its curves take age in themselves.
-    const direct = spec.kind !== "age_curve";
+    // An age-curve study has no screen or partitions: its curves take age in themselves; an
+    // indirect study's cleaning and partition are part of its estimate.
+    const direct = spec.kind !== "age_curve" && spec.kind !== "indirect";
     if (direct && reached(spec, "screened")) added = (await ensureScreened(database, spec, study, actors.scientist)) || added;
     if (direct && reached(spec, "partitioned")) added = (await ensurePartitioned(database, spec, study, actors.scientist)) || added;
     if (!reached(spec, "estimated")) continue;

@@ -4,6 +4,8 @@
  * API uses. Everything here is made up for Bellwether's demo.
  */
 import { DEMO_COHORTS, type DemoCohort } from "./demo-donors";
+import { DEMO_TSH_ROUTINE, type DemoRoutineData } from "./demo-routine";
+import type { IndirectEstimateInput } from "@/lib/studies/indirect-estimates";
 
 /**
  * How far a study has come, each stage including the ones before it: results uploaded;
@@ -18,16 +20,24 @@ export interface DemoStudy {
   title: string;
   method: string;
   criteria: string;
-  cohort: DemoCohort;
+  /** The healthy donors (direct and age-curve studies). */
+  cohort?: DemoCohort;
+  /** The routine results (an indirect study). */
+  routine?: DemoRoutineData;
+  /** An indirect study's estimate: the cleaning steps, partition and seed the scientist chose. */
+  indirect?: IndirectEstimateInput;
   fileName: string;
   stage: DemoStage;
   /** The partition tests the scientist ran, and the plan chosen from them (none: one partition of everyone). */
   assessment?: { by: "sex" } | { by: "age"; bands: [number, number][] };
   plan?: { sex: boolean; ageBands: [number, number][] | null };
-  /** `age_curve`: LMS curves in exact age (fitted once, both sexes, seed 1); direct otherwise. */
-  kind?: "direct" | "age_curve";
-  /** The method chosen for each partition of the version ("lms" for an age-curve study's curves). */
-  chosenMethod: "nonparametric" | "parametric" | "robust" | "lms";
+  /**
+   * `age_curve`: LMS curves in exact age (fitted once, both sexes, seed 1); `indirect`: routine
+   * results cleaned and estimated once as `indirect` says; direct otherwise.
+   */
+  kind?: "direct" | "age_curve" | "indirect";
+  /** The method chosen for each partition of the version ("lms" for curves, "indirect" for an indirect estimate). */
+  chosenMethod: "nonparametric" | "parametric" | "robust" | "lms" | "indirect";
   /** A manual exclusion made while screening: the donors (running numbers) and why. */
   manualExclusion?: { donors: number[]; reason: string };
   /** Why the outliers the screen proposed were confirmed. */
@@ -145,6 +155,20 @@ export const DEMO_STUDIES: readonly DemoStudy[] = [
     fileName: "potassium-2026.csv", stage: "screened", chosenMethod: "nonparametric",
     outlierReason: "Haemolysed or EDTA-contaminated on the sample log: not a healthy-donor value.",
     manualExclusion: { donors: [41, 42], reason: "Donors disclosed a potassium supplement after sampling (recruitment criterion)." },
+  },
+  {
+    analyte: "TSH", title: "TSH: indirect interval from routine results 2025-26", kind: "indirect", method: "Electrochemiluminescence, Corvel IM-200",
+    criteria:
+      "Every TSH requested of the laboratory from January 2025 to June 2026, exported from the laboratory system with pseudonymous " +
+      "patient keys. Cleaning: results after the reagent reformulation of March 2025 only, outpatients only, no interference flags, " +
+      "each patient's first result.",
+    routine: DEMO_TSH_ROUTINE, fileName: "tsh-routine-2025-26.csv", stage: "draft", chosenMethod: "indirect",
+    indirect: {
+      method: "indirect",
+      cleaning: { period: { from: "2025-03-03", to: "2026-06-30" }, excludeSettings: ["inpatient", "emergency"], excludeFlags: "any", onePerPatient: "first" },
+      seed: 1,
+    },
+    note: "First TSH interval of our own: estimated indirectly from outpatients' routine results; compare with the manufacturer's before sign-off.",
   },
   {
     analyte: "UREA", title: "Urea: second analyser (AX-400 #2) comparison", method: "Urease/GLDH, Corvel AX-400 #2", criteria: ADULT_CRITERIA,

@@ -201,9 +201,11 @@ export const studyStatusEnum = pgEnum("study_status", STUDY_STATUSES);
 /**
  * What a study estimates: `direct`, limits per partition from healthy donors (CLSI EP28-A3c);
  * `age_curve`, continuous LMS centile curves in age from healthy donors of known exact age
- * (METHODS.md §9). Set at creation and never changed.
+ * (METHODS.md §9); `indirect`, limits per partition from routine results of patients, by
+ * truncated maximum likelihood after the IFCC's data cleaning (METHODS.md §8). Set at creation
+ * and never changed.
  */
-export const STUDY_KINDS = ["direct", "age_curve"] as const;
+export const STUDY_KINDS = ["direct", "age_curve", "indirect"] as const;
 export const studyKindEnum = pgEnum("study_kind", STUDY_KINDS);
 export type StudyKind = (typeof STUDY_KINDS)[number];
 
@@ -282,6 +284,10 @@ export const censoringSideEnum = pgEnum("censoring_side", CENSORING_SIDES);
 
 /**
  * One stored healthy-donor result, from a committed upload. Values are in the analyte's unit.
+ * An indirect study keeps its routine results here too: `donor_code` holds the pseudonymous
+ * patient key (one patient may have many results), `collected_at` the collection date and time,
+ * and `setting` and `flags` what the laboratory system recorded; direct and age-curve studies
+ * leave those three null.
  * One foreign key, (study_id, upload_id) → uploads (study_id, id), stands for two: the upload
  * exists, and it belongs to the same study (whose existence uploads' own key guarantees).
  * PostgreSQL checks a foreign key row by row, so on a 200,000-row commit each key costs about
@@ -306,6 +312,12 @@ export const donorResults = pgTable(
     censoringInclusive: boolean("censoring_inclusive"),
     originalValue: doublePrecision("original_value"),
     originalUnit: text("original_unit"),
+    /** Routine results: collection date and time, ISO 8601 local time "YYYY-MM-DDTHH:MM:SS". */
+    collectedAt: text("collected_at"),
+    /** Routine results: outpatient, inpatient, emergency … as the file gives it. */
+    setting: text("setting"),
+    /** Routine results: the result's flags (haemolysed, icteric …), in the file's order. */
+    flags: jsonb("flags").$type<string[]>(),
   },
   (t) => [
     foreignKey({
@@ -513,7 +525,9 @@ export const intervalVersions = pgTable(
  * The methods of an estimate a partition may take its limits from. The table also allows
  * "adopted": limits taken from an accepted adoption check (scored by zlog, or a flag only), and
  * "lms": LMS age curves from an age-curve study, whose limits depend on the exact age, so the
- * partition's own low and high are null and its model (lib/stats/lms-model.ts) holds the curves.
+ * partition's own low and high are null and its model (lib/stats/lms-model.ts) holds the curves;
+ * and "indirect": limits by truncated maximum likelihood from an indirect study's routine
+ * results, scored by the fitted power-normal (a Box-Cox gaussian).
  */
 export const PARTITION_METHODS = ["nonparametric", "parametric", "robust"] as const;
 
@@ -553,7 +567,7 @@ export const intervalPartitions = pgTable(
     ),
     check("interval_partitions_has_limit", sql`${t.method} = 'lms' OR ${t.low} IS NOT NULL OR ${t.high} IS NOT NULL`),
     check("interval_partitions_limit_order", sql`${t.low} IS NULL OR ${t.high} IS NULL OR ${t.low} <= ${t.high}`),
-    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust', 'adopted', 'lms')`),
+    check("interval_partitions_method", sql`${t.method} IN ('nonparametric', 'parametric', 'robust', 'adopted', 'lms', 'indirect')`),
     check("interval_partitions_lms_model", sql`(${t.method} = 'lms') = (${t.model}->>'kind' = 'lms')`),
     check("interval_partitions_n_positive", sql`${t.n} > 0`),
   ],

@@ -28,16 +28,23 @@ export function isLmsEstimate(row: Pick<Estimate, "options">): boolean {
 /** 409 unless the study is an age-curve study; `what` names the step. */
 export function assertAgeCurveStudy(study: Pick<Study, "kind" | "title">, what: string): void {
   if (study.kind !== "age_curve") {
-    throw new AppError("conflict", `The study "${study.title}" estimates limits per partition, not age curves: ${what} is for age-curve studies.`);
+    const holds = study.kind === "indirect" ? "estimates limits indirectly from routine results" : "estimates limits per partition";
+    throw new AppError("conflict", `The study "${study.title}" ${holds}, not age curves: ${what} is for age-curve studies.`);
   }
 }
 
-/** 409 for a step of direct studies asked of an age-curve study; `what` names the step. */
+/** 409 for a step of direct studies asked of an age-curve or indirect study; `what` names the step. */
 export function assertDirectStudy(study: Pick<Study, "kind" | "title">, what: string): void {
   if (study.kind === "age_curve") {
     throw new AppError(
       "conflict",
       `The study "${study.title}" is an age-curve study: ${what} does not apply to it. Fit the LMS curves instead (POST …/estimates with {"method": "lms"}).`,
+    );
+  }
+  if (study.kind === "indirect") {
+    throw new AppError(
+      "conflict",
+      `The study "${study.title}" is an indirect study of routine results: ${what} does not apply to it. Estimate indirectly instead (POST …/estimates with {"method": "indirect"}).`,
     );
   }
 }

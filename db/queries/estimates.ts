@@ -209,6 +209,7 @@ export async function listEstimates(executor: Executor, { studyId }: { studyId: 
       parametric: sql<ReferenceIntervalEstimate["parametric"]>`${estimates.document}->'parametric'`,
       robust: sql<ReferenceIntervalEstimate["robust"]>`${estimates.document}->'robust'`,
       warnings: sql<string[]>`${estimates.document}->'warnings'`,
+      indirect: sql<{ lower: number | null; upper: number | null; fraction: number } | null>`CASE WHEN ${estimates.options}->>'method' = 'indirect' THEN jsonb_build_object('lower', ${estimates.document}->'lower', 'upper', ${estimates.document}->'upper', 'fraction', ${estimates.document}->'fraction') END`,
     })
     .from(estimates)
     .where(eq(estimates.studyId, studyId))
@@ -224,6 +225,8 @@ export async function listEstimates(executor: Executor, { studyId }: { studyId: 
     parametric: rest.parametric,
     robust: rest.robust,
     warnings: rest.warnings,
+    /** For an indirect estimate: its limits and non-diseased fraction (the rest is in the document). */
+    ...(rest.indirect ? { indirect: rest.indirect } : {}),
   }));
 }
 

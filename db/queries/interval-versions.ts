@@ -10,6 +10,7 @@ import { ageYearsToDays } from "@/lib/versions/age-days";
 import type { CreateVersionInput, ListVersionsQuery, UpdateVersionInput, VersionPartitionInput } from "@/lib/versions/input";
 import { firstOverlap } from "@/lib/versions/overlap";
 import { curveExtremes, lmsPartitionDays, type LmsEstimateDocument } from "@/lib/studies/age-curves";
+import type { IndirectEstimateDocument } from "@/lib/studies/indirect-estimates";
 import { lmsModelSchema, type LmsModel } from "@/lib/stats/lms-model";
 import { adoptedScoringModel, publicModel, scoringModelFor, ScoringModelError, type PartitionMethod } from "@/lib/versions/scoring-model";
 import type { Database, Executor } from "../client";
@@ -23,12 +24,14 @@ import {
   studies,
   users,
   type AdoptionCheck,
+  type Estimate,
   type IntervalVersion,
   type Signature,
 } from "../schema";
 import { acceptedAdoptionCheckForDraft } from "./adoption-checks";
 import { recordAuditEvent, type Actor } from "./audit";
 import { isLmsEstimate } from "./age-curve-estimates";
+import { isIndirectEstimate } from "./indirect-estimates";
 import { valuesOfEstimate } from "./estimates";
 
 /** Attempts at numbering a new version when another took the same number at the same moment. */
@@ -62,7 +65,7 @@ interface ResolvedPartition {
   high: number | null;
   lowCi: [number, number] | null;
   highCi: [number, number] | null;
-  method: PartitionMethod | "adopted" | "lms";
+  method: PartitionMethod | "adopted" | "lms" | "indirect";
   n: number;
   model: ScoringModel | LmsModel;
   estimateId: string | null;
@@ -115,6 +118,33 @@ function lmsPartition(estimateId: string, sex: "F" | "M" | null, document: LmsEs
 }
 
 /**
+ * A partition from an indirect estimate: the truncated maximum likelihood limits and their CIs,
+ * scored by the fitted power-normal (a Box-Cox gaussian whose 2.5th and 97.5th percentiles are
+ * the limits by construction), n the values estimated after cleaning.
+ */
+function indirectPartition(estimate: Estimate, path: string): ResolvedPartition {
+  const document = estimate.document as unknown as IndirectEstimateDocument;
+  if (document.lower === null || document.upper === null || document.model === null) {
+    throw invalid(`${path}.method`, `${path}.method: the indirect estimate ${estimate.id} could not place both limits; estimate again with other cleaning steps.`);
+  }
+  const scope = partitionOut(estimate);
+  return {
+    scope,
+    sex: scope.sex,
+    ageFromDays: ageYearsToDays(scope.ageFrom),
+    ageToDays: ageYearsToDays(scope.ageTo),
+    low: document.lower,
+    high: document.upper,
+    lowCi: document.lowerCi,
+    highCi: document.upperCi,
+    method: "indirect",
+    n: document.n,
+    model: document.model as ScoringModel,
+    estimateId: estimate.id,
+  };
+}
+
+/**
  * Each requested partition from its estimate (which must belong to the study) and method (which
  * must have limits there): the limits, their CIs, n and the scoring model, the age band in days.
  * Refuses partitions that overlap.
@@ -132,6 +162,17 @@ async function resolvePartitions(
       .where(and(eq(estimates.id, request.estimate), eq(estimates.studyId, studyId)))
       .limit(1);
     if (!estimate) throw invalid(`${path}.estimate`, `${path}.estimate: there is no estimate with the id ${request.estimate} in the study ${studyId}.`);
+    const indirect = isIndirectEstimate(estimate);
+    if (request.method === "indirect" || indirect) {
+      if (request.method !== "indirect") {
+        throw invalid(`${path}.method`, `${path}.method: the estimate ${estimate.id} is an indirect estimate from routine results; its method is indirect.`);
+      }
+      if (!indirect) {
+        throw invalid(`${path}.method`, `${path}.method: the estimate ${estimate.id} is not an indirect estimate; choose the method it was made with.`);
+      }
+      resolved.push(indirectPartition(estimate, path));
+      continue;
+    }
     const lms = isLmsEstimate(estimate);
     if (request.method === "lms" || lms) {
       if (request.method !== "lms") {

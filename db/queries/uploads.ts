@@ -130,18 +130,23 @@ type PendingRow = [
   censoringInclusive: boolean | null,
   originalValue: number | null,
   originalUnit: string | null,
+  collectedAt?: string | null,
+  setting?: string | null,
+  /** The flags as JSON text (the column is jsonb). */
+  flags?: string | null,
 ];
 
 /** donor_results' columns that a commit fills from a pending row, in the tuple's order (study_id and upload_id come first). */
 const DONOR_RESULT_COLUMNS = [
   "row_number", "donor_code", "sex", "age_years", "age_days", "birth_date", "collected_on", "value",
-  "censoring_side", "censoring_inclusive", "original_value", "original_unit",
+  "censoring_side", "censoring_inclusive", "original_value", "original_unit", "collected_at", "setting", "flags",
 ] as const;
 
 function pendingRowOf(r: DonorRow): PendingRow {
   return [
     r.row, r.donorCode, r.sex, r.ageYears, r.ageDays, r.birthDate, r.collectedOn, r.value,
     r.censoring?.side ?? null, r.censoring?.inclusive ?? null, r.conversion?.value ?? null, r.conversion?.fromUnit ?? null,
+    r.collectedAt ?? null, r.setting ?? null, r.flags ? JSON.stringify(r.flags) : null,
   ];
 }
 
@@ -163,7 +168,8 @@ function* copyChunks(prefix: string, rows: readonly PendingRow[]): Generator<str
     let chunk = "";
     for (const row of rows.slice(start, start + COPY_CHUNK_ROWS)) {
       chunk += prefix;
-      for (let i = 0; i < row.length; i++) chunk += (i === 0 ? "" : "\t") + copyField(row[i]);
+      // Tuples kept before the routine columns existed are shorter: the rest are null.
+      for (let i = 0; i < DONOR_RESULT_COLUMNS.length; i++) chunk += (i === 0 ? "" : "\t") + copyField(row[i] ?? null);
       chunk += "\n";
     }
     yield chunk;
@@ -237,7 +243,7 @@ async function commitPendingRows(
     action: "upload.committed",
     entityType: "upload",
     entityId: uploadId,
-    summary: `Stored ${stored} donor results from ${upload.fileName} in the study "${study.title}"`,
+    summary: `Stored ${stored} ${study.kind === "indirect" ? "routine" : "donor"} results from ${upload.fileName} in the study "${study.title}"`,
     details: { studyId, stored, sha256: upload.sha256 },
   });
   step("finish");

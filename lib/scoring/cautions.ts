@@ -18,7 +18,8 @@ export type CautionCode =
   | "flag-only"
   | "limits-at-age"
   | "limit-undefined-at-age"
-  | "z-undefined";
+  | "z-undefined"
+  | "indirect-estimate";
 
 export interface Caution {
   code: CautionCode;
@@ -106,6 +107,19 @@ export const LIMITS_ONLY_CAUTION: Caution = {
     "This interval was adopted from an external source and verified locally; the laboratory holds " +
     "only its limits. The z-score and percentile come from those limits alone (the zlog method), " +
     "assuming the healthy values are log-normal between them, and are approximate.",
+};
+
+/**
+ * An interval estimated indirectly from the laboratory's routine patient results (truncated
+ * maximum likelihood): the reference population was separated statistically, not screened.
+ */
+export const INDIRECT_ESTIMATE_CAUTION: Caution = {
+  code: "indirect-estimate",
+  text:
+    "This interval was estimated indirectly, from the laboratory's routine patient results with the " +
+    "diseased part separated statistically (truncated maximum likelihood), not from screened healthy " +
+    "donors. The z-score and percentile place the value on that fitted non-diseased distribution and " +
+    "are less certain than those of a direct study.",
 };
 
 /** A one-sided interval: a flag and no z or percentile. */
@@ -206,6 +220,7 @@ export const CAUTION_TEXTS: Readonly<Record<CautionCode, string>> = {
     "No age or sex was given, so the combined or default interval was used; an age- or sex-specific interval, where the laboratory has one, may differ.",
   "limits-only": LIMITS_ONLY_CAUTION.text,
   "flag-only": FLAG_ONLY_CAUTION.text,
+  "indirect-estimate": INDIRECT_ESTIMATE_CAUTION.text,
   "limits-at-age":
     "The limits are those of the patient's exact age on the laboratory's continuous age curves (LMS method): they change smoothly with age, so the same value may be judged differently a few months earlier or later. Check that the age is right.",
   "limit-undefined-at-age":

@@ -16,6 +16,8 @@ export const gaussianModelSchema = z
     lambda: finite.optional(),
     mean: finite,
     sd: finite.refine((v) => v > 0, "sd must be positive"),
+    /** "indirect": the fitted non-diseased part of routine results (an indirect study), which scoring cautions about. */
+    source: z.literal("indirect").optional(),
   })
   .refine((m) => m.transform !== "box-cox" || m.lambda !== undefined, {
     message: "a box-cox model needs lambda",

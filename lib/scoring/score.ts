@@ -10,6 +10,7 @@ import {
   limitsAtAgeCaution,
   limitUndefinedAtAgeCaution,
   LIMITS_ONLY_CAUTION,
+  INDIRECT_ESTIMATE_CAUTION,
   outsideReferenceDataCaution,
   partitionCaution,
   REVIEW_OVERDUE_CAUTION,
@@ -295,6 +296,7 @@ export function scoreValue(input: ScoreInput, scorer?: (x: number) => ModelScore
   } else if (model.kind === "gaussian" && Math.abs(s.z) > dataReach(partition.n)) {
     cautions.push(tailExtrapolatedCaution(s.z, partition.n));
   }
+  if (model.kind === "gaussian" && model.source === "indirect") cautions.push(INDIRECT_ESTIMATE_CAUTION);
   if (censored) {
     // "<c": the true value is below c, so its percentile is below the one computed at c.
     if (model.kind !== "limits") percentileBound = censored === "<" ? "below" : "above";

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { OUTLIER_OPTIONS, TRANSFORM_OPTIONS, type OutlierOption, type TransformOption } from "@/lib/stats/estimate";
 import { asksForLms, lmsEstimateBody, type LmsEstimateInput } from "./age-curves";
+import { asksForIndirect, indirectEstimateBody, type IndirectEstimateInput } from "./indirect-estimates";
 import { studyIdParams } from "./input";
 import { partitionLabel as labelOf, partitionSchema, type Partition } from "./partitions";
 
@@ -52,22 +53,27 @@ export type CreateEstimateInput = z.output<typeof createEstimateBody>;
 
 /**
  * The body of POST /api/v1/studies/{id}/estimates as the route parses it: an LMS fit when it names
- * `method: "lms"` (age-curve studies, lib/studies/age-curves.ts), otherwise a partition's
- * estimate; each checked by its own strict schema, so the messages are that schema's.
+ * `method: "lms"` (age-curve studies, lib/studies/age-curves.ts), an indirect estimate when it
+ * names `method: "indirect"` (indirect studies, lib/studies/indirect-estimates.ts), otherwise a
+ * partition's estimate; each checked by its own strict schema, so the messages are that schema's.
  */
 export const estimateRequestBody = z.unknown().transform((raw, ctx): EstimateRequest => {
-  const lms = asksForLms(raw);
-  const parsed = lms ? lmsEstimateBody.safeParse(raw) : createEstimateBody.safeParse(raw);
+  const kind = asksForLms(raw) ? "lms" : asksForIndirect(raw) ? "indirect" : "direct";
+  const schema = kind === "lms" ? lmsEstimateBody : kind === "indirect" ? indirectEstimateBody : createEstimateBody;
+  const parsed = schema.safeParse(raw);
   if (!parsed.success) {
     for (const issue of parsed.error.issues) ctx.addIssue({ code: "custom", message: issue.message, path: issue.path, input: raw });
     return z.NEVER;
   }
-  return lms ? { kind: "lms", input: parsed.data as LmsEstimateInput } : { kind: "direct", input: parsed.data as CreateEstimateInput };
+  return { kind, input: parsed.data } as EstimateRequest;
 });
 
-export type EstimateRequest = { kind: "lms"; input: LmsEstimateInput } | { kind: "direct"; input: CreateEstimateInput };
+export type EstimateRequest =
+  | { kind: "lms"; input: LmsEstimateInput }
+  | { kind: "indirect"; input: IndirectEstimateInput }
+  | { kind: "direct"; input: CreateEstimateInput };
 
-/** What the API document shows for that body: one of the two. */
-export const estimateRequestDocBody = z.union([createEstimateBody, lmsEstimateBody]);
+/** What the API document shows for that body: one of the three. */
+export const estimateRequestDocBody = z.union([createEstimateBody, lmsEstimateBody, indirectEstimateBody]);
 
 export const estimateIdParams = studyIdParams.extend({ estimateId: z.uuid("The estimate id must be a UUID.") });

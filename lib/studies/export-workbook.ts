@@ -8,6 +8,7 @@
  */
 import type { ReferenceIntervalEstimate } from "@/lib/stats/estimate";
 import type { LmsCurvesDocument } from "@/lib/stats/lms-curves";
+import type { IndirectEstimateDocument } from "./indirect-estimates";
 import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWriter } from "@/lib/xlsx/streamed-workbook";
 import { partitionLabel, partitionOut } from "./estimate-input";
 
@@ -173,6 +174,16 @@ export function estimatesSheet(workbook: WorkbookWriter, data: Pick<StudyExportD
     const doc = e.document as unknown as ReferenceIntervalEstimate;
     const engine = doc.provenance?.engine;
     const engineText = engine ? `${engine.name} ${engine.version}${engine.commit ? ` ${engine.commit}` : ""}${engine.uncommittedChanges ? " (uncommitted changes)" : ""}` : null;
+    if (e.options.method === "indirect") {
+      // One row here; the cleaning steps, the fit and the second opinion in "Indirect estimates".
+      const d = e.document as unknown as IndirectEstimateDocument;
+      addRow(sheet, [
+        e.id, e.createdAt, partitionLabel(partitionOut(e)), e.sex, e.ageFrom, e.ageTo, null, null, e.seed, e.n, "indirect", null,
+        num(d.lower), num(d.lowerCi?.[0]), num(d.lowerCi?.[1]), num(d.upper), num(d.upperCi?.[0]), num(d.upperCi?.[1]),
+        d.lambda === 0 ? "ln" : "box-cox", num(d.lambda), e.exclusionIds.length, e.uploadHashes.join(" "), engineText, (d.warnings ?? []).join(" "),
+      ]);
+      continue;
+    }
     if (e.options.method === "lms") {
       // LMS age curves have no fixed limits: one row here, the curves at their ages in "Age curves".
       addRow(sheet, [
@@ -194,6 +205,52 @@ export function estimatesSheet(workbook: WorkbookWriter, data: Pick<StudyExportD
         (doc.warnings ?? []).join(" "),
       ]);
     }
+  }
+  sheet.commit();
+}
+
+/** The method an indirect estimate names in the dossier. */
+export const INDIRECT_METHOD_NAME =
+  "Indirect: truncated maximum likelihood on a power-normal (Box-Cox) model of the non-diseased results (Arzideh et al., Clin Chem Lab Med 2007; J Lab Med 2009), after the IFCC's data cleaning (Jones et al., Clin Chem Lab Med 2019); 90% CIs by a seeded percentile bootstrap; Bhattacharya's procedure as a second opinion";
+
+/**
+ * The indirect estimates, each as a block of rows: the method, the path from the study's routine
+ * results to the values estimated (each cleaning step with the results it removed), the fit, the
+ * limits with their CIs, Bhattacharya's second opinion, the settings behind the values and the
+ * advice (lib/studies/indirect-estimates.ts's document).
+ */
+export function indirectSheet(workbook: WorkbookWriter, data: Pick<StudyExportData, "estimates">, name = "Indirect estimates"): void {
+  const sheet = tableSheet(workbook, name, ["Estimate", "Section", "Item", "Value", "Removed", "Remaining"]);
+  for (const e of data.estimates) {
+    if (e.options.method !== "indirect") continue;
+    const d = e.document as unknown as IndirectEstimateDocument;
+    const row = (section: string, item: string, value: CellValue, removed: CellValue = null, remaining: CellValue = null) =>
+      addRow(sheet, [e.id, section, item, value, removed, remaining]);
+    row("Method", "Method", INDIRECT_METHOD_NAME);
+    row("Method", "Partition", partitionLabel(partitionOut(e)));
+    row("Method", "Seed", e.seed);
+    row("Cleaning", "Routine results in the study", d.cleaning.results, null, d.cleaning.results);
+    row("Cleaning", "Exclusions in effect (by hand)", d.cleaning.excluded, d.cleaning.excluded, d.cleaning.results - d.cleaning.excluded);
+    for (const step of d.cleaning.steps) row("Cleaning", `${step.step}: ${step.description}`, step.before, step.removed, step.remaining);
+    row("Fit", "Values estimated (n)", d.n);
+    row("Fit", "Box-Cox lambda", num(d.lambda));
+    row("Fit", "Mean on the Box-Cox scale (mu)", num(d.mu));
+    row("Fit", "SD on the Box-Cox scale (sigma)", num(d.sigma));
+    row("Fit", "Non-diseased fraction", num(d.fraction));
+    row("Fit", "Truncation interval, lower end", num(d.truncation[0]));
+    row("Fit", "Truncation interval, upper end", num(d.truncation[1]));
+    row("Fit", `Chi-square (${d.df} df)`, num(d.chiSquare));
+    row("Fit", "p", num(d.pValue));
+    row("Fit", "Passed the fit and plausibility criterion", d.accepted ? "yes" : "no");
+    row("Limits", "Lower limit", num(d.lower));
+    row("Limits", "Lower limit, 90% CI", d.lowerCi ? `${d.lowerCi[0]} to ${d.lowerCi[1]}` : null);
+    row("Limits", "Upper limit", num(d.upper));
+    row("Limits", "Upper limit, 90% CI", d.upperCi ? `${d.upperCi[0]} to ${d.upperCi[1]}` : null);
+    row("Limits", "Bootstrap replicates (used)", `${d.bootstrap.replicates} (${d.bootstrap.used})`);
+    row("Second opinion", "Bhattacharya lower limit", num(d.secondOpinion.lower));
+    row("Second opinion", "Bhattacharya upper limit", num(d.secondOpinion.upper));
+    for (const share of d.settings.shares) row("Settings", share.setting, share.count, null, num(share.share));
+    for (const line of d.advice) row("Advice", "", line);
   }
   sheet.commit();
 }
@@ -227,5 +284,6 @@ export async function studyWorkbook(data: StudyExportData): Promise<Buffer> {
     partitionsSheet(workbook, data);
     estimatesSheet(workbook, data);
     if (data.estimates.some((e) => e.options.method === "lms")) ageCurvesSheet(workbook, data);
+    if (data.estimates.some((e) => e.options.method === "indirect")) indirectSheet(workbook, data);
   });
 }

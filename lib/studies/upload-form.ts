@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { AppError, type ErrorCode } from "@/lib/api/errors";
-import { TEMPLATE_COLUMNS, UPLOAD_TOO_LARGE_MESSAGE, type ColumnMapping, type UploadError } from "@/lib/uploads";
+import { ROUTINE_COLUMNS, TEMPLATE_COLUMNS, UPLOAD_COLUMNS, UPLOAD_TOO_LARGE_MESSAGE, type ColumnMapping, type UploadError } from "@/lib/uploads";
 
 /** The multipart request's size limit: the 20 MB file plus room for the other fields and the boundaries. */
 export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
@@ -11,13 +11,15 @@ export const UPLOAD_REQUEST_MAX_BYTES = 20 * 1024 * 1024 + 256 * 1024;
  */
 export const UPLOAD_MULTIPART = { maxBytes: UPLOAD_REQUEST_MAX_BYTES, tooLarge: UPLOAD_TOO_LARGE_MESSAGE };
 
-const mappingSchema = z.partialRecord(z.enum(TEMPLATE_COLUMNS), z.string().trim().min(1).max(200));
+const mappingSchema = z.partialRecord(z.enum(UPLOAD_COLUMNS), z.string().trim().min(1).max(200));
 
 /** The query of GET /api/v1/uploads/template: the format, and the analyte whose unit the example row takes. */
 export const templateQuery = z
   .object({
     format: z.enum(["csv", "xlsx"], "format is csv or xlsx."),
     analyte: z.string().trim().min(1).max(16).optional(),
+    /** `routine`: the routine-results template of an indirect study; default the healthy-donor one. */
+    kind: z.enum(["donors", "routine"], "kind is donors or routine.").optional(),
   })
   .strict();
 
@@ -37,7 +39,10 @@ export const uploadFormSchema = z.object({
   mapping: z
     .string()
     .optional()
-    .meta({ description: `JSON object from template columns (${TEMPLATE_COLUMNS.join(", ")}) to the file's headers`, example: '{"value":"Result"}' }),
+    .meta({
+      description: `JSON object from template columns (${TEMPLATE_COLUMNS.join(", ")}; for an indirect study ${ROUTINE_COLUMNS.join(", ")}) to the file's headers`,
+      example: '{"value":"Result"}',
+    }),
   decimalComma: z.enum(["true", "false"]).optional().meta({ description: 'Whether numbers are written with a decimal comma ("4,2"); default false' }),
   sheet: z.string().optional().meta({ description: "The XLSX sheet to read; default the first" }),
 });
@@ -68,7 +73,7 @@ export function readUploadForm(form: FormData): UploadForm {
     }
     const result = mappingSchema.safeParse(parsed);
     if (!result.success) {
-      throw invalid("mapping", `The mapping must be a JSON object from template columns (${TEMPLATE_COLUMNS.join(", ")}) to the file's headers.`);
+      throw invalid("mapping", `The mapping must be a JSON object from template columns (${UPLOAD_COLUMNS.join(", ")}) to the file's headers.`);
     }
     mapping = result.data;
   }

@@ -1,12 +1,26 @@
 /**
  * The validation report of an upload: every data row checked, before anything is stored.
  */
-import { EXAMPLE_DONOR_CODE, type Cell, type ColumnMapping, type TemplateColumn } from "./columns";
+import { EXAMPLE_DONOR_CODE, ROUTINE_COLUMNS, TEMPLATE_COLUMNS, type Cell, type ColumnMapping, type UploadColumn } from "./columns";
 import { UploadError } from "./errors";
 import { collectBytes, sniffFile, type UploadInput } from "./input";
 import { resolveColumns, type ResolvedMapping } from "./mapping";
 import { readTable, type TableInfo } from "./table";
-import { cellText, exactAgeYears, quoted, readDateCell, readNumberText, readSexCell, readValueCell, type DayOut, type ValueOut } from "./values";
+import {
+  cellText,
+  exactAgeYears,
+  MAX_SETTING_LENGTH,
+  quoted,
+  readDateCell,
+  readDateTimeCell,
+  readFlagsCell,
+  readNumberText,
+  readSexCell,
+  readValueCell,
+  type DateTimeOut,
+  type DayOut,
+  type ValueOut,
+} from "./values";
 
 /** More data rows than this and the file is refused whole. */
 export const MAX_DATA_ROWS = 200_000;
@@ -46,6 +60,11 @@ export interface CheckOptions {
   convertUnit?: ConvertUnit;
   /** Called every 2,000 rows or so, and once at the end. */
   onProgress?: (progress: UploadProgress) => void;
+  /**
+   * Read routine results (an indirect study's file, ROUTINE_COLUMNS): a patient key that may
+   * repeat, the collection date and time, setting and flags. Default: healthy-donor results.
+   */
+  routine?: boolean;
 }
 
 export type CensoringSide = "below" | "above";
@@ -72,11 +91,15 @@ export interface DonorRow {
   unit: string;
   /** When the file gave another unit: that unit and the value (or limit) as written. */
   conversion: { fromUnit: string; value: number } | null;
+  /** Routine results only (else null): collection date and time "YYYY-MM-DDTHH:MM:SS", setting, flags. */
+  collectedAt?: string | null;
+  setting?: string | null;
+  flags?: string[] | null;
 }
 
 export interface UploadProblem {
   row: number;
-  column: TemplateColumn;
+  column: UploadColumn;
   message: string;
 }
 
@@ -131,7 +154,11 @@ export function emptyRefusal(format: "csv" | "xlsx", sheet: string | undefined):
  * Complexity O(rows × columns).
  */
 export async function checkUpload(input: UploadInput, options: CheckOptions): Promise<ValidationReport> {
-  const { unit: analyteUnit, decimalComma = false, convertUnit, onProgress } = options;
+  const { unit: analyteUnit, decimalComma = false, convertUnit, onProgress, routine = false } = options;
+  const columns = routine ? ROUTINE_COLUMNS : TEMPLATE_COLUMNS;
+  // The column that names the person, and the one that dates the result.
+  const codeColumn = routine ? "patient_key" : "donor_code";
+  const dateColumn = routine ? "collected_at" : "collected_on";
   const bytes = await collectBytes(input);
   const file = sniffFile(bytes);
   const totalBytes = bytes.byteLength;
@@ -140,7 +167,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
   const report = () => onProgress?.({ rowsChecked, bytesRead, totalBytes });
 
   let info: TableInfo | null = null;
-  let index: Record<TemplateColumn, number> | null = null;
+  let index: Record<UploadColumn, number> | null = null;
   let mapping: ResolvedMapping | null = null;
   const problems: UploadProblem[] = [];
   let problemsOmitted = 0;
@@ -150,7 +177,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
   const rowsOfCode = new Map<string, number | number[]>();
   let total = 0;
 
-  const problem = (row: number, column: TemplateColumn, message: string) => {
+  const problem = (row: number, column: UploadColumn, message: string) => {
     invalidRows.add(row);
     if (problems.length < MAX_LISTED_PROBLEMS) problems.push({ row, column, message });
     else problemsOmitted++;
@@ -158,7 +185,7 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
   // The row being checked, and whether it has a problem yet (one closure for all rows).
   let currentRow = 0;
   let ok = true;
-  const fail = (column: TemplateColumn, message: string) => {
+  const fail = (column: UploadColumn, message: string) => {
     ok = false;
     problem(currentRow, column, message);
   };
@@ -166,14 +193,14 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
   const value: ValueOut = { value: 0, censor: 0 };
   const num = { value: 0 };
   const birth: DayOut = { day: 0, y: 0, m: 0, d: 0, iso: "" };
-  const collected: DayOut = { day: 0, y: 0, m: 0, d: 0, iso: "" };
+  const collected: DateTimeOut = { day: 0, y: 0, m: 0, d: 0, iso: "", seconds: 0, isoDateTime: "" };
   const cell = (cells: readonly Cell[], i: number): Cell => (i === -1 ? null : cells[i]);
 
   const found = await readTable(file, options.sheet, {
     onHeader: (table) => {
       info = table;
       try {
-        ({ index, mapping } = resolveColumns(table.headers, options.mapping));
+        ({ index, mapping } = resolveColumns(table.headers, options.mapping, columns));
       } catch (error) {
         throw withSheetAdvice(error, table, options.sheet);
       }
@@ -190,14 +217,14 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
       currentRow = row;
       ok = true;
 
-      const donorCode = cellText(cell(cells, ix.donor_code));
-      if (donorCode === "") fail("donor_code", "donor_code is missing");
+      const donorCode = cellText(cell(cells, ix[codeColumn]));
+      if (donorCode === "") fail(codeColumn, `${codeColumn} is missing`);
       else if (donorCode.length > MAX_DONOR_CODE_LENGTH) {
-        fail("donor_code", `donor_code is ${donorCode.length} characters long; at most ${MAX_DONOR_CODE_LENGTH} are allowed`);
+        fail(codeColumn, `${codeColumn} is ${donorCode.length} characters long; at most ${MAX_DONOR_CODE_LENGTH} are allowed`);
       }
       else if (donorCode.length === EXAMPLE_DONOR_CODE.length && donorCode.toUpperCase() === EXAMPLE_DONOR_CODE) {
-        fail("donor_code", "this is the template's example row; delete it before uploading");
-      } else {
+        fail(codeColumn, "this is the template's example row; delete it before uploading");
+      } else if (!routine) {
         const seen = rowsOfCode.get(donorCode);
         if (seen === undefined) rowsOfCode.set(donorCode, row);
         else if (typeof seen === "number") rowsOfCode.set(donorCode, [seen, row]);
@@ -207,9 +234,9 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
       const sex = readSexCell(cell(cells, ix.sex));
       if (sex !== "F" && sex !== "M") fail("sex", sex);
 
-      // Age: from birth_date and collected_on when both are given, else from age_years.
+      // Age: from birth_date and the collection date when both are given, else from age_years.
       const birthText = cellText(cell(cells, ix.birth_date));
-      const collectedText = cellText(cell(cells, ix.collected_on));
+      const collectedText = cellText(cell(cells, ix[dateColumn]));
       let birthOk = false;
       let collectedOk = false;
       if (birthText !== "") {
@@ -218,9 +245,13 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
         else birthOk = true;
       }
       if (collectedText !== "") {
-        const m = readDateCell(cell(cells, ix.collected_on), "collected_on", collected);
-        if (m !== null) fail("collected_on", m);
+        const m = routine
+          ? readDateTimeCell(cell(cells, ix.collected_at), "collected_at", collected)
+          : readDateCell(cell(cells, ix.collected_on), "collected_on", collected);
+        if (m !== null) fail(dateColumn, m);
         else collectedOk = true;
+      } else if (routine) {
+        fail("collected_at", "collected_at is missing; the collection date and time order a patient's results");
       }
       let ageYears = NaN;
       let ageDays = NaN;
@@ -230,11 +261,11 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
         ageFrom = "dates";
         if (birthOk && collectedOk) {
           if (birth.day > collected.day) {
-            fail("birth_date", `birth_date ${birth.iso} is after collected_on ${collected.iso}`);
+            fail("birth_date", `birth_date ${birth.iso} is after ${dateColumn} ${collected.iso}`);
           } else {
             ageDays = collected.day - birth.day;
             ageYears = exactAgeYears(birth, collected);
-            if (ageYears > MAX_AGE_YEARS) fail("birth_date", `the age from birth_date and collected_on is over ${MAX_AGE_YEARS} years`);
+            if (ageYears > MAX_AGE_YEARS) fail("birth_date", `the age from birth_date and ${dateColumn} is over ${MAX_AGE_YEARS} years`);
           }
         }
       } else if (ageText !== "") {
@@ -251,9 +282,21 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
           ageDays = Math.round(num.value * DAYS_PER_YEAR);
         }
       } else if (birthText !== "") {
-        fail("collected_on", "collected_on is missing; the age is computed from birth_date and collected_on");
+        if (!routine) fail("collected_on", "collected_on is missing; the age is computed from birth_date and collected_on");
       } else {
-        fail("age_years", "age is missing: give age_years, or birth_date and collected_on");
+        fail("age_years", `age is missing: give age_years, or birth_date and ${dateColumn}`);
+      }
+
+      let setting: string | null = null;
+      let flags: string[] | null = null;
+      if (routine) {
+        setting = cellText(cell(cells, ix.setting)) || null;
+        if (setting !== null && setting.length > MAX_SETTING_LENGTH) {
+          fail("setting", `setting is ${setting.length} characters long; at most ${MAX_SETTING_LENGTH} are allowed`);
+        }
+        const read = readFlagsCell(cell(cells, ix.flags), "flags");
+        if (typeof read === "string") fail("flags", read);
+        else flags = read;
       }
 
       let conversion: DonorRow["conversion"] = null;
@@ -291,6 +334,9 @@ export async function checkUpload(input: UploadInput, options: CheckOptions): Pr
           ageFrom,
           birthDate: birthOk ? birth.iso : null,
           collectedOn: collectedOk ? collected.iso : null,
+          collectedAt: routine && collectedOk ? collected.isoDateTime : null,
+          setting,
+          flags: routine ? flags : null,
           value: value.value,
           censoring: CENSORING[value.censor],
           unit: analyteUnit,

@@ -5,7 +5,17 @@
  * (node:stream, Buffer). A file refused whole throws {@link UploadError} (code → HTTP status in
  * UPLOAD_ERROR_STATUS); row problems are listed in the report.
  */
-export { TEMPLATE_COLUMNS, EXAMPLE_DONOR_CODE, type TemplateColumn, type ColumnMapping } from "./columns";
+export {
+  TEMPLATE_COLUMNS,
+  ROUTINE_COLUMNS,
+  UPLOAD_COLUMNS,
+  EXAMPLE_DONOR_CODE,
+  type TemplateColumn,
+  type RoutineColumn,
+  type UploadColumn,
+  type ColumnSet,
+  type ColumnMapping,
+} from "./columns";
 export { UploadError, UPLOAD_ERROR_STATUS, type UploadErrorCode, type UploadErrorDetails } from "./errors";
 export { MAX_UPLOAD_BYTES, TOO_LARGE as UPLOAD_TOO_LARGE_MESSAGE, type UploadInput } from "./input";
 export type { ResolvedMapping } from "./mapping";

@@ -4,17 +4,22 @@
  * error's details, a mapping that names an unknown template column or a header the file lacks,
  * and a result without donor_code, sex, value or any complete age form.
  */
-import { TEMPLATE_COLUMNS, type ColumnMapping, type TemplateColumn } from "./columns";
+import { ROUTINE_COLUMNS, TEMPLATE_COLUMNS, UPLOAD_COLUMNS, type ColumnMapping, type ColumnSet, type UploadColumn } from "./columns";
 import { UploadError } from "./errors";
 import { quoted } from "./values";
 
-/** For each template column, the file's header that holds it, or null. */
-export type ResolvedMapping = Record<TemplateColumn, string | null>;
+/** For each column of the set read, the file's header that holds it, or null. */
+export type ResolvedMapping = Partial<Record<UploadColumn, string | null>>;
 
 export interface ResolvedColumns {
   mapping: ResolvedMapping;
-  /** Index into a row's cells, −1 when unmapped. */
-  index: Record<TemplateColumn, number>;
+  /** Index into a row's cells for every upload column, −1 when unmapped or not in the set read. */
+  index: Record<UploadColumn, number>;
+}
+
+/** Whether the set is the routine-results one (indirect studies). */
+export function isRoutineSet(columns: ColumnSet): boolean {
+  return columns === ROUTINE_COLUMNS || columns.includes("patient_key");
 }
 
 /** Headers listed in a message; a file with more is summarised ("… and 480 more"). */
@@ -30,14 +35,14 @@ function list(items: readonly string[]): string {
  * own names) without requiring any column: refuses only a mapping that names an unknown template
  * column, a header the file lacks, or one header for two columns.
  */
-export function matchColumns(headers: readonly string[], mapping: ColumnMapping = {}): ResolvedColumns {
+export function matchColumns(headers: readonly string[], mapping: ColumnMapping = {}, columns: ColumnSet = TEMPLATE_COLUMNS): ResolvedColumns {
   const details = { headers: [...headers] };
-  const known = new Set<string>(TEMPLATE_COLUMNS);
+  const known = new Set<string>(columns);
   for (const key of Object.keys(mapping)) {
     if (!known.has(key)) {
       throw new UploadError(
         "mapping",
-        `the mapping names ${quoted(key)}, which is not a template column (${TEMPLATE_COLUMNS.join(", ")})`,
+        `the mapping names ${quoted(key)}, which is not a template column (${columns.join(", ")})`,
         details,
       );
     }
@@ -48,10 +53,10 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
     const lower = header.trim().toLowerCase();
     return headers.findIndex((h) => h.toLowerCase() === lower);
   };
-  const index = {} as Record<TemplateColumn, number>;
+  const index = Object.fromEntries(UPLOAD_COLUMNS.map((c) => [c, -1])) as Record<UploadColumn, number>;
   const resolved = {} as ResolvedMapping;
-  const claimedBy = new Map<number, TemplateColumn>();
-  for (const column of TEMPLATE_COLUMNS) {
+  const claimedBy = new Map<number, UploadColumn>();
+  for (const column of columns) {
     const wanted = mapping[column];
     let i: number;
     if (wanted !== undefined && wanted !== null && wanted !== "") {
@@ -77,7 +82,7 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
     resolved[column] = i === -1 ? null : headers[i];
   }
   // A header claimed by its own name before the mapping gave it to a later column.
-  for (const column of TEMPLATE_COLUMNS) {
+  for (const column of columns) {
     const i = index[column];
     if (i !== -1 && claimedBy.get(i) !== column) {
       index[column] = -1;
@@ -86,7 +91,7 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
   }
   // A header read for a column must name one column of the file: with two "value" columns,
   // reading the first would be a silent guess.
-  for (const column of TEMPLATE_COLUMNS) {
+  for (const column of columns) {
     const i = index[column];
     if (i === -1) continue;
     const name = headers[i].trim().toLowerCase();
@@ -104,11 +109,15 @@ export function matchColumns(headers: readonly string[], mapping: ColumnMapping 
 
 /**
  * Why the matched columns cannot be read as donor results (donor_code, sex, value or every
- * complete age form unmapped), as the refusal that checking would throw; null when complete.
+ * complete age form unmapped), or as routine results (patient_key, sex, value, collected_at, or
+ * both age_years and birth_date unmapped), as the refusal that checking would throw; null when
+ * complete.
  */
-export function incompleteMapping(headers: readonly string[], index: ResolvedColumns["index"]): UploadError | null {
+export function incompleteMapping(headers: readonly string[], index: ResolvedColumns["index"], columns: ColumnSet = TEMPLATE_COLUMNS): UploadError | null {
   const details = { headers: [...headers] };
-  const missing = (["donor_code", "sex", "value"] as const).filter((c) => index[c] === -1);
+  const routine = isRoutineSet(columns);
+  const required = routine ? (["patient_key", "sex", "collected_at", "value"] as const) : (["donor_code", "sex", "value"] as const);
+  const missing = required.filter((c) => index[c] === -1);
   if (missing.length > 0) {
     return new UploadError(
       "mapping",
@@ -116,7 +125,14 @@ export function incompleteMapping(headers: readonly string[], index: ResolvedCol
       details,
     );
   }
-  if (index.age_years === -1 && (index.birth_date === -1 || index.collected_on === -1)) {
+  if (routine && index.age_years === -1 && index.birth_date === -1) {
+    return new UploadError(
+      "mapping",
+      `no column of the file is mapped to the age; map age_years, or birth_date (the age is then taken at collected_at) (its headers: ${list(headers)})`,
+      details,
+    );
+  }
+  if (!routine && index.age_years === -1 && (index.birth_date === -1 || index.collected_on === -1)) {
     return new UploadError(
       "mapping",
       `no column of the file is mapped to the age; map age_years, or both birth_date and collected_on (its headers: ${list(headers)})`,
@@ -126,10 +142,10 @@ export function incompleteMapping(headers: readonly string[], index: ResolvedCol
   return null;
 }
 
-/** {@link matchColumns}, refusing a result that cannot be read as donor results. */
-export function resolveColumns(headers: readonly string[], mapping: ColumnMapping = {}): ResolvedColumns {
-  const resolved = matchColumns(headers, mapping);
-  const refusal = incompleteMapping(headers, resolved.index);
+/** {@link matchColumns}, refusing a result that cannot be read as the set's results. */
+export function resolveColumns(headers: readonly string[], mapping: ColumnMapping = {}, columns: ColumnSet = TEMPLATE_COLUMNS): ResolvedColumns {
+  const resolved = matchColumns(headers, mapping, columns);
+  const refusal = incompleteMapping(headers, resolved.index, columns);
   if (refusal) throw refusal;
   return resolved;
 }

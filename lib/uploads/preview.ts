@@ -2,7 +2,7 @@
  * The first rows of an upload with the mapping applied, for the page where the scientist checks
  * the columns before anything is checked or stored. Cells are shown as text, unchecked.
  */
-import { TEMPLATE_COLUMNS, type ColumnMapping, type TemplateColumn } from "./columns";
+import { TEMPLATE_COLUMNS, type ColumnMapping, type ColumnSet, type UploadColumn } from "./columns";
 import { collectBytes, sniffFile, type UploadInput } from "./input";
 import { incompleteMapping, matchColumns, type ResolvedColumns, type ResolvedMapping } from "./mapping";
 import { suggestMapping } from "./suggest";
@@ -16,6 +16,8 @@ export interface PreviewOptions {
   sheet?: string;
   /** How many data rows to return (default 20). */
   rows?: number;
+  /** The columns to read: the healthy-donor template's (default) or ROUTINE_COLUMNS. */
+  columns?: ColumnSet;
 }
 
 export interface UploadPreview {
@@ -27,7 +29,7 @@ export interface UploadPreview {
   /** The file's own headers, in file order. */
   headers: string[];
   mapping: ResolvedMapping;
-  rows: { row: number; cells: Record<TemplateColumn, string | null> }[];
+  rows: { row: number; cells: Partial<Record<UploadColumn, string | null>> }[];
 }
 
 export interface InspectOptions extends PreviewOptions {
@@ -53,6 +55,7 @@ export interface UploadInspection extends UploadPreview {
  */
 export async function inspectUpload(input: UploadInput, options: InspectOptions = {}): Promise<UploadInspection> {
   const limit = options.rows ?? 20;
+  const columns = options.columns ?? TEMPLATE_COLUMNS;
   const file = sniffFile(await collectBytes(input));
   let info: TableInfo | null = null;
   let resolved: ResolvedColumns | null = null;
@@ -62,14 +65,14 @@ export async function inspectUpload(input: UploadInput, options: InspectOptions 
   const found = await readTable(file, options.sheet, {
     onHeader: (table) => {
       info = table;
-      suggested = suggestMapping(table.headers);
-      resolved = matchColumns(table.headers, options.mapping ?? (options.suggest ? suggested : undefined));
+      suggested = suggestMapping(table.headers, columns);
+      resolved = matchColumns(table.headers, options.mapping ?? (options.suggest ? suggested : undefined), columns);
     },
     onRow: (cells, row) => {
       if (rows.length >= limit) return false;
       const { index } = resolved!;
-      const out = {} as Record<TemplateColumn, string | null>;
-      for (const column of TEMPLATE_COLUMNS) out[column] = index[column] === -1 ? null : cellText(cells[index[column]]);
+      const out: Partial<Record<UploadColumn, string | null>> = {};
+      for (const column of columns) out[column] = index[column] === -1 ? null : cellText(cells[index[column]]);
       rows.push({ row, cells: out });
       fileRows.push({ row, cells: info!.headers.map((_, i) => cellText(cells[i])) });
       return rows.length < limit;
@@ -88,8 +91,8 @@ export async function inspectUpload(input: UploadInput, options: InspectOptions 
     mapping: resolved!.mapping,
     rows,
     suggested,
-    matchesTemplate: TEMPLATE_COLUMNS.every((c) => lower.has(c)),
-    incomplete: incompleteMapping(table.headers, resolved!.index)?.message ?? null,
+    matchesTemplate: columns.every((c) => lower.has(c)),
+    incomplete: incompleteMapping(table.headers, resolved!.index, columns)?.message ?? null,
     fileRows,
   };
 }

@@ -209,3 +209,77 @@ export function readSexCell(cell: Cell): "F" | "M" | string {
   if (lower === "m" || lower === "male") return "M";
   return `sex ${quoted(text)} is not F, M, female or male`;
 }
+
+export interface DateTimeOut extends DayOut {
+  /** Seconds since midnight. */
+  seconds: number;
+  /** "YYYY-MM-DDTHH:MM:SS", local time as the laboratory system wrote it. */
+  isoDateTime: string;
+}
+
+const TIME_PATTERN = /^([01]\d|2[0-3]):([0-5]\d)(?::([0-5]\d)(?:\.\d{1,6})?)?$/;
+
+/**
+ * Reads a collection date and time: an XLSX date cell (its time of day kept), or ISO 8601 text
+ * `YYYY-MM-DD`, `YYYY-MM-DDTHH:MM[:SS]` or the same with a space for the T. A time zone is
+ * refused rather than converted: a laboratory system writes local time, and mixing zones in one
+ * file would reorder a patient's results silently. A date without a time counts as midnight.
+ * Returns an error message or null.
+ */
+export function readDateTimeCell(cell: Cell, column: string, out: DateTimeOut): string | null {
+  let seconds = 0;
+  if (cell instanceof Date) {
+    const ms = cell.getTime();
+    if (!Number.isFinite(ms)) return `${column} is not a valid date and time`;
+    const day = Math.floor(ms / 86_400_000);
+    setCivilOfDay(day, out);
+    seconds = Math.round((ms - day * 86_400_000) / 1000);
+    if (seconds >= 86_400) seconds = 86_399;
+  } else {
+    const text = cellText(cell);
+    if (typeof cell === "number") return `${column} ${text} is a number, not a date and time; write it as YYYY-MM-DDTHH:MM or format the cell as a date`;
+    const datePart = text.slice(0, 10);
+    const rest = text.slice(10);
+    const m = readDateCell(datePart, column, out);
+    if (m !== null || (rest !== "" && rest[0] !== "T" && rest[0] !== " ")) {
+      return `${column} ${quoted(text)} is not an ISO 8601 date and time (YYYY-MM-DD or YYYY-MM-DDTHH:MM[:SS], local time)`;
+    }
+    if (rest !== "") {
+      const t = TIME_PATTERN.exec(rest.slice(1));
+      if (t === null) {
+        return /[zZ]|[+-]\d\d:?\d\d$/.test(rest)
+          ? `${column} ${quoted(text)} has a time zone; write the local time of collection without one (YYYY-MM-DDTHH:MM[:SS])`
+          : `${column} ${quoted(text)} is not an ISO 8601 date and time (YYYY-MM-DD or YYYY-MM-DDTHH:MM[:SS], local time)`;
+      }
+      seconds = Number(t[1]) * 3600 + Number(t[2]) * 60 + Number(t[3] ?? 0);
+    }
+  }
+  out.seconds = seconds;
+  const hh = Math.floor(seconds / 3600);
+  const mm = Math.floor((seconds % 3600) / 60);
+  const ss = seconds % 60;
+  const two = (v: number) => (v < 10 ? `0${v}` : String(v));
+  out.isoDateTime = `${out.iso}T${two(hh)}:${two(mm)}:${two(ss)}`;
+  return null;
+}
+
+/** The longest setting kept with a routine result. */
+export const MAX_SETTING_LENGTH = 60;
+/** The most flags, and the longest flag, kept with a routine result. */
+export const MAX_FLAGS = 20;
+export const MAX_FLAG_LENGTH = 60;
+
+/**
+ * Reads a routine result's flags: none for an empty cell, else the cell split at semicolons or
+ * vertical bars (commas are CSV separators), trimmed, empty pieces dropped. Returns the flags or
+ * an error message.
+ */
+export function readFlagsCell(cell: Cell, column: string): string[] | string {
+  const text = cellText(cell);
+  if (text === "") return [];
+  const flags = text.split(/[;|]/).map((f) => f.trim()).filter((f) => f !== "");
+  if (flags.length > MAX_FLAGS) return `${column} has ${flags.length} flags; at most ${MAX_FLAGS} are kept`;
+  const long = flags.find((f) => f.length > MAX_FLAG_LENGTH);
+  if (long !== undefined) return `${column} holds a flag of ${long.length} characters; at most ${MAX_FLAG_LENGTH} are allowed`;
+  return flags;
+}

@@ -7,7 +7,7 @@
  */
 import { lmsModelOf, lmsRows, lmsScopeLabel, lmsTableAges } from "@/lib/scoring/lms-curves-view";
 import { lmsAt } from "@/lib/stats/lms-model";
-import { donorSheet, estimatesSheet, num, partitionsSheet, str, type StudyExportData } from "@/lib/studies/export-workbook";
+import { donorSheet, estimatesSheet, indirectSheet, num, partitionsSheet, str, type StudyExportData } from "@/lib/studies/export-workbook";
 import { addRow, streamedWorkbook, tableSheet, type CellValue, type WorkbookWriter } from "@/lib/xlsx/streamed-workbook";
 import { scopeLabel } from "./comparison";
 import { VERSION_STATE_LABELS } from "./state-machine";
@@ -208,15 +208,18 @@ function auditSheet(workbook: WorkbookWriter, data: DossierData): void {
 
 /** The dossier's bytes. */
 export async function dossierWorkbook(data: DossierData): Promise<Buffer> {
-  // LMS curves have no methods side by side: their estimates are shown in "Age curves" instead.
+  // LMS curves have no methods side by side: their estimates are shown in "Age curves" instead;
+  // indirect estimates have one row there and their cleaning and fit in "Indirect method".
   const estimateIds = new Set(data.version.partitions.filter((p) => p.method !== "lms").map((p) => p.estimateId));
   const estimates = data.study?.estimates.filter((e) => estimateIds.has(e.id)) ?? [];
+  const indirect = estimates.filter((e) => e.options.method === "indirect");
   return streamedWorkbook(data.exportedAt, (workbook) => {
     summarySheet(workbook, data);
     signaturesSheet(workbook, data);
     versionPartitionsSheet(workbook, data);
     ageCurvesSheet(workbook, data);
     estimatesSheet(workbook, { estimates }, "Methods");
+    if (indirect.length > 0) indirectSheet(workbook, { estimates: indirect }, "Indirect method");
     partitionsSheet(workbook, { assessments: data.study?.assessments ?? [] }, "Partition verdicts");
     if (data.donorLevel) {
       exclusionsSheet(workbook, data);

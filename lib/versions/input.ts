@@ -2,14 +2,17 @@ import { z } from "zod";
 import { analyteCodeSchema } from "@/lib/analytes/input";
 import { PARTITION_METHODS, VERSION_STATES as STATES } from "@/db/schema";
 
-/** The methods a version's partition may name: a direct estimate's, or "lms" for an age-curve study's fitted curves. */
-export const VERSION_PARTITION_METHODS = [...PARTITION_METHODS, "lms"] as const;
+/**
+ * The methods a version's partition may name: a direct estimate's, "lms" for an age-curve study's
+ * fitted curves, or "indirect" for an indirect study's truncated maximum likelihood estimate.
+ */
+export const VERSION_PARTITION_METHODS = [...PARTITION_METHODS, "lms", "indirect"] as const;
 
 /** One partition of a version: the estimate it takes its limits (or, for "lms", its curves) from and the method chosen. */
 export const versionPartitionInput = z
   .object({
     estimate: z.uuid("estimate is an estimate id (UUID)."),
-    method: z.enum(VERSION_PARTITION_METHODS, "method is nonparametric, parametric or robust (limits per partition), or lms (age curves)."),
+    method: z.enum(VERSION_PARTITION_METHODS, "method is nonparametric, parametric or robust (limits per partition), lms (age curves) or indirect (routine results)."),
   })
   .strict();
 

@@ -8,7 +8,7 @@ import { CAUTION_TEXTS, scoreValue, scoringPartitionSchema, type CautionCode } f
 const ALL_CODES: CautionCode[] = [
   "general", "tail-extrapolated", "outside-reference-data", "unit-converted", "value-censored",
   "review-overdue", "partition-chosen", "partition-default", "limits-only", "flag-only",
-  "limits-at-age", "limit-undefined-at-age", "z-undefined",
+  "limits-at-age", "limit-undefined-at-age", "z-undefined", "indirect-estimate",
 ];
 
 describe("CAUTION_TEXTS", () => {

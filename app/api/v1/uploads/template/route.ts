@@ -10,9 +10,9 @@ export const dynamic = "force-dynamic";
 const XLSX_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
 
 /**
- * The blank template for healthy-donor uploads, as CSV or XLSX. With `analyte` (a code), its
- * example row is in that analyte's unit; without, the example's unit is left empty (the study's
- * analyte's unit).
+ * The blank template for healthy-donor uploads, or with `kind=routine` for an indirect study's
+ * routine results, as CSV or XLSX. With `analyte` (a code), its example row is in that analyte's
+ * unit; without, the example's unit is left empty (the study's analyte's unit).
  */
 export const GET = apiRoute({ permission: "studies:write", query: templateQuery }, async ({ query }) => {
   let unit = "";
@@ -21,9 +21,10 @@ export const GET = apiRoute({ permission: "studies:write", query: templateQuery 
     if (!analyte) throw new AppError("invalid", `There is no analyte with the code ${query.analyte}.`);
     unit = analyte.unit;
   }
-  const name = `bellwether-donor-results${query.analyte ? `-${query.analyte}` : ""}.${query.format}`;
+  const routine = query.kind === "routine";
+  const name = `bellwether-${routine ? "routine" : "donor"}-results${query.analyte ? `-${query.analyte}` : ""}.${query.format}`;
   const headers = { "content-disposition": `attachment; filename="${name}"`, "cache-control": "no-store" };
-  if (query.format === "csv") return new Response(templateCsv({ unit }), { headers: { ...headers, "content-type": "text/csv; charset=utf-8" } });
-  const body = await templateXlsx({ unit });
+  if (query.format === "csv") return new Response(templateCsv({ unit, routine }), { headers: { ...headers, "content-type": "text/csv; charset=utf-8" } });
+  const body = await templateXlsx({ unit, routine });
   return new Response(new Uint8Array(body), { headers: { ...headers, "content-type": XLSX_TYPE } });
 });

@@ -40,6 +40,7 @@ async function checkAndKeep({ studyId, kind, analyte, options, bytes, info, acto
       sheet: options.sheet,
       convertUnit: (value, from, to) => convertUnit({ value, from, to, molarMass: analyte.molarMass }),
       onProgress,
+      routine: kind === "indirect",
     });
   } catch (err) {
     if (!(err instanceof UploadError)) throw err;
@@ -103,7 +104,8 @@ function progressStream(file: CheckedFile, instance: string): Response {
 }
 
 /**
- * Checks a file of healthy-donor results against the study's analyte and keeps it pending: the
+ * Checks a file of healthy-donor results (an indirect study: routine results, lib/uploads'
+ * ROUTINE_COLUMNS) against the study's analyte and keeps it pending: the
  * validation report comes back, no donor result is stored until the upload is committed. With
  * `Accept: application/x-ndjson` the checking's progress comes first (see progressStream).
  */

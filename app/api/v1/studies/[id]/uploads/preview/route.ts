@@ -6,7 +6,7 @@ import { AppError } from "@/lib/api/errors";
 import { apiRoute } from "@/lib/api/handler";
 import { studyIdParams } from "@/lib/studies/input";
 import { readUploadForm, UPLOAD_MULTIPART, uploadRefusal } from "@/lib/studies/upload-form";
-import { inspectUpload, UploadError } from "@/lib/uploads";
+import { inspectUpload, ROUTINE_COLUMNS, TEMPLATE_COLUMNS, UploadError } from "@/lib/uploads";
 
 export const dynamic = "force-dynamic";
 
@@ -28,7 +28,8 @@ export const POST = apiRoute(
     const sha256 = createHash("sha256").update(bytes).digest("hex");
     await assertStudyTakesFile(db(), { study, file: { name: file.name || "upload", sha256, sizeBytes: bytes.byteLength } });
     try {
-      const inspection = await inspectUpload(bytes, { mapping, sheet, suggest: true, rows: PREVIEW_ROWS });
+      const columns = study.kind === "indirect" ? ROUTINE_COLUMNS : TEMPLATE_COLUMNS;
+      const inspection = await inspectUpload(bytes, { mapping, sheet, suggest: true, rows: PREVIEW_ROWS, columns });
       return { fileName: file.name || "upload", sizeBytes: bytes.byteLength, ...inspection };
     } catch (err) {
       if (err instanceof UploadError) throw uploadRefusal(err);

@@ -1,5 +1,6 @@
 import { db } from "@/db/client";
 import { isLmsEstimate } from "@/db/queries/age-curve-estimates";
+import { isIndirectEstimate } from "@/db/queries/indirect-estimates";
 import { findStudy } from "@/db/queries/studies";
 import { estimateValues } from "@/db/queries/study-charts";
 import { AppError } from "@/lib/api/errors";
@@ -19,6 +20,9 @@ export const GET = apiRoute({ permission: "donors:read", params: estimateIdParam
   const { estimate, measured, censored } = await estimateValues(db(), { studyId: id, estimateId });
   if (isLmsEstimate(estimate)) {
     throw new AppError("conflict", `The estimate ${estimateId} holds LMS age curves, not limits: its chart and diagnostics are at …/estimates/${estimateId}/age-curves.`);
+  }
+  if (isIndirectEstimate(estimate)) {
+    throw new AppError("conflict", `The estimate ${estimateId} is an indirect estimate: its chart (the histogram with the fitted non-diseased part) is the histogram field of …/estimates/${estimateId}.`);
   }
   const parametric = (estimate.document.parametric ?? {}) as { transform?: Scale["transform"]; lambda?: number | null };
   const scale: Scale = { transform: parametric.transform ?? "none", lambda: parametric.lambda ?? null };
