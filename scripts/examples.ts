@@ -8,6 +8,9 @@
  *                                       column must be mapped by hand), dates as date cells,
  *                                       some values in mg/dL (converted with glucose's molar mass)
  *   glucose-donors-with-problems.csv    30 rows, each problem the validation report names
+ *   tsh-routine-results.csv             routine TSH results (m[IU]/L) of 4,000 invented patients for
+ *                                       an indirect study: outpatients, inpatients and emergencies,
+ *                                       repeat results and interference flags (db/demo-routine.ts)
  *
  * Run: npx tsx scripts/examples.ts
  */
@@ -15,6 +18,7 @@ import { writeFileSync } from "node:fs";
 import path from "node:path";
 import ExcelJS from "exceljs";
 import { createRandom, type Random } from "../lib/stats/random";
+import { DEMO_TSH_ROUTINE, routineCsv } from "../db/demo-routine";
 
 const OUT = path.join(process.cwd(), "public", "examples");
 /** mmol/L → mg/dL for glucose: 1 / 0.05551 (molar mass 180.156 g/mol, as in db/seed.ts). */
@@ -124,6 +128,7 @@ async function main() {
   writeFileSync(path.join(OUT, "glucose-donors.csv"), cleanCsv());
   writeFileSync(path.join(OUT, "glucose-donors-other-headers.xlsx"), await otherHeadersXlsx());
   writeFileSync(path.join(OUT, "glucose-donors-with-problems.csv"), problemsCsv());
+  writeFileSync(path.join(OUT, "tsh-routine-results.csv"), routineCsv({ ...DEMO_TSH_ROUTINE, seed: 3101, keyPrefix: "EX", patients: 4000 }));
   console.log(`Wrote the example files to ${OUT}`);
 }
 

@@ -1,8 +1,12 @@
 "use client";
 
-import { TEMPLATE_COLUMNS, type ColumnMapping, type TemplateColumn, type UploadPreviewAnswer } from "./upload-types";
+import { type ColumnMapping, type UploadColumn, type UploadPreviewAnswer } from "./upload-types";
 
-const NEEDS: Record<TemplateColumn, string> = {
+const NEEDS: Record<UploadColumn, string> = {
+  patient_key: "required: a pseudonymous key, one per patient",
+  collected_at: "required: date and time, YYYY-MM-DDTHH:MM",
+  setting: "optional: outpatient, inpatient …",
+  flags: "optional: separated by ; or |",
   donor_code: "required",
   sex: "required: F or M",
   age_years: "or birth date with collection date",
@@ -30,7 +34,9 @@ export function ColumnMappingForm({
   onChange: (mapping: ColumnMapping) => void;
   showSelectors: boolean;
 }) {
-  const indexOf = (column: TemplateColumn) => {
+  // The columns the study reads: the preview's mapping has one key for each.
+  const columns = Object.keys(preview.mapping) as UploadColumn[];
+  const indexOf = (column: UploadColumn) => {
     const header = mapping[column];
     return header ? preview.headers.indexOf(header) : -1;
   };
@@ -41,7 +47,7 @@ export function ColumnMappingForm({
         <fieldset className="space-y-2">
           <legend className="text-sm font-medium text-ink-800">Which column of the file holds each template column?</legend>
           <div className="grid gap-2 sm:grid-cols-2 xl:grid-cols-4">
-            {TEMPLATE_COLUMNS.map((column) => (
+            {columns.map((column) => (
               <div key={column} className="space-y-0.5">
                 <label htmlFor={`map-${column}`} className="block font-mono text-xs font-semibold text-ink-700">
                   {column}
@@ -77,7 +83,7 @@ export function ColumnMappingForm({
               <th scope="col" className={`${cellClass} text-left text-xs font-semibold text-ink-600`}>
                 Row
               </th>
-              {TEMPLATE_COLUMNS.map((c) => (
+              {columns.map((c) => (
                 <th key={c} scope="col" className={`${cellClass} text-left text-xs font-semibold text-ink-600`}>
                   <span className="font-mono">{c}</span>
                   <span className="block font-normal text-ink-500">{mapping[c] ? `from “${mapping[c]}”` : "not mapped"}</span>
@@ -89,7 +95,7 @@ export function ColumnMappingForm({
             {preview.fileRows.map((r) => (
               <tr key={r.row}>
                 <td className={`${cellClass} text-ink-500`}>{r.row}</td>
-                {TEMPLATE_COLUMNS.map((c) => {
+                {columns.map((c) => {
                   const i = indexOf(c);
                   return (
                     <td key={c} className={`${cellClass} ${i === -1 ? "text-ink-400" : ""}`}>

@@ -98,16 +98,21 @@ export function DonorResultsSection({ study, analyte, uploads }: StudySectionPro
     router.refresh();
     void mutate((key) => typeof key === "string" && key.startsWith(`/api/v1/studies/${study.id}/donor-results`));
   };
+  const routine = study.kind === "indirect";
   const done =
     n === 0
-      ? "No donor results stored yet."
-      : `${plural(n, "donor result", "donor results")} stored from ${plural(study.counts.uploads, "committed upload", "committed uploads")}${
+      ? `No ${routine ? "routine" : "donor"} results stored yet.`
+      : `${routine ? plural(n, "routine result", "routine results") : plural(n, "donor result", "donor results")} stored from ${plural(study.counts.uploads, "committed upload", "committed uploads")}${
           study.counts.exclusions > 0 ? `; ${plural(study.counts.exclusions, "exclusion", "exclusions")} in effect` : ""
         }.`;
   const next = !open
     ? "The study is closed: no more files can be uploaded."
     : study.counts.pendingUploads > 0
       ? "An upload awaits your decision: commit its valid rows or cancel it (in the list of uploads below)."
+      : routine
+        ? n === 0
+          ? "Upload the routine results exported from the laboratory system: a pseudonymous patient_key, sex, age, collected_at (date and time), value, and the setting and flags where the system records them."
+          : "Choose the cleaning steps and estimate (step 2), or upload more results from another file."
       : study.kind === "age_curve"
         ? n === 0
           ? "Upload the healthy-donor results with each donor's birth_date and collected_on: an age-curve study needs exact ages (age_years alone and censored values are refused)."
@@ -116,12 +121,13 @@ export function DonorResultsSection({ study, analyte, uploads }: StudySectionPro
           ? "Upload the healthy-donor results: a CSV or Excel file in the template's columns, or any columns you then map. Start with an example file if you are trying Bellwether out."
           : "Screen the results for outliers (step 2), or upload more results from another file.";
   return (
-    <StudySection id="donor-results" step={1} title="Donor results" done={done} next={next}>
+    <StudySection id="donor-results" step={1} title={routine ? "Routine results" : "Donor results"} done={done} next={next}>
       {open ? <UploadPanel
           studyId={study.id}
           analyte={analyte}
           onDecided={refresh}
-          nextAfterCommit={study.kind === "age_curve" ? "Fit the age curves next." : undefined}
+          nextAfterCommit={study.kind === "age_curve" ? "Fit the age curves next." : routine ? "Choose the cleaning steps and estimate next." : undefined}
+          routine={routine}
         /> : null}
       <UploadsList studyId={study.id} uploads={uploads} open={open} onDecided={refresh} />
       <DonorResultsTable studyId={study.id} analyte={analyte} />

@@ -40,6 +40,13 @@ export function NewStudyForm({ action, analytes }: { action: FormServerAction; a
             collection date.
           </span>
         </label>
+        <label className="flex items-start gap-2 text-sm text-ink-800">
+          <input type="radio" name="kind" value="indirect" className="mt-1" />
+          <span>
+            <span className="font-medium">Indirect, from routine results</span>: limits separated statistically from the laboratory&apos;s own patient
+            results (truncated maximum likelihood), after cleaning them; for partitions where healthy donors are hard to recruit.
+          </span>
+        </label>
         {errors.kind ? <p className="text-xs text-signal-high">{errors.kind}</p> : null}
       </fieldset>
       <TextField label="Method and instrument" name="method" id="study-method" error={errors.method} autoComplete="off" hint="e.g. Hexokinase on the chemistry analyser" />

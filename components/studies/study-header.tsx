@@ -7,6 +7,12 @@ const AGE_CURVE_STEPS = [
   { id: "draft", label: "Draft" },
 ];
 
+const INDIRECT_STEPS = [
+  { id: "donor-results", label: "Routine results" },
+  { id: "indirect", label: "Clean and estimate" },
+  { id: "draft", label: "Draft" },
+];
+
 const STEPS = [
   { id: "donor-results", label: "Donor results" },
   { id: "screening", label: "Screening" },
@@ -72,7 +78,7 @@ export function StudyHeader({ study, analyte, actions }: { study: StudyView; ana
       </dl>
       <nav aria-label="Steps of the study" className="overflow-x-auto">
         <ol className="flex gap-1 text-sm">
-          {(study.kind === "age_curve" ? AGE_CURVE_STEPS : STEPS).map((s, i) => (
+          {(study.kind === "age_curve" ? AGE_CURVE_STEPS : study.kind === "indirect" ? INDIRECT_STEPS : STEPS).map((s, i) => (
             <li key={s.id}>
               <a href={`#${s.id}`} className="block whitespace-nowrap rounded-md border border-ink-200 bg-white px-3 py-1.5 text-ink-700 hover:border-tide-500 hover:text-tide-700">
                 {i + 1}. {s.label}

@@ -15,8 +15,8 @@ export interface StudyView {
   id: string;
   title: string;
   status: "open" | "closed";
-  /** `direct`: limits per partition; `age_curve`: LMS centile curves in exact age. */
-  kind: "direct" | "age_curve";
+  /** `direct`: limits per partition; `age_curve`: LMS centile curves in exact age; `indirect`: limits from routine results. */
+  kind: "direct" | "age_curve" | "indirect";
   method: string | null;
   specimen: string | null;
   criteria: string | null;
@@ -42,7 +42,7 @@ export interface StudyRow {
   analyte: string;
   analyteName: string;
   title: string;
-  kind: "direct" | "age_curve";
+  kind: "direct" | "age_curve" | "indirect";
   status: "open" | "closed";
   donorResults: number;
   uploads: number;
@@ -53,6 +53,7 @@ export interface StudyRow {
 export const STUDY_KIND_WORDS: Record<StudyView["kind"], string> = {
   direct: "Limits per partition",
   age_curve: "Age curves (LMS)",
+  indirect: "Indirect (routine results)",
 };
 
 /** A study's status in words. */

@@ -7,7 +7,7 @@ import { ColumnMappingForm } from "./column-mapping";
 import { ProgressBar } from "./progress-bar";
 import { readProblem } from "./api";
 import { nextStepFor, refusalMessage, sendForm, type Progress } from "./upload-request";
-import { mappingGap, TEMPLATE_COLUMNS, type ColumnMapping, type PendingUploadAnswer, type ProblemAnswer, type UploadPreviewAnswer } from "./upload-types";
+import { mappingGap, ROUTINE_COLUMNS, TEMPLATE_COLUMNS, type ColumnMapping, type PendingUploadAnswer, type ProblemAnswer, type UploadColumn, type UploadPreviewAnswer } from "./upload-types";
 import { ValidationReport } from "./validation-report";
 import type { StudyAnalyte } from "./types";
 
@@ -23,6 +23,9 @@ const EXAMPLES = [
   { href: "/examples/glucose-donors-with-problems.csv", label: "a CSV with problems, for the validation report" },
 ];
 
+/** The routine-results example for an indirect study (scripts/examples.ts writes it too). */
+const ROUTINE_EXAMPLES = [{ href: "/examples/tsh-routine-results.csv", label: "routine TSH results of outpatients, inpatients and emergencies" }];
+
 function bytes(n: number): string {
   if (n < 1024) return `${n} bytes`;
   if (n < 1024 * 1024) return `${(n / 1024).toFixed(1)} KB`;
@@ -31,7 +34,7 @@ function bytes(n: number): string {
 
 function mappingOf(resolved: UploadPreviewAnswer["mapping"]): ColumnMapping {
   const out: ColumnMapping = {};
-  for (const c of TEMPLATE_COLUMNS) if (resolved[c]) out[c] = resolved[c]!;
+  for (const c of Object.keys(resolved) as UploadColumn[]) if (resolved[c]) out[c] = resolved[c]!;
   return out;
 }
 
@@ -45,10 +48,13 @@ export function UploadPanel({
   analyte,
   onDecided,
   nextAfterCommit = "Screen them for outliers next.",
+  routine = false,
 }: {
   studyId: string;
   analyte: StudyAnalyte;
   onDecided: () => void;
+  /** An indirect study's routine results (patient keys, collection times, settings, flags) instead of healthy donors. */
+  routine?: boolean;
   /** The sentence after "Stored N donor results from F.": what the study's next step is. */
   nextAfterCommit?: string;
 }) {
@@ -151,7 +157,7 @@ export function UploadPanel({
       const body = await res.json();
       reset(
         decision === "commit"
-          ? `Stored ${body.stored.toLocaleString("en")} donor results from ${upload.fileName}. ${nextAfterCommit}`
+          ? `Stored ${body.stored.toLocaleString("en")} ${routine ? "routine" : "donor"} results from ${upload.fileName}. ${nextAfterCommit}`
           : `Cancelled the upload of ${upload.fileName}; nothing was stored.`,
       );
       onDecided();
@@ -161,9 +167,11 @@ export function UploadPanel({
     setStage("report");
   }
 
-  const gap = mappingGap(mapping);
+  const gap = mappingGap(mapping, routine);
+  const what = routine ? "routine results" : "donor results";
   const showSelectors = preview !== null && (!preview.matchesTemplate || preview.incomplete !== null);
-  const templateHref = (format: "csv" | "xlsx") => `/api/v1/uploads/template?format=${format}&analyte=${encodeURIComponent(analyte.code)}`;
+  const templateHref = (format: "csv" | "xlsx") =>
+    `/api/v1/uploads/template?format=${format}&analyte=${encodeURIComponent(analyte.code)}${routine ? "&kind=routine" : ""}`;
 
   return (
     <div className="space-y-4" data-testid="upload-panel">
@@ -179,16 +187,16 @@ export function UploadPanel({
             className: `rounded-lg border-2 border-dashed px-4 py-6 text-center text-sm transition-colors ${
               isDragActive ? "border-tide-500 bg-tide-50" : "border-ink-300 bg-ink-50"
             }`,
-            "aria-label": "Drop zone for a file of donor results",
+            "aria-label": `Drop zone for a file of ${what}`,
           })}
         >
-          <input {...getInputProps({ id: "donor-file", "aria-label": "File of donor results (CSV or XLSX)" })} />
+          <input {...getInputProps({ id: "donor-file", "aria-label": `File of ${what} (CSV or XLSX)` })} />
           {file ? (
             <p className="text-ink-800" data-testid="chosen-file">
               <span className="font-medium">{file.name}</span> · {bytes(file.size)}
             </p>
           ) : (
-            <p className="text-ink-700">{isDragActive ? "Drop the file here." : "Drop a CSV or Excel (.xlsx) file of donor results here,"}</p>
+            <p className="text-ink-700">{isDragActive ? "Drop the file here." : `Drop a CSV or Excel (.xlsx) file of ${what} here,`}</p>
           )}
           <p className="mt-2">
             <Button type="button" variant="secondary" onClick={open} disabled={busy}>
@@ -319,7 +327,7 @@ export function UploadPanel({
         <div>
           <p className="font-medium text-ink-800">Blank template</p>
           <p>
-            Columns <span className="font-mono text-xs">donor_code, sex, age_years, birth_date, collected_on, value, unit</span>:{" "}
+            Columns <span className="font-mono text-xs">{(routine ? ROUTINE_COLUMNS : TEMPLATE_COLUMNS).join(", ")}</span>:{" "}
             <a href={templateHref("csv")} download className="underline">
               CSV
             </a>{" "}
@@ -330,9 +338,11 @@ export function UploadPanel({
           </p>
         </div>
         <div>
-          <p className="font-medium text-ink-800">Example files to try (glucose, GLU, invented donors)</p>
+          <p className="font-medium text-ink-800">
+            {routine ? "Example file to try (TSH, invented patients)" : "Example files to try (glucose, GLU, invented donors)"}
+          </p>
           <ul className="list-disc pl-5">
-            {EXAMPLES.map((e) => (
+            {(routine ? ROUTINE_EXAMPLES : EXAMPLES).map((e) => (
               <li key={e.href}>
                 <a href={e.href} download>
                   {e.label}

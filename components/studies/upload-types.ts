@@ -4,9 +4,12 @@
  */
 export const TEMPLATE_COLUMNS = ["donor_code", "sex", "age_years", "birth_date", "collected_on", "value", "unit"] as const;
 export type TemplateColumn = (typeof TEMPLATE_COLUMNS)[number];
+/** An indirect study's routine-results columns (lib/uploads' ROUTINE_COLUMNS). */
+export const ROUTINE_COLUMNS = ["patient_key", "sex", "age_years", "birth_date", "collected_at", "value", "unit", "setting", "flags"] as const;
+export type UploadColumn = TemplateColumn | (typeof ROUTINE_COLUMNS)[number];
 
 /** Template column → the file's header (absent: not in the file). */
-export type ColumnMapping = Partial<Record<TemplateColumn, string>>;
+export type ColumnMapping = Partial<Record<UploadColumn, string>>;
 
 /** POST …/uploads/preview. */
 export interface UploadPreviewAnswer {
@@ -19,15 +22,16 @@ export interface UploadPreviewAnswer {
   headers: string[];
   matchesTemplate: boolean;
   suggested: ColumnMapping;
-  mapping: Record<TemplateColumn, string | null>;
+  /** One key per column of the set the study reads (the donor template's, or the routine results'). */
+  mapping: Partial<Record<UploadColumn, string | null>>;
   incomplete: string | null;
-  rows: { row: number; cells: Record<TemplateColumn, string | null> }[];
+  rows: { row: number; cells: Partial<Record<UploadColumn, string | null>> }[];
   fileRows: { row: number; cells: string[] }[];
 }
 
 export interface UploadProblem {
   row: number;
-  column: TemplateColumn;
+  column: UploadColumn;
   message: string;
 }
 
@@ -44,7 +48,7 @@ export interface PendingUploadAnswer {
   format: "csv" | "xlsx";
   sheet: string | null;
   headers: string[];
-  mapping: Record<TemplateColumn, string | null>;
+  mapping: Partial<Record<UploadColumn, string | null>>;
 }
 
 /** A problem+json answer, with the upload refusal's extensions when present. */
@@ -68,10 +72,12 @@ export interface UploadSummary {
 }
 
 /** What the columns need before a file can be checked; null when the mapping is complete. */
-export function mappingGap(mapping: ColumnMapping): string | null {
-  const missing = (["donor_code", "sex", "value"] as const).filter((c) => !mapping[c]);
+export function mappingGap(mapping: ColumnMapping, routine = false): string | null {
+  const required = routine ? (["patient_key", "sex", "collected_at", "value"] as const) : (["donor_code", "sex", "value"] as const);
+  const missing = required.filter((c) => !mapping[c]);
   if (missing.length > 0) return `Choose the file's column for ${missing.join(", ")}.`;
-  if (!mapping.age_years && !(mapping.birth_date && mapping.collected_on)) {
+  if (routine && !mapping.age_years && !mapping.birth_date) return "Choose the column for age_years, or birth_date.";
+  if (!routine && !mapping.age_years && !(mapping.birth_date && mapping.collected_on)) {
     return "Choose the column for age_years, or both birth_date and collected_on.";
   }
   const used = Object.values(mapping).filter(Boolean);

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, eq, isNull, sql } from "drizzle-orm";
+import { and, asc, eq, isNotNull, isNull, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import { engineIdentity } from "@/lib/engine";
 import { partitionLabel, partitionOut, type PartitionOut } from "@/lib/studies/estimate-input";
@@ -10,7 +10,7 @@ import {
   type StoredRoutineResult,
 } from "@/lib/studies/indirect-estimates";
 import { StatsInputError } from "@/lib/stats/validate";
-import type { Database } from "../client";
+import type { Database, Executor } from "../client";
 import { donorResults, estimates, exclusions, studies, uploads, type Estimate, type Study } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 
@@ -131,4 +131,37 @@ export async function createIndirectEstimate(
     });
     return indirectEstimateOut(row);
   }, { isolationLevel: "repeatable read" });
+}
+
+/**
+ * The settings and flags of a study's routine results with how many results carry each (most
+ * first), and the first and last collection day: what the cleaning form offers.
+ */
+export async function routineVocabulary(
+  executor: Executor,
+  { studyId }: { studyId: string },
+): Promise<{ settings: { name: string; count: number }[]; flags: { name: string; count: number }[]; period: { from: string; to: string } | null }> {
+  const settings = await executor
+    .select({ name: donorResults.setting, count: sql<number>`count(*)::int` })
+    .from(donorResults)
+    .where(and(eq(donorResults.studyId, studyId), isNotNull(donorResults.setting)))
+    .groupBy(donorResults.setting)
+    .orderBy(sql`count(*) DESC`, asc(donorResults.setting));
+  const flags = await executor.execute<{ name: string; count: number }>(sql`
+    SELECT f.name, count(*)::int AS count
+    FROM ${donorResults}, jsonb_array_elements_text(coalesce(${donorResults.flags}, '[]'::jsonb)) AS f(name)
+    WHERE ${donorResults.studyId} = ${studyId}
+    GROUP BY f.name ORDER BY count(*) DESC, f.name`);
+  const [span] = await executor
+    .select({
+      from: sql<string | null>`min(left(coalesce(${donorResults.collectedAt}, ${donorResults.collectedOn}), 10))`,
+      to: sql<string | null>`max(left(coalesce(${donorResults.collectedAt}, ${donorResults.collectedOn}), 10))`,
+    })
+    .from(donorResults)
+    .where(eq(donorResults.studyId, studyId));
+  return {
+    settings: settings.map((s) => ({ name: s.name as string, count: s.count })),
+    flags: flags.rows.map((f) => ({ name: f.name, count: Number(f.count) })),
+    period: span?.from && span.to ? { from: span.from, to: span.to } : null,
+  };
 }

@@ -8,8 +8,8 @@ export const createStudyBody = z
   .object({
     analyte: z.string().trim().min(1, "Give the analyte's code.").max(16),
     title: z.string().trim().min(1, "Give the study a title.").max(200),
-    /** `direct` (limits per partition) unless `age_curve` (LMS centile curves in exact age). */
-    kind: z.enum(STUDY_KINDS, `kind is ${STUDY_KINDS.join(" or ")}.`).default("direct"),
+    /** `direct` (limits per partition) unless `age_curve` (LMS centile curves in exact age) or `indirect` (limits from routine results). */
+    kind: z.enum(STUDY_KINDS, "kind is direct, age_curve or indirect.").default("direct"),
     method: optionalText(200),
     specimen: optionalText(100),
     criteria: optionalText(10_000),

@@ -66,7 +66,7 @@ describe("a study's kind", () => {
     const before = await tableCounts(pool, TABLES);
     const res = await send("POST", "/api/v1/studies", "scientist", { analyte: code, title: "x", kind: "curves" });
     expect(res.status).toBe(422);
-    expect((await res.json()).detail).toContain("kind: kind is direct or age_curve.");
+    expect((await res.json()).detail).toContain("kind: kind is direct, age_curve or indirect.");
     expect(await tableCounts(pool, TABLES)).toEqual(before);
   });
 });

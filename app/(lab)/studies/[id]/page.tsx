@@ -6,12 +6,14 @@ import { DonorResultsSection } from "@/components/studies/donor-results-section"
 import { AgeCurveSections } from "@/components/studies/sections/age-curve-sections";
 import { DraftSection } from "@/components/studies/sections/draft-section";
 import { EstimatesSection } from "@/components/studies/sections/estimates-section";
+import { IndirectSections } from "@/components/studies/sections/indirect-sections";
 import { PartitionsSection } from "@/components/studies/sections/partitions-section";
 import { ScreeningSection } from "@/components/studies/sections/screening-section";
 import { StudyHeader } from "@/components/studies/study-header";
 import type { StudyAnalyte, StudyView } from "@/components/studies/types";
 import type { UploadSummary } from "@/components/studies/upload-types";
 import { db } from "@/db/client";
+import { routineVocabulary } from "@/db/queries/indirect-estimates";
 import { countActiveExclusions, studyCloser, studyDetail } from "@/db/queries/studies";
 import { AppError } from "@/lib/api/errors";
 import { requirePageCaller } from "@/lib/auth/session";
@@ -31,14 +33,19 @@ async function loadStudy(id: string) {
 
 /**
  * One study, in the order of the work: donor results, screening, partitions, estimates, draft;
- * for an age-curve study donor results, the LMS curves and the draft.
+ * for an age-curve study donor results, the LMS curves and the draft; for an indirect study
+ * routine results, cleaning with the estimate, and the draft.
  * Every section stays on the page (no tabs), each with its anchor.
  */
 export default async function StudyPage({ params }: { params: Promise<{ id: string }> }) {
   await requirePageCaller("studies:write");
   const { id } = await params;
   const detail = await loadStudy(id);
-  const [exclusions, closer] = await Promise.all([countActiveExclusions(db(), { studyId: id }), studyCloser(db(), { study: detail })]);
+  const [exclusions, closer, vocabulary] = await Promise.all([
+    countActiveExclusions(db(), { studyId: id }),
+    studyCloser(db(), { study: detail }),
+    detail.kind === "indirect" ? routineVocabulary(db(), { studyId: id }) : null,
+  ]);
   const analyte: StudyAnalyte = {
     code: detail.analyte.code,
     name: detail.analyte.name,
@@ -86,6 +93,8 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
         <DonorResultsSection study={study} analyte={analyte} uploads={uploads} />
         {study.kind === "age_curve" ? (
           <AgeCurveSections study={study} analyte={analyte} />
+        ) : study.kind === "indirect" && vocabulary ? (
+          <IndirectSections study={study} analyte={analyte} vocabulary={vocabulary} />
         ) : (
           <>
             <ScreeningSection study={study} analyte={analyte} />
