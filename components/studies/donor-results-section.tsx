@@ -130,7 +130,7 @@ export function DonorResultsSection({ study, analyte, uploads }: StudySectionPro
           routine={routine}
         /> : null}
       <UploadsList studyId={study.id} uploads={uploads} open={open} onDecided={refresh} />
-      <DonorResultsTable studyId={study.id} analyte={analyte} />
+      <DonorResultsTable studyId={study.id} analyte={analyte} routine={routine} />
     </StudySection>
   );
 }

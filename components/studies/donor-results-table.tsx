@@ -28,6 +28,10 @@ export interface DonorResultItem {
   censoringInclusive: boolean | null;
   originalValue: number | null;
   originalUnit: string | null;
+  /** Routine results (an indirect study): collection date and time, setting and flags. */
+  collectedAt?: string | null;
+  setting?: string | null;
+  flags?: string[] | null;
   excluded?: boolean;
   exclusion?: { id: string; source: string; reason: string } | null;
 }
@@ -78,7 +82,7 @@ const control = "rounded-md border border-ink-300 bg-white px-2 py-1 text-sm foc
  * The study's donor results, a page at a time: paging, sorting and filtering happen in
  * PostgreSQL (GET …/donor-results through SWR), so 200,000 rows cost the browser one page.
  */
-export function DonorResultsTable({ studyId, analyte }: { studyId: string; analyte: StudyAnalyte }) {
+export function DonorResultsTable({ studyId, analyte, routine = false }: { studyId: string; analyte: StudyAnalyte; routine?: boolean }) {
   const [pagination, setPagination] = useState<PaginationState>({ pageIndex: 0, pageSize: 25 });
   const [sorting, setSorting] = useState<SortingState>([{ id: "rowNumber", desc: false }]);
   const [draft, setDraft] = useState<DonorFilters>(NO_FILTERS);
@@ -89,10 +93,19 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
   const columns = useMemo(
     () => [
       column.accessor("rowNumber", { header: "Row" }),
-      column.accessor("donorCode", { header: "Donor code", cell: (c) => <span className="font-mono">{c.getValue()}</span> }),
+      column.accessor("donorCode", { header: routine ? "Patient key" : "Donor code", cell: (c) => <span className="font-mono">{c.getValue()}</span> }),
       column.accessor("sex", { header: "Sex" }),
       column.accessor("ageYears", { header: "Age (years)", cell: (c) => c.getValue().toFixed(1) }),
-      column.accessor("collectedOn", { header: "Collected on", cell: (c) => c.getValue() ?? "—" }),
+      column.accessor("collectedOn", {
+        header: routine ? "Collected at" : "Collected on",
+        cell: (c) => (routine ? (c.row.original.collectedAt?.slice(0, 16).replace("T", " ") ?? c.getValue() ?? "—") : (c.getValue() ?? "—")),
+      }),
+      ...(routine
+        ? [
+            column.accessor((r) => r.setting ?? "", { id: "setting", header: "Setting", cell: (c) => c.getValue() || "—" }),
+            column.accessor((r) => (r.flags ?? []).join(", "), { id: "flags", header: "Flags", cell: (c) => c.getValue() || "—" }),
+          ]
+        : []),
       column.accessor("value", {
         header: `Value (${analyte.unit})`,
         cell: (c) => <span className="tabular-nums">{formatDonorValue(c.row.original, analyte.decimals)}</span>,
@@ -121,7 +134,7 @@ export function DonorResultsTable({ studyId, analyte }: { studyId: string; analy
         },
       }),
     ],
-    [analyte],
+    [analyte, routine],
   );
   const sortable = new Set(["rowNumber", "donorCode", "sex", "ageYears", "collectedOn", "value"]);
 

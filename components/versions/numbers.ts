@@ -24,4 +24,5 @@ export const METHOD_WORDS: Record<string, string> = {
   robust: "Robust (Horn, Pesce and Copeland)",
   adopted: "Adopted (verified external interval)",
   lms: "LMS age curves (Cole and Green)",
+  indirect: "Indirect: truncated maximum likelihood on routine results",
 };

@@ -489,16 +489,16 @@ const STUDIES: ApiOperation[] = [
     path: "/api/v1/studies/{id}/estimates",
     operationId: "createEstimate",
     tag: "Studies",
-    summary: "Estimate a partition's reference interval, or fit an age-curve study's LMS curves",
+    summary: "Estimate a partition's reference interval, fit an age-curve study's LMS curves, or estimate an indirect study's interval",
     description:
-      'A direct study takes `{partition?, outliers?, transform?, seed?}`; an age-curve study takes `{method: "lms", sex?: "F"|"M"|null, seed?}` and fits the LMS centile curves to the donors of that sex (null: both). Each kind of study refuses the other\'s request with 409.',
+      'A direct study takes `{partition?, outliers?, transform?, seed?}`; an age-curve study takes `{method: "lms", sex?: "F"|"M"|null, seed?}` and fits the LMS centile curves to the donors of that sex (null: both); an indirect study takes `{method: "indirect", cleaning?: {period?: {from, to}|null, excludeSettings?: [..], excludeFlags?: [..]|"any", onePerPatient?: "first"|"last"|"all"}, partition?, seed?}`, runs the cleaning steps on its routine results (each recorded with the results it removed) and estimates by truncated maximum likelihood, with Bhattacharya\'s procedure as a second opinion (422 when fewer than 500 results remain). Each kind of study refuses the others\' requests with 409.',
     access: { permission: "studies:write" },
     params: studyIdParams,
     body: estimateRequestDocBody,
     success: {
       status: 201,
       description:
-        "The command line's estimate document plus id, studyId, partition and createdAt; for an LMS fit the `bellwether lms` document `{n, at, lower, median, upper, L, M, S, edf, warnings}` plus `{method, sex, seed, model, ageRange, criterion, logLik, converged, excluded, diagnostics, sexComparison, advice, provenance}`",
+        "The command line's estimate document plus id, studyId, partition and createdAt; for an LMS fit the `bellwether lms` document `{n, at, lower, median, upper, L, M, S, edf, warnings}` plus `{method, sex, seed, model, ageRange, criterion, logLik, converged, excluded, diagnostics, sexComparison, advice, provenance}`; for an indirect estimate the `bellwether indirect` document `{n, lower, upper, lowerCi, upperCi, lambda, mu, sigma, fraction, truncation, chiSquare, secondOpinion, warnings}` plus `{method, df, pValue, accepted, censored, cells, bootstrap, cleaning: {results, excluded, plan, partition, steps: [{step, description, before, removed, remaining}]}, settings, histogram, model, advice, provenance}`",
       schema: described("The estimate document"),
       headers: location,
     },
