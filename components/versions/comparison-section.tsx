@@ -12,7 +12,19 @@ function transitionsText(transitions: { from: string | null; to: string; count: 
 }
 
 /** What the version changes against the one in force: limits side by side and donors whose flag would change. */
-export function ComparisonSection({ comparison, decimals, step }: { comparison: ComparisonAnswer<{ number: number }>; decimals: number; step: number }) {
+export function ComparisonSection({
+  comparison,
+  decimals,
+  step,
+  routine = false,
+}: {
+  comparison: ComparisonAnswer<{ number: number }>;
+  decimals: number;
+  step: number;
+  /** The study behind the version holds routine patient results (an indirect study), not donors. */
+  routine?: boolean;
+}) {
+  const people = routine ? "routine results" : "donors";
   const { inForce, donorFlagChanges: changes } = comparison;
   const code = comparison.version.analyte.code;
   const oldName = inForce ? `Version ${inForce.number}` : null;
@@ -22,8 +34,8 @@ export function ComparisonSection({ comparison, decimals, step }: { comparison: 
       ? `No version of ${code} is in force: this one would be the first.`
       : `No version of ${code} was in force before this one.`;
   const changedWords = inForce
-    ? `${changes.changed.toLocaleString("en")} of ${changes.total.toLocaleString("en")} donors in the study (without exclusions in effect) would be flagged differently under the new limits.`
-    : `${changes.total.toLocaleString("en")} donors in the study (without exclusions in effect) fall in its partitions; there is nothing to change from.`;
+    ? `${changes.changed.toLocaleString("en")} of ${changes.total.toLocaleString("en")} ${people} in the study (without exclusions in effect) would be flagged differently under the new limits.`
+    : `${changes.total.toLocaleString("en")} ${people} in the study (without exclusions in effect) fall in its partitions; there is nothing to change from.`;
   const byPartition = new Map(changes.byPartition.map((p) => [p.partition.label, p]));
   const recent = comparison.recentScores;
   const recentByPartition = new Map(recent.byPartition.map((p) => [p.partition.label, p]));
@@ -36,8 +48,8 @@ export function ComparisonSection({ comparison, decimals, step }: { comparison: 
           "Partition",
           oldName ? `${oldName} (${comparison.version.unit})` : "In force",
           `This version (${comparison.version.unit})`,
-          "Donors",
-          "Donor flag changes",
+          routine ? "Routine results" : "Donors",
+          routine ? "Result flag changes" : "Donor flag changes",
           `Scores, last ${recent.days} days`,
           "Score flag changes",
         ]}

@@ -4,6 +4,8 @@ import type { VersionReviewView as VersionReview } from "./types";
 import { scopeLabel } from "@/lib/versions/comparison";
 import { EstimateCharts } from "./estimate-charts";
 import { lmsScopeLabel } from "@/lib/scoring/lms-curves-view";
+import type { IndirectEstimateDocument } from "@/lib/studies/indirect-estimates";
+import { IndirectEstimateBlock } from "./indirect-estimate-block";
 import { ciText, fixed, METHOD_WORDS } from "./numbers";
 
 const METHODS = ["nonparametric", "parametric", "robust"] as const;
@@ -35,6 +37,18 @@ export function EstimatesSection({ review, step }: { review: VersionReview; step
             <p key={p.id} className="text-sm text-ink-700">
               {label}: {METHOD_WORDS[p.method] ?? p.method} limits {fixed(p.low, d)} to {fixed(p.high, d)}; no estimate of a study behind them.
             </p>
+          );
+        }
+        if (p.method === "indirect") {
+          return (
+            <IndirectEstimateBlock
+              key={p.id}
+              label={label}
+              document={estimate.document as unknown as IndirectEstimateDocument}
+              limits={{ lower: p.low, upper: p.high, lowerCi: p.lowCi, upperCi: p.highCi }}
+              unit={analyte.unit}
+              decimals={d}
+            />
           );
         }
         const doc = estimate.document;

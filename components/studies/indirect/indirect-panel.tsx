@@ -18,6 +18,9 @@ const MIN_VALUES = 500;
 
 const pct = (v: number) => `${(v * 100).toFixed(1)}%`;
 
+/** A field that sits in a line of words rather than filling its column. */
+const inlineInput = inputClass.replace("block w-full ", "");
+
 /** The study's indirect estimates, newest first, through the estimates list's SWR key (shared with the Draft section). */
 export function useIndirectEstimates(studyId: string) {
   const key = `${studyApi(studyId)}/estimates`;
@@ -185,15 +188,15 @@ export function IndirectPanel({ study, analyte, vocabulary }: { study: SectionSt
             <fieldset className="space-y-1">
               <legend className={labelClass}>5. Partition</legend>
               <div className="flex flex-wrap items-center gap-2 text-sm">
-                <select aria-label="Sex" className={inputClass + " w-36"} value={sex} onChange={(e) => setSex(e.target.value as "" | "F" | "M")}>
+                <select aria-label="Sex" className={inlineInput + " w-36"} value={sex} onChange={(e) => setSex(e.target.value as "" | "F" | "M")}>
                   <option value="">Women and men</option>
                   <option value="F">Women</option>
                   <option value="M">Men</option>
                 </select>
                 <span>aged</span>
-                <input aria-label="Age from" className={inputClass + " w-20"} inputMode="decimal" placeholder="from" value={ageFrom} onChange={(e) => setAgeFrom(e.target.value)} />
+                <input aria-label="Age from" className={inlineInput + " w-20"} inputMode="decimal" placeholder="from" value={ageFrom} onChange={(e) => setAgeFrom(e.target.value)} />
                 <span>to under</span>
-                <input aria-label="Age to" className={inputClass + " w-20"} inputMode="decimal" placeholder="to" value={ageTo} onChange={(e) => setAgeTo(e.target.value)} />
+                <input aria-label="Age to" className={inlineInput + " w-20"} inputMode="decimal" placeholder="to" value={ageTo} onChange={(e) => setAgeTo(e.target.value)} />
                 <span>years</span>
               </div>
             </fieldset>

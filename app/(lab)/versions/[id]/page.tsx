@@ -44,7 +44,12 @@ export default async function VersionPage({ params }: { params: Promise<{ id: st
           </h2>
           <SignatureList signatures={review.signatures} />
         </section>
-        <ComparisonSection comparison={review.comparison} decimals={version.decimals} step={1} />
+        <ComparisonSection
+          comparison={review.comparison}
+          decimals={version.decimals}
+          step={1}
+          routine={version.partitions.some((p) => p.method === "indirect")}
+        />
         <IndividualsSection review={review} step={2} />
         <PartitionsSection review={review} step={3} />
         <EstimatesSection review={review} step={4} />

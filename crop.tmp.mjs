@@ -1,0 +1,15 @@
+import { chromium } from "playwright-core";
+const [role, path, selector, out] = process.argv.slice(2);
+const browser = await chromium.launch({ executablePath: "/usr/bin/chromium", headless: true, args: ["--no-sandbox", "--disable-gpu"] });
+const ctx = await browser.newContext({ baseURL: "http://127.0.0.1:3000", viewport: { width: 1280, height: 900 } });
+const page = await ctx.newPage();
+await page.goto("/sign-in");
+await page.getByLabel("E-mail").fill(`${role}@harrowmere.example`);
+await page.getByLabel("Password").fill(`bellwether-${role}-demo`);
+await page.getByRole("button", { name: "Sign in" }).click();
+await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+await page.goto(path);
+await page.waitForLoadState("networkidle");
+await page.waitForTimeout(1500);
+await page.locator(selector).first().screenshot({ path: out });
+await browser.close();
