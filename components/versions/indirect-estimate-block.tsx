@@ -3,6 +3,8 @@ import { SimpleTable } from "@/components/ui/simple-table";
 import type { IndirectEstimateDocument } from "@/lib/studies/indirect-estimates";
 import { ciText, fixed, METHOD_WORDS } from "./numbers";
 
+const count = (n: number) => n.toLocaleString("en");
+
 /**
  * The indirect estimate behind one partition, as the director reviews it: the limits beside
  * Bhattacharya's second opinion, the fit, the path from the routine results to the values
@@ -25,7 +27,7 @@ export function IndirectEstimateBlock({
   return (
     <div className="space-y-2" data-testid="estimate-block">
       <h3 className="text-sm font-semibold text-ink-800">
-        {label} · n = {doc.n} · {METHOD_WORDS.indirect}
+        {label} · n = {count(doc.n)} · {METHOD_WORDS.indirect}
       </h3>
       <SimpleTable
         caption={`The indirect limits and the second opinion for ${label}`}
@@ -45,8 +47,13 @@ export function IndirectEstimateBlock({
         testId="indirect-cleaning"
         head={["Step", "What it did", "Removed", "Remaining"]}
         rows={[
-          ["Routine results", doc.cleaning.excluded > 0 ? `in the study, less ${doc.cleaning.excluded} excluded by hand` : "in the study", doc.cleaning.excluded || "—", doc.cleaning.results - doc.cleaning.excluded],
-          ...doc.cleaning.steps.map((s) => [s.step, s.description, s.removed, s.remaining]),
+          [
+            "Routine results",
+            doc.cleaning.excluded > 0 ? `in the study, less ${count(doc.cleaning.excluded)} excluded by hand` : "in the study",
+            doc.cleaning.excluded > 0 ? count(doc.cleaning.excluded) : "—",
+            count(doc.cleaning.results - doc.cleaning.excluded),
+          ],
+          ...doc.cleaning.steps.map((s) => [s.step, s.description, count(s.removed), count(s.remaining)]),
         ]}
       />
       <IndirectChart bins={doc.histogram} truncation={doc.truncation} fraction={doc.fraction} limits={limits} unit={unit} decimals={d} />
