@@ -177,7 +177,7 @@ export function DonorResultsTable({ studyId, analyte, routine = false }: { study
   return (
     <div className="space-y-3" data-testid="donor-results">
       {nothingStored ? null : (
-        <form onSubmit={applyFilters} className="flex flex-wrap items-end gap-3 text-sm" aria-label="Filter the donor results">
+        <form onSubmit={applyFilters} className="flex flex-wrap items-end gap-3 text-sm" aria-label={`Filter the ${routine ? "routine" : "donor"} results`}>
           <div className="space-y-0.5">
             <label htmlFor="filter-sex" className="block text-xs font-medium uppercase tracking-wide text-ink-600">
               Sex
@@ -249,7 +249,7 @@ export function DonorResultsTable({ studyId, analyte, routine = false }: { study
           {filtered ? (
             <>No donor result matches these filters. Widen the age range or clear the filters.</>
           ) : (
-            <>No donor results are stored yet. Upload a file above and commit its valid rows; they will be listed here.</>
+            <>No {routine ? "routine" : "donor"} results are stored yet. Upload a file above and commit its valid rows; they will be listed here.</>
           )}
         </div>
       ) : data ? (
@@ -301,7 +301,7 @@ export function DonorResultsTable({ studyId, analyte, routine = false }: { study
           </div>
           <div className="flex flex-wrap items-center justify-between gap-3 text-sm text-ink-700">
             <span data-testid="donor-results-range">
-              {first.toLocaleString("en")}–{last.toLocaleString("en")} of {total.toLocaleString("en")} donor results
+              {first.toLocaleString("en")}–{last.toLocaleString("en")} of {total.toLocaleString("en")} {routine ? "routine" : "donor"} results
               {filtered ? " matching the filters" : ""}
             </span>
             <span className="flex flex-wrap items-center gap-2">
