@@ -79,12 +79,30 @@ async function cancel(id: string, uploadId: string): Promise<void> {
   expect((await send("POST", `/api/v1/studies/${id}/uploads/${uploadId}/cancel`, "scientist")).status).toBe(200);
 }
 
-function rowsOf(sheet: ExcelJS.Worksheet): unknown[][] {
+/** The sheet's rows, `width` cells each, an empty cell as null. */
+function rowsOf(sheet: ExcelJS.Worksheet, width = 6): unknown[][] {
   const rows: unknown[][] = [];
-  // Six columns each, an empty cell as null.
-  sheet.eachRow({ includeEmpty: false }, (row) => rows.push(Array.from({ length: 6 }, (_, i) => (row.values as unknown[])[i + 1] ?? null)));
+  sheet.eachRow({ includeEmpty: false }, (row) => rows.push(Array.from({ length: width }, (_, i) => (row.values as unknown[])[i + 1] ?? null)));
   return rows;
 }
+
+/**
+ * The Donor results sheet's routine columns for one patient: the columns the cleaning steps read
+ * (donor code, collected at, setting, flags), found by their headers.
+ */
+function routineColumnsOf(sheet: ExcelJS.Worksheet, patient: string): unknown[][] {
+  const rows = rowsOf(sheet, 22);
+  const at = (name: string) => rows[0].indexOf(name);
+  const [code, collectedAt, setting, flags] = ["Donor code", "Collected at", "Setting", "Flags"].map(at);
+  expect([collectedAt, setting, flags]).toEqual([19, 20, 21]);
+  return rows.slice(1).filter((r) => r[code] === patient).map((r) => [r[collectedAt], r[setting], r[flags]]);
+}
+
+/** P000013's rows as the file gave them (tests/support/routine-mixture.ts), flags joined by "; ". */
+const P13_ROUTINE = [
+  ["2025-01-13T08:00:00", "outpatient", "lipaemic; haemolysed"],
+  ["2025-01-13T12:00:00", "outpatient", null],
+];
 
 beforeAll(async () => {
   cookies = await signInAll();
@@ -449,5 +467,19 @@ describe("a version drafted from the indirect estimate", () => {
     expect(mine.find((r) => r[2] === "Values estimated (n)")?.[3]).toBe(12_000);
     expect(mine.find((r) => r[2] === "Lower limit")?.[3]).toBe(estimate.lower);
     expect(mine.find((r) => r[2] === "Upper limit")?.[3]).toBe(estimate.upper);
-  });
+    // The routine results' collection time, setting and flags, which the cleaning steps read, so
+    // that each step's count can be followed from the rows.
+    expect(routineColumnsOf(workbook.getWorksheet("Donor results")!, "P000013")).toEqual(P13_ROUTINE);
+  }, 60_000);
+
+  it("exports the study with its Indirect estimates sheet and the routine columns", async () => {
+    const res = await send("GET", `/api/v1/studies/${studyId}/export`, "scientist");
+    expect(res.status).toBe(200);
+    const workbook = new ExcelJS.Workbook();
+    await workbook.xlsx.load(await res.arrayBuffer());
+    const indirect = rowsOf(workbook.getWorksheet("Indirect estimates")!);
+    const steps = indirect.filter((r) => r[0] === estimate.id && r[1] === "Cleaning").slice(2).map((r) => r.slice(2));
+    expect(steps).toEqual(STEPS.map((s) => [`${s.step}: ${s.description}`, s.before, s.removed, s.remaining]));
+    expect(routineColumnsOf(workbook.getWorksheet("Donor results")!, "P000013")).toEqual(P13_ROUTINE);
+  }, 60_000);
 });
