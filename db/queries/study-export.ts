@@ -130,6 +130,9 @@ export async function studyDonorRows(
     censoringSide: d.censoringSide,
     originalValue: d.originalValue,
     originalUnit: d.originalUnit,
+    collectedAt: d.collectedAt,
+    setting: d.setting,
+    flags: d.flags,
     exclusion: x ? { source: x.source, rule: x.rule, reason: x.reason, createdAt: x.createdAt, by } : null,
   }));
 }

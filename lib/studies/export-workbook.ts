@@ -50,6 +50,10 @@ export interface StudyExportData {
     censoringSide: "below" | "above" | null;
     originalValue: number | null;
     originalUnit: string | null;
+    /** Routine results of an indirect study (null otherwise): what the cleaning steps read. */
+    collectedAt?: string | null;
+    setting?: string | null;
+    flags?: string[] | null;
     exclusion: { source: string; rule: string | null; reason: string; createdAt: Date; by: string | null } | null;
   }[];
   assessments: { id: string; createdAt: Date; request: Record<string, unknown>; result: Record<string, unknown> }[];
@@ -127,9 +131,13 @@ function summarySheet(workbook: WorkbookWriter, data: StudyExportData): void {
 
 /** The donor results with their exclusions in effect: donor-level data. */
 export function donorSheet(workbook: WorkbookWriter, data: Pick<StudyExportData, "analyte" | "donorResults">): void {
+  // Routine results (an indirect study) add what the cleaning steps read: without the collection
+  // time, setting and flags the steps recorded in the estimate could not be followed from the rows.
+  const routine = data.donorResults.some((d) => d.collectedAt != null || d.setting != null || d.flags != null);
   const sheet = tableSheet(workbook, "Donor results", [
     "Id", "Upload", "Row", "Donor code", "Sex", "Age (years)", "Age (days)", "Birth date", "Collected on",
     `Value (${data.analyte.unit})`, "Censored", "Original value", "Original unit", "Excluded", "Exclusion source", "Rule", "Reason", "Excluded at", "Excluded by",
+    ...(routine ? ["Collected at", "Setting", "Flags"] : []),
   ]);
   for (const d of data.donorResults) {
     const x = d.exclusion;
@@ -137,6 +145,7 @@ export function donorSheet(workbook: WorkbookWriter, data: Pick<StudyExportData,
       d.id, d.uploadFile, d.rowNumber, d.donorCode, d.sex, d.ageYears, d.ageDays, d.birthDate, d.collectedOn,
       d.value, d.censoringSide === "below" ? "<" : d.censoringSide === "above" ? ">" : null, d.originalValue, d.originalUnit,
       x ? "yes" : "no", x?.source ?? null, x?.rule ?? null, x?.reason ?? null, x?.createdAt ?? null, x?.by ?? null,
+      ...(routine ? [d.collectedAt ?? null, d.setting ?? null, d.flags && d.flags.length > 0 ? d.flags.join("; ") : null] : []),
     ]);
   }
   sheet.commit();

@@ -117,6 +117,10 @@ describe("blank templates", () => {
         censoring: null,
         unit: "mmol/L",
         conversion: null,
+        // The routine-results fields (lib/uploads/check.ts's DonorRow): null for a healthy-donor file.
+        collectedAt: null,
+        setting: null,
+        flags: null,
       },
     ]);
   });
