@@ -2,7 +2,7 @@ import "server-only";
 import { and, asc, eq, isNotNull, isNull, sql } from "drizzle-orm";
 import { AppError } from "@/lib/api/errors";
 import { engineIdentity } from "@/lib/engine";
-import { partitionLabel, partitionOut, type PartitionOut } from "@/lib/studies/estimate-input";
+import { partitionOut, type PartitionOut } from "@/lib/studies/estimate-input";
 import {
   indirectEstimateDocument,
   type IndirectEstimateDocument,
@@ -13,6 +13,20 @@ import { StatsInputError } from "@/lib/stats/validate";
 import type { Database, Executor } from "../client";
 import { donorResults, estimates, exclusions, studies, uploads, type Estimate, type Study } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
+
+/** Whose routine results a partition holds, in words ("women aged 18 to under 65", "every patient"). */
+function patientsOf(p: { sex?: "F" | "M"; ageFrom?: number; ageTo?: number }): string {
+  const who = p.sex === "F" ? "women" : p.sex === "M" ? "men" : "patients";
+  const ages =
+    p.ageFrom !== undefined && p.ageTo !== undefined
+      ? ` aged ${p.ageFrom} to under ${p.ageTo}`
+      : p.ageFrom !== undefined
+        ? ` aged ${p.ageFrom} and over`
+        : p.ageTo !== undefined
+          ? ` under ${p.ageTo}`
+          : "";
+  return p.sex === undefined && ages === "" ? "every patient" : `${who}${ages}`;
+}
 
 /** Whether an estimate row holds an indirect estimate (its options say so). */
 export function isIndirectEstimate(row: Pick<Estimate, "options">): boolean {
@@ -80,7 +94,7 @@ export async function createIndirectEstimate(
       document = indirectEstimateDocument({ rows: rows as StoredRoutineResult[], excluded: excludedRows.length, input });
     } catch (err) {
       if (err instanceof StatsInputError) {
-        throw new AppError("invalid", `The routine results (${partitionLabel(partitionOut(partition))}) cannot be estimated: ${err.message}.`);
+        throw new AppError("invalid", `The routine results (${patientsOf(partition)}) cannot be estimated: ${err.message}.`);
       }
       throw err;
     }
@@ -112,7 +126,7 @@ export async function createIndirectEstimate(
       action: "estimate.created",
       entityType: "estimate",
       entityId: row.id,
-      summary: `Estimated an indirect interval (${partitionLabel(partitionOut(partition))}) in the study "${study.title}" (n = ${document.n})`,
+      summary: `Estimated an indirect interval (${patientsOf(partition)}) in the study "${study.title}" (n = ${document.n})`,
       details: {
         studyId,
         method: "indirect",

@@ -43,7 +43,7 @@ export async function createStudy(database: Database, { input, actor }: { input:
       action: "study.created",
       entityType: "study",
       entityId: created.id,
-      summary: `Opened the ${created.kind === "age_curve" ? "age-curve " : ""}study "${created.title}" for ${analyte.code}`,
+      summary: `Opened the ${created.kind === "age_curve" ? "age-curve " : created.kind === "indirect" ? "indirect " : ""}study "${created.title}" for ${analyte.code}`,
       details: { analyte: analyte.code, title: created.title, kind: created.kind, method: created.method, specimen: created.specimen },
     });
     return created;

@@ -100,8 +100,8 @@ export function excludeFlagged<T extends RoutineResult>(rows: readonly T[], flag
 }
 
 /**
- * Each patient's first or last result by collection time (ties: the earlier row in the file is
- * the earlier result). The rows keep their order.
+ * Each patient's first or last result by collection time, compared as local ISO 8601 text of one
+ * format (ties: the earlier row in the file is the earlier result). The rows keep their order.
  * @see Jones GRD et al. Clin Chem Lab Med 2019;57:20–29; Arzideh F et al. J Lab Med 2021
  *   (first or last results both work; keeping all results biases the interval).
  * Complexity O(n). Throws nothing.
@@ -115,8 +115,10 @@ export function onePerPatient<T extends RoutineResult>(rows: readonly T[], which
       chosen.set(r.patient, i);
       return;
     }
-    const a = Date.parse(rows[j].collectedAt);
-    const b = Date.parse(r.collectedAt);
+    // Local ISO 8601 text ("YYYY-MM-DD" or "YYYY-MM-DDTHH:MM[:SS]") orders as text, a date alone as
+    // its midnight; parsing it as a local time would misorder an hour at a daylight-saving change.
+    const a = rows[j].collectedAt;
+    const b = r.collectedAt;
     if (which === "first" ? b < a : b >= a) chosen.set(r.patient, i);
   });
   const keep = new Set(chosen.values());

@@ -355,7 +355,7 @@ describe("estimate requests refused, changing nothing", () => {
       () => studyId,
       { method: "indirect", cleaning: { period: { from: "2025-01-01", to: "2025-01-01" } } },
       422,
-      "The routine results (All donors) cannot be estimated: 35 results remain after cleaning; an indirect estimate needs at least 500 (several thousand are advised).",
+      "The routine results (every patient) cannot be estimated: 35 results remain after cleaning; an indirect estimate needs at least 500 (several thousand are advised).",
     ],
     [
       "a period that ends before it starts",
