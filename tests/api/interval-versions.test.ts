@@ -171,7 +171,7 @@ describe("POST /api/v1/interval-versions", () => {
       "partitions.0 (M) and partitions.1 (M) overlap: each patient must fall in one partition only."],
     ["a method without limits in that estimate", () => ({ partitions: [{ estimate: est.all.id, method: "robust" }] }),
       `partitions.0.method: the estimate ALL has no robust limits; choose a method that gave both limits.`],
-    ["an unknown method", () => ({ partitions: [{ estimate: est.all.id, method: "bayesian" }] }), "partitions.0.method: method is nonparametric, parametric or robust (limits per partition), or lms (age curves)."],
+    ["an unknown method", () => ({ partitions: [{ estimate: est.all.id, method: "bayesian" }] }), "partitions.0.method: method is nonparametric, parametric or robust (limits per partition), lms (age curves) or indirect (routine results)."],
     ["no partitions", () => ({ partitions: [] }), "partitions: Give at least one partition."],
     ["an unknown analyte", () => ({ analyte: "NOPE" }), "There is no analyte with the code NOPE."],
     ["a study of another analyte", () => ({ analyte: "K" }), 'The study "Glucose for drafting" is not a study of K.'],

@@ -34,6 +34,9 @@ const DONORS_PER_STUDY: Record<string, number> = {
   "Haemoglobin: Hemavue 7 introduction": 300,
   "Potassium: 2026 study with the new tube supplier": 240,
   "Urea: second analyser (AX-400 #2) comparison": 200,
+  // Routine results, not donors: db/demo-routine.ts's 9,000 invented patients (seed 2617) with one
+  // to three results each.
+  "TSH: indirect interval from routine results 2025-26": 11771,
 };
 
 // Needs the cluster's superuser for a scratch database: skipped against an external test database.
@@ -61,7 +64,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     await db?.drop();
   });
 
-  it("seeds the accounts, the eleven analytes and sixteen studies, each study's file committed", async () => {
+  it("seeds the accounts, the eleven analytes and seventeen studies, each study's file committed", async () => {
     expect(firstRun).toBe(true);
     expect((await counts()).users).toBe(4);
     expect((await rows<{ code: string }>("SELECT code FROM analytes ORDER BY code")).map((a) => a.code)).toEqual([
@@ -80,7 +83,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     const [{ n }] = await rows<{ n: number }>(
       "SELECT count(*)::int AS n FROM audit_events WHERE action = 'upload.committed' AND actor_label = 'scientist@harrowmere.example'",
     );
-    expect(n).toBe(16);
+    expect(n).toBe(17);
     const [{ pending }] = await rows<{ pending: number }>("SELECT count(*)::int AS pending FROM uploads WHERE pending_rows IS NOT NULL");
     expect(pending).toBe(0);
   });
@@ -149,6 +152,8 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
       "Haemoglobin: Hemavue 7 introduction": { screened: 1, assessments: 1, plan: bySex, estimates: 0, version: null },
       "Potassium: 2026 study with the new tube supplier": { screened: 1, assessments: 0, plan: null, estimates: 0, version: null },
       "Urea: second analyser (AX-400 #2) comparison": { screened: 0, assessments: 0, plan: null, estimates: 0, version: null },
+      // The indirect study: cleaning and its partition are part of its one estimate; a draft from it.
+      "TSH: indirect interval from routine results 2025-26": { screened: 0, assessments: 0, plan: null, estimates: 1, version: "draft" },
     });
   });
 
@@ -177,7 +182,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
     ]);
   });
 
-  it("has a draft, a version awaiting sign-off and nine in force, numbered per analyte", async () => {
+  it("has two drafts, a version awaiting sign-off and ten in force, numbered per analyte", async () => {
     const versions = await rows<{ code: string; number: number; state: string; effective: string | null; partitions: number }>(`
       SELECT a.code, v.number, v.state::text AS state, to_char(v.effective_from AT TIME ZONE 'UTC', 'YYYY-MM-DD') AS effective,
         (SELECT count(*)::int FROM interval_partitions p WHERE p.version_id = v.id) AS partitions
@@ -194,6 +199,7 @@ describe.skipIf(!SUPERUSER_URL)("the demo seed (db/seed.ts) in a fresh database"
       { code: "NA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
       { code: "NA", number: 2, state: "draft", effective: null, partitions: 1 },
       { code: "TSH", number: 1, state: "in_force", effective: "2025-02-03", partitions: 1 },
+      { code: "TSH", number: 2, state: "draft", effective: null, partitions: 1 },
       { code: "UREA", number: 1, state: "in_force", effective: "2025-01-06", partitions: 1 },
     ]);
   });
