@@ -123,8 +123,10 @@ export function ScoreCard({ result, cautionTexts }: { result: ScoreResult; cauti
       <p className="text-sm text-ink-700" data-testid="version-line">
         Interval version {interval.version}
         {interval.effectiveFrom ? `, in force since ${formatIsoDate(interval.effectiveFrom)}` : ""}
-        {interval.reviewBy ? `, review due ${formatIsoDate(interval.reviewBy)}` : ""}. {METHOD_WORDS[interval.method] ?? interval.method} limits from
-        n = {interval.n.toLocaleString("en")} reference individuals.
+        {interval.reviewBy ? `, review due ${formatIsoDate(interval.reviewBy)}` : ""}.{" "}
+        {interval.method === "indirect"
+          ? `Limits estimated indirectly (truncated maximum likelihood) from n = ${interval.n.toLocaleString("en")} routine patient results.`
+          : `${METHOD_WORDS[interval.method] ?? interval.method} limits from n = ${interval.n.toLocaleString("en")} reference individuals.`}
         {interval.criticalLow !== null || interval.criticalHigh !== null
           ? ` Critical limits: ${intervalText({ low: interval.criticalLow, high: interval.criticalHigh, decimals: interval.decimals })} ${unit}.`
           : ""}
