@@ -1,7 +1,9 @@
-import type { Browser, Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoUser } from "../support/demo-users";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, newPage, screenshotsAtBothWidths, signIn } from "./support/browser";
+
+const shots = screenshotsAtBothWidths;
 
 let browser: Browser;
 beforeAll(async () => {
@@ -10,14 +12,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await browser?.close();
 });
-
-/** Both widths UX.md names: the laptop (1280 px) and the narrow one (820 px). */
-async function shots(page: Page, name: string) {
-  await screenshot(page, `${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await screenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-}
 
 /** 20 potassium values against 3.5–5.1, `below` under 3.5 and `above` over 5.1. */
 function values(below: number, above: number): string[] {

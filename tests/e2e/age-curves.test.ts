@@ -6,7 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { ageCurveCsv, fixtureDonors } from "../support/age-curves";
 import { demoUser } from "../support/demo-users";
 import { axeViolations } from "./support/axe";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, screenshot, screenshotsAtBothWidths, signIn, walkJourney } from "./support/browser";
+
+const shots = screenshotsAtBothWidths;
 
 let browser: Browser;
 /** 600 donors from scripts/fixtures/lms-curves.R's curves, with birth and collection dates. */
@@ -20,35 +22,9 @@ afterAll(async () => {
   await browser?.close();
 });
 
-/** Both widths UX.md names: the laptop (1280 px) and the narrow window (820 px). */
-async function shots(page: Page, name: string) {
-  await page.setViewportSize({ width: 1280, height: 800 });
-  await page.waitForTimeout(300);
-  await screenshot(page, `${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await page.waitForTimeout(300);
-  await screenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-}
-
 describe("a scientist takes an age-curve study from donors to a draft version", () => {
   it("opens the study, uploads donors with birth dates, fits the LMS curves, reads the chart and diagnostics, and drafts a version", async () => {
-    const { context, page } = await newPage(browser);
-    const pageErrors: string[] = [];
-    page.on("pageerror", (e) => pageErrors.push(e.stack ?? e.message));
-    page.on("console", (m) => {
-      if (m.type() === "error") pageErrors.push(m.text());
-    });
-    try {
-      await walkThrough(page);
-    } catch (e) {
-      await screenshot(page, "age-curves-failure");
-      throw e;
-    } finally {
-      if (pageErrors.length > 0) console.error(`errors in the page:\n${pageErrors.join("\n")}`);
-      await context.close();
-    }
-    expect(pageErrors).toEqual([]);
+    expect(await walkJourney(browser, "age-curves", walkThrough)).toEqual([]);
   });
 });
 

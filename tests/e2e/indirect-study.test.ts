@@ -6,7 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoUser } from "../support/demo-users";
 import { mixture, PERIOD_FROM, routineResultsCsv } from "../support/routine-results";
 import { axeViolations } from "./support/axe";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, screenshotsAtBothWidths, signIn, walkJourney } from "./support/browser";
+
+const shots = screenshotsAtBothWidths;
 
 let browser: Browser;
 /** The R-simulated mixture lognormal-5k-10 (scripts/fixtures/indirect-mixtures.R: 10% diseased, truth in indirect-mixtures.json). */
@@ -24,34 +26,9 @@ afterAll(async () => {
   await browser?.close();
 });
 
-async function shots(page: Page, name: string) {
-  await page.setViewportSize({ width: 1280, height: 800 });
-  await page.waitForTimeout(300);
-  await screenshot(page, `${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await page.waitForTimeout(300);
-  await screenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-}
-
 describe("a scientist takes an indirect study from routine results to a draft version", () => {
   it("opens the study, uploads routine results, cleans and estimates, reads the chart and advice, and drafts a version the page names as indirect", async () => {
-    const { context, page } = await newPage(browser);
-    const pageErrors: string[] = [];
-    page.on("pageerror", (e) => pageErrors.push(e.stack ?? e.message));
-    page.on("console", (m) => {
-      if (m.type() === "error") pageErrors.push(m.text());
-    });
-    try {
-      await walkThrough(page);
-    } catch (e) {
-      await screenshot(page, "indirect-failure");
-      throw e;
-    } finally {
-      if (pageErrors.length > 0) console.error(`errors in the page:\n${pageErrors.join("\n")}`);
-      await context.close();
-    }
-    expect(pageErrors).toEqual([]);
+    expect(await walkJourney(browser, "indirect", walkThrough)).toEqual([]);
   });
 });
 

@@ -6,7 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "@/db/schema";
 import { demoUser } from "../support/demo-users";
 import { donorCsv, generatedRows } from "../support/studies";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, newPage, screenshot, screenshotsAtBothWidths, signIn } from "./support/browser";
+
+const shots = (page: Page, name: string) => screenshotsAtBothWidths(page, `signoff-${name}`);
 
 let browser: Browser;
 beforeAll(async () => {
@@ -27,13 +29,6 @@ async function signedIn(role: Role): Promise<Page> {
 }
 
 /** UX.md's two widths: the laptop (1280 px) and the narrow one (820 px). */
-async function shots(page: Page, name: string) {
-  await screenshot(page, `signoff-${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await screenshot(page, `signoff-${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-}
-
 type Doc = Record<string, any>; // eslint-disable-line @typescript-eslint/no-explicit-any
 
 async function json(res: Awaited<ReturnType<APIRequestContext["get"]>>, status: number): Promise<Doc> {

@@ -3,7 +3,9 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "@/db/schema";
 import { demoUser } from "../support/demo-users";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, newPage, screenshot, screenshotsAtBothWidths, signIn } from "./support/browser";
+
+const shots = screenshotsAtBothWidths;
 
 let browser: Browser;
 beforeAll(async () => {
@@ -19,14 +21,6 @@ async function signInAs(page: Page, role: Role) {
   const user = demoUser(role);
   await signIn(page, user.email, user.password);
   await page.waitForURL("/");
-}
-
-/** Both widths UX.md names: the laptop (1280 px) and the narrow one (820 px), where the sidebar is a top bar. */
-async function shots(page: Page, name: string) {
-  await screenshot(page, `${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await screenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
 }
 
 const text = async (page: Page, testId: string) => (await page.getByTestId(testId).textContent())?.trim();

@@ -4,7 +4,9 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoUser } from "../support/demo-users";
 import { BASE_URL, signInOverHttp } from "../support/http-session";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, newPage, screenshot, screenshotsAtBothWidths, signIn } from "./support/browser";
+
+const shots = screenshotsAtBothWidths;
 
 let browser: Browser;
 let studyId: string;
@@ -32,17 +34,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await browser?.close();
 });
-
-/** Both widths UX.md names: the laptop (1280 px) and the narrow window (820 px). */
-async function shots(page: Page, name: string) {
-  await page.setViewportSize({ width: 1280, height: 800 });
-  await page.waitForTimeout(300);
-  await screenshot(page, `${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await page.waitForTimeout(300);
-  await screenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-}
 
 /**
  * The walk-through needs the study page (the page frame's work) and the estimate and version

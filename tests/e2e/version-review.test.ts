@@ -5,7 +5,9 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Role } from "@/db/schema";
 import { demoUser } from "../support/demo-users";
-import { launchBrowser, newPage, screenshot, signIn } from "./support/browser";
+import { launchBrowser, newPage, screenshot, screenshotsAtBothWidths, signIn } from "./support/browser";
+
+const shots = (page: Page, name: string) => screenshotsAtBothWidths(page, `review-${name}`);
 
 let browser: Browser;
 beforeAll(async () => {
@@ -24,13 +26,6 @@ async function signInAs(page: Page, role: Role) {
 }
 
 /** UX.md's two widths: the laptop (1280 px) and the narrow one (820 px). */
-async function shots(page: Page, name: string) {
-  await screenshot(page, `review-${name}-1280`);
-  await page.setViewportSize({ width: 820, height: 1000 });
-  await screenshot(page, `review-${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-}
-
 /** The demo's versions in a state, through the API the pages use. */
 async function versionsIn(page: Page, state: string): Promise<{ id: string; number: number; analyte: { code: string } }[]> {
   const res = await page.request.get(`/api/v1/interval-versions?state=${state}`);

@@ -45,3 +45,41 @@ export async function screenshot(page: Page, name: string): Promise<void> {
   fs.mkdirSync(dir, { recursive: true });
   await page.screenshot({ path: path.join(dir, `${name}.png`), fullPage: true });
 }
+
+/**
+ * Screenshots at both widths UX.md names, the laptop (1280 px) and the narrow window (820 px),
+ * each after a moment for the layout and charts to settle; the page is left at 1280 px.
+ */
+export async function screenshotsAtBothWidths(page: Page, name: string): Promise<void> {
+  await page.setViewportSize({ width: 1280, height: 800 });
+  await page.waitForTimeout(300);
+  await screenshot(page, `${name}-1280`);
+  await page.setViewportSize({ width: 820, height: 1000 });
+  await page.waitForTimeout(300);
+  await screenshot(page, `${name}-820`);
+  await page.setViewportSize({ width: 1280, height: 800 });
+}
+
+/**
+ * Walks a journey in a fresh page: a screenshot `${name}-failure` when it fails, and the errors
+ * the page reported (uncaught exceptions and console errors) returned, and printed, for the test
+ * to assert on.
+ */
+export async function walkJourney(browser: Browser, name: string, walk: (page: Page) => Promise<void>): Promise<string[]> {
+  const { context, page } = await newPage(browser);
+  const pageErrors: string[] = [];
+  page.on("pageerror", (e) => pageErrors.push(e.stack ?? e.message));
+  page.on("console", (m) => {
+    if (m.type() === "error") pageErrors.push(m.text());
+  });
+  try {
+    await walk(page);
+  } catch (e) {
+    await screenshot(page, `${name}-failure`);
+    throw e;
+  } finally {
+    if (pageErrors.length > 0) console.error(`errors in the page:\n${pageErrors.join("\n")}`);
+    await context.close();
+  }
+  return pageErrors;
+}
