@@ -15,10 +15,10 @@ import {
 } from "@/lib/studies/age-curves";
 import { partitionOut, type PartitionOut } from "@/lib/studies/estimate-input";
 import type { Database, Executor } from "../client";
-import { donorResults, estimates, exclusions, studies, uploads, type Estimate, type Study } from "../schema";
+import { donorResults, estimates, exclusions, studies, type Estimate, type Study } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
 import { listIncludedDonorValues } from "./donor-results";
-import { storedInputConditions } from "./estimates";
+import { committedUploadHashes, storedInputConditions } from "./estimates";
 
 /** Whether an estimate row holds LMS age curves (its options say so). */
 export function isLmsEstimate(row: Pick<Estimate, "options">): boolean {
@@ -47,15 +47,6 @@ export function assertDirectStudy(study: Pick<Study, "kind" | "title">, what: st
       `The study "${study.title}" is an indirect study of routine results: ${what} does not apply to it. Estimate indirectly instead (POST …/estimates with {"method": "indirect"}).`,
     );
   }
-}
-
-async function committedUploadHashes(executor: Executor, studyId: string): Promise<string[]> {
-  const rows = await executor
-    .select({ sha256: uploads.sha256 })
-    .from(uploads)
-    .where(and(eq(uploads.studyId, studyId), eq(uploads.status, "committed")))
-    .orderBy(asc(uploads.decidedAt), asc(uploads.id));
-  return rows.map((r) => r.sha256);
 }
 
 /** The API's answer: the document plus who and what it is, as direct estimates are answered. */

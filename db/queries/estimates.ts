@@ -24,7 +24,8 @@ function toDonorValue(row: { value: number; censoringSide: "below" | "above" | n
   return row.censoringSide === null ? row.value : { value: row.value, side: row.censoringSide };
 }
 
-async function committedUploadHashes(executor: Executor, studyId: string): Promise<string[]> {
+/** SHA-256 of every committed upload of the study, in the order they were committed: what an estimate records to be reproduced. */
+export async function committedUploadHashes(executor: Executor, studyId: string): Promise<string[]> {
   const rows = await executor
     .select({ sha256: uploads.sha256 })
     .from(uploads)

@@ -11,8 +11,9 @@ import {
 } from "@/lib/studies/indirect-estimates";
 import { StatsInputError } from "@/lib/stats/validate";
 import type { Database, Executor } from "../client";
-import { donorResults, estimates, exclusions, studies, uploads, type Estimate, type Study } from "../schema";
+import { donorResults, estimates, exclusions, studies, type Estimate, type Study } from "../schema";
 import { recordAuditEvent, type Actor } from "./audit";
+import { committedUploadHashes } from "./estimates";
 
 /** Whose routine results a partition holds, in words ("women aged 18 to under 65", "every patient"). */
 function patientsOf(p: { sex?: "F" | "M"; ageFrom?: number; ageTo?: number }): string {
@@ -99,12 +100,7 @@ export async function createIndirectEstimate(
       throw err;
     }
     document.provenance.engine = engineIdentity();
-    const hashes = await tx
-      .select({ sha256: uploads.sha256 })
-      .from(uploads)
-      .where(and(eq(uploads.studyId, studyId), eq(uploads.status, "committed")))
-      .orderBy(asc(uploads.decidedAt), asc(uploads.id));
-    const uploadHashes = hashes.map((h) => h.sha256);
+    const uploadHashes = await committedUploadHashes(tx, studyId);
     const [row] = await tx
       .insert(estimates)
       .values({

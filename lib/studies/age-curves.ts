@@ -4,6 +4,7 @@
  * db/queries/age-curve-estimates.ts.
  */
 import { z } from "zod";
+import { seedField } from "./seed";
 import type { EngineIdentity } from "@/lib/stats/estimate";
 import { harrisBoyd, type HarrisBoydResult } from "@/lib/stats/harris-boyd";
 import { estimateLmsCurves, type LmsCurvesDocument } from "@/lib/stats/lms-curves";
@@ -21,13 +22,6 @@ export const LMS_CHART_POINTS = 121;
 export const LMS_CHART_DONORS = 2000;
 /** Days per year, as lib/uploads and the partition contract count them. */
 const DAYS_PER_YEAR = 365.25;
-
-const seedField = z
-  .number("seed is a whole number.")
-  .int("seed is a whole number.")
-  .min(-2147483648, "seed fits in 32 bits (−2147483648 to 2147483647).")
-  .max(2147483647, "seed fits in 32 bits (−2147483648 to 2147483647).")
-  .default(1);
 
 /**
  * POST /api/v1/studies/{id}/estimates for an age-curve study: `method: "lms"`, the donors' sex

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { seedField } from "./seed";
 import { OUTLIER_OPTIONS, TRANSFORM_OPTIONS, type OutlierOption, type TransformOption } from "@/lib/stats/estimate";
 import { asksForLms, lmsEstimateBody, type LmsEstimateInput } from "./age-curves";
 import { asksForIndirect, indirectEstimateBody, type IndirectEstimateInput } from "./indirect-estimates";
@@ -40,12 +41,7 @@ export const createEstimateBody = z
     transform: z
       .enum(TRANSFORM_OPTIONS as [TransformOption, ...TransformOption[]], `transform is one of ${TRANSFORM_OPTIONS.join(", ")}.`)
       .default("auto"),
-    seed: z
-      .number("seed is a whole number.")
-      .int("seed is a whole number.")
-      .min(-2147483648, "seed fits in 32 bits (−2147483648 to 2147483647).")
-      .max(2147483647, "seed fits in 32 bits (−2147483648 to 2147483647).")
-      .default(1),
+    seed: seedField,
   })
   .strict();
 

@@ -13,6 +13,7 @@ import { indirectCells } from "@/lib/stats/indirect-cells";
 import { indirectHistogram, type IndirectHistogramBin } from "@/lib/stats/indirect-histogram";
 import { StatsInputError } from "@/lib/stats/validate";
 import { partitionSchema, type Partition } from "./partitions";
+import { seedField } from "./seed";
 
 /** Fewer values than this after cleaning and the estimate is refused (Jones et al. 2019 advise thousands; the fit needs hundreds). */
 export const INDIRECT_MIN_VALUES = 500;
@@ -55,12 +56,7 @@ export const indirectEstimateBody = z
     method: z.literal("indirect", 'method is "indirect" for an indirect study.'),
     cleaning: cleaningPlanSchema.default({ period: null, excludeSettings: [], excludeFlags: [], onePerPatient: "first" }),
     partition: partitionSchema.optional(),
-    seed: z
-      .number("seed is a whole number.")
-      .int("seed is a whole number.")
-      .min(-2147483648, "seed fits in 32 bits (−2147483648 to 2147483647).")
-      .max(2147483647, "seed fits in 32 bits (−2147483648 to 2147483647).")
-      .default(1),
+    seed: seedField,
   })
   .strict();
 
